@@ -1,1 +1,1 @@
-"""Physics layer: pure functions with explicit units in their names (no I/O, no nuclide lookups)."""
+"""Physics layer: pure functions over nuclide data, explicit units in every name."""
