@@ -1,0 +1,210 @@
+"""Ops of the calculation core: nuclide data, frequencies, ppm ↔ Hz,
+coupling scaling, energies and sensitivity.  Each takes the request and a
+warnings list and returns the result dict (JSON types only)."""
+
+from __future__ import annotations
+
+from nmrcalc.api.fields import flag, magnet, nucleus, quantity, require, spin_text
+from nmrcalc.data.elements import NAME_OF_SYMBOL
+from nmrcalc.errors import InputError
+from nmrcalc.nuclides import ALL, BIOMOLECULAR, MAGNETIC, Nuclide, lookup, receptivity
+from nmrcalc.physics import coupling, energy, larmor, sensitivity
+
+QUADRUPOLE_NOTE = ("Quadrupolar (I > 1/2): fast relaxation often broadens its lines and collapses "
+                   "its splitting of partners, except at highly symmetric sites.")
+
+
+def nuclide_record(nuc: Nuclide) -> dict:
+    notes = []
+    if not nuc.magnetic:
+        notes.append("Spin 0: no NMR signal and no splitting of other nuclei.")
+    if nuc.quadrupolar:
+        notes.append(QUADRUPOLE_NOTE)
+    if nuc.radioactive:
+        notes.append("Radioactive: handle under the facility's radiation rules.")
+    if nuc.magnetic and nuc.xi_percent is None:
+        notes.append("No recommended reference (Ξ) for this nuclide.")
+    bio = BIOMOLECULAR.get(nuc.symbol)
+    return {
+        "symbol": nuc.symbol, "element": nuc.element, "element_name": NAME_OF_SYMBOL.get(nuc.element),
+        "Z": nuc.Z, "A": nuc.A, "spin": spin_text(nuc.spin), "magnetic": nuc.magnetic,
+        "gamma_rad_per_s_per_T": nuc.gamma_rad_per_s_per_T,
+        "abundance_percent": nuc.abundance_percent, "quadrupole_fm2": nuc.quadrupole_fm2,
+        "xi_percent": nuc.xi_percent, "reference": nuc.reference,
+        "biomolecular_xi_percent": bio[0] if bio else None,
+        "biomolecular_reference": bio[1] if bio else None,
+        "receptivity_H": receptivity(nuc, "1H") if nuc.magnetic else 0.0,
+        "receptivity_C": receptivity(nuc, "13C") if nuc.magnetic else 0.0,
+        "radioactive": nuc.radioactive, "notes": notes,
+    }
+
+
+def op_nuclide(req, warnings):
+    return nuclide_record(nucleus({"query": require(req, "query")}, "query", magnetic=False))
+
+
+def op_nuclides(req, warnings):
+    text = req.get("search", "")
+    if not isinstance(text, str):
+        raise InputError("'search' must be text.", "search")
+    words = text.lower().split()
+    rows = [nuclide_record(n) for n in ALL.values() if n.magnetic or flag(req, "include_spin_zero")]
+    if words:
+        rows = [r for r in rows if all(w in f"{r['symbol']} {r['element']} {r['element_name']} "
+                                          f"{r['reference'] or ''}".lower() for w in words)]
+    return {"nuclides": rows, "count": len(rows)}
+
+
+def _frequency_row(nuc: Nuclide, field_T: float, proton_MHz: float, scale: str) -> dict:
+    nu = larmor.larmor_MHz(nuc, field_T)
+    ref = larmor.reference_MHz(nuc, proton_MHz, scale)
+    return {"symbol": nuc.symbol, "spin": spin_text(nuc.spin), "abundance_percent": nuc.abundance_percent,
+            "larmor_MHz": nu, "reference_MHz": ref,
+            "difference_ppm": None if ref is None else (ref / nu - 1) * 1e6,
+            "receptivity_C": receptivity(nuc, "13C")}
+
+
+def _scale(req) -> str:
+    scale = req.get("scale", "unified")
+    if scale not in ("unified", "biomolecular"):
+        raise InputError("'scale' must be 'unified' (IUPAC 2001) or 'biomolecular' (DSS, IUPAC 2008).", "scale")
+    return scale
+
+
+_SORT_KEYS = ("symbol", "larmor_MHz", "abundance_percent", "receptivity_C", "spin")
+
+
+def op_frequency(req, warnings):
+    field_T, proton_MHz = magnet(req, warnings)
+    scale = _scale(req)
+    base = {"field_T": field_T, "field_G": field_T * 1e4, "proton_MHz": proton_MHz, "scale": scale}
+    if req.get("nucleus") not in (None, ""):
+        nuc = nucleus(req, "nucleus")
+        row = _frequency_row(nuc, field_T, proton_MHz, scale)
+        if row["reference_MHz"] is None:
+            warnings.append(f"{nuc.symbol} has no recommended reference (Ξ); only the bare Larmor frequency is given.")
+        return {**base, **row}
+    rows = [_frequency_row(n, field_T, proton_MHz, scale) for n in MAGNETIC.values()]
+    if flag(req, "spin_half_only"):
+        rows = [r for r in rows if r["spin"] == "1/2"]
+    min_ab = quantity(req, "min_abundance_percent", "percent", default=0.0)
+    if min_ab > 0:
+        rows = [r for r in rows if (r["abundance_percent"] or 0) >= min_ab]
+    lo = quantity(req, "min_MHz", "frequency", default=float("-inf"))
+    hi = quantity(req, "max_MHz", "frequency", default=float("inf"))
+    rows = [r for r in rows if lo <= r["larmor_MHz"] <= hi]
+    key = req.get("sort", "larmor_MHz")
+    if key not in _SORT_KEYS:
+        raise InputError(f"'sort' must be one of {', '.join(_SORT_KEYS)}.", "sort")
+    descending = flag(req, "descending", key != "symbol")
+    rows.sort(key=lambda r: (r[key] is None, _sortable(r[key])), reverse=False)
+    if descending:
+        known = [r for r in rows if r[key] is not None][::-1]
+        rows = known + [r for r in rows if r[key] is None]
+    return {**base, "table": rows, "count": len(rows)}
+
+
+def _sortable(value):
+    if isinstance(value, str) and "/" in value or isinstance(value, str) and value.isdigit():
+        num, _, den = value.partition("/")
+        return float(num) / float(den or 1)
+    return value if value is not None else 0
+
+
+def op_ppm_hz(req, warnings):
+    nuc = nucleus(req, "nucleus")
+    field_T, proton_MHz = magnet(req, warnings)
+    ref = larmor.reference_MHz(nuc, proton_MHz, _scale(req))
+    if ref is None:
+        ref = larmor.larmor_MHz(nuc, field_T)
+        warnings.append(f"{nuc.symbol} has no recommended reference (Ξ): 0 ppm is taken as the bare "
+                        "Larmor frequency.")
+    has_ppm, has_hz = req.get("ppm") not in (None, ""), req.get("Hz") not in (None, "")
+    if has_ppm == has_hz:
+        raise InputError("Give exactly one of 'ppm' or 'Hz'.", "ppm", "missing_field" if not has_ppm else "invalid_value")
+    if has_ppm:
+        shift = quantity(req, "ppm", "shift")
+        off = larmor.offset_Hz(ref, shift)
+    else:
+        off = quantity(req, "Hz", "coupling")
+        shift = larmor.shift_ppm(ref, off)
+    result = {"reference_MHz": ref, "field_T": field_T, "ppm": shift, "offset_Hz": off,
+              "frequency_MHz": larmor.line_MHz(ref, shift), "Hz_per_ppm": ref}
+    if req.get("carrier_ppm") not in (None, ""):
+        carrier = quantity(req, "carrier_ppm", "shift")
+        result["carrier_ppm"] = carrier
+        result["offset_from_carrier_Hz"] = larmor.offset_Hz(ref, shift - carrier)
+    return result
+
+
+def op_scale_coupling(req, warnings):
+    J = quantity(req, "J", "coupling")
+    src, dst = nucleus(req, "from", magnetic=False), nucleus(req, "to", magnetic=False)
+    ratio = coupling.gamma_ratio(src, dst)
+    J_new = J * ratio
+    result = {"J_Hz": J_new, "J_from_Hz": J, "ratio": ratio, "from": src.symbol, "to": dst.symbol,
+              "sign_flipped": ratio < 0, "estimate": True, "reduced_coupling": None}
+    warnings.append(coupling.ISOTOPE_EFFECT_NOTE)
+    if ratio < 0:
+        warnings.append(f"γ({src.symbol}) and γ({dst.symbol}) have opposite signs, so the sign of J flips.")
+    if src.symbol == dst.symbol:
+        warnings.append("'from' and 'to' are the same isotope: nothing to scale.")
+    for nuc in (src, dst):
+        if nuc.quadrupolar and nuc.symbol != "2H":
+            warnings.append(f"{nuc.symbol}: {QUADRUPOLE_NOTE}")
+    if req.get("partner") not in (None, ""):
+        partner = nucleus(req, "partner")
+        result["partner"] = partner.symbol
+        result["reduced_coupling"] = coupling.reduced_coupling(J, src, partner)
+        result["reduced_coupling_unit"] = "N A-2 m-3"
+    return result
+
+
+def op_energy(req, warnings):
+    has_nuc = req.get("nucleus") not in (None, "")
+    has_wl, has_wn = req.get("wavelength") not in (None, ""), req.get("wavenumber") not in (None, "")
+    if has_wl and has_wn:
+        raise InputError("Give either 'wavelength' or 'wavenumber', not both.", "wavenumber")
+    photon = None
+    if has_wl or has_wn:
+        f = energy.photon_freq_Hz(quantity(req, "wavelength", "wavelength", positive=True) if has_wl else None,
+                                  quantity(req, "wavenumber", "wavenumber", positive=True) if has_wn else None)
+        photon = energy.energy_units(f)
+    if not has_nuc:
+        if photon is None:
+            raise InputError("Give a 'nucleus' with a magnet, or a 'wavelength' or 'wavenumber'.", "nucleus", "missing_field")
+        return photon
+    nuc = nucleus(req, "nucleus")
+    field_T, _ = magnet(req, warnings)
+    T = quantity(req, "temperature", "temperature", positive=True, default=298.15)
+    if T > 1000 or T < 1:
+        warnings.append(f"{T:g} K is outside the range of liquid-state NMR; check the value.")
+    result = energy.energy_units(larmor.larmor_MHz(nuc, field_T) * 1e6)
+    pops = energy.populations(nuc.spin, nuc.gamma_rad_per_s_per_T, field_T, T)
+    result.update({"nucleus": nuc.symbol, "field_T": field_T, "temperature_K": T,
+                   "populations": [{"m": str(m), "fraction": p} for m, p in pops],
+                   "population_excess": energy.adjacent_excess(nuc.spin, nuc.gamma_rad_per_s_per_T, field_T, T)})
+    if photon is not None:
+        result["photon"] = photon
+        result["photon_over_nmr"] = photon["J"] / result["J"]
+    return result
+
+
+def op_sensitivity(req, warnings):
+    nuc = nucleus(req, "nucleus")
+    ref = nucleus(req, "relative_to", magnetic=True) if req.get("relative_to") not in (None, "") else lookup("13C")
+    enrich = None
+    if req.get("enrichment_percent") not in (None, ""):
+        enrich = quantity(req, "enrichment_percent", "percent", positive=True)
+        if enrich > 100:
+            raise InputError("'enrichment_percent' cannot exceed 100.", "enrichment_percent")
+    D = sensitivity.relative_receptivity(nuc, ref, enrich)
+    warnings.append("Receptivity compares equal numbers of molecules under equal conditions; relaxation, "
+                    "line width, NOE and probe tuning change real sensitivity.")
+    return {"nucleus": nuc.symbol, "relative_to": ref.symbol, "abundance_percent": enrich if enrich else nuc.abundance_percent,
+            "receptivity": D, "time_factor": sensitivity.time_factor(D),
+            "receptivity_H": receptivity(nuc, "1H", enrich), "receptivity_C": receptivity(nuc, "13C", enrich)}
+
+
+OPS = {"nuclide": op_nuclide, "nuclides": op_nuclides, "frequency": op_frequency, "ppm_hz": op_ppm_hz,
+       "scale_coupling": op_scale_coupling, "energy": op_energy, "sensitivity": op_sensitivity}

@@ -1,0 +1,72 @@
+"""Reading request fields: presence, quantities with units, the magnet.
+
+Shared by every op so that each error names the request key it belongs to.
+"""
+
+from __future__ import annotations
+
+from fractions import Fraction
+
+from nmrcalc.errors import InputError
+from nmrcalc.nuclides import Nuclide, lookup, lookup_magnetic
+from nmrcalc.physics.larmor import field_T_from_proton_MHz, proton_MHz_from_field_T
+from nmrcalc.units import parse_positive, parse_quantity
+
+STRONGEST_MAGNET_T = 30.0   # common practice: high-resolution magnets reach about 28 T (1.2 GHz)
+WEAKEST_FIELD_T = 1e-5      # below Earth's field (about 5e-5 T)
+
+
+def require(req: dict, key: str, prefix: str = ""):
+    if key not in req or req[key] is None or req[key] == "":
+        raise InputError(f"'{key}' is missing.", prefix + key, "missing_field")
+    return req[key]
+
+
+def quantity(req: dict, key: str, kind: str, *, positive: bool = False, default=None, prefix: str = ""):
+    if key not in req or req[key] is None or req[key] == "":
+        if default is not None:
+            return default
+        raise InputError(f"'{key}' is missing.", prefix + key, "missing_field")
+    parse = parse_positive if positive else parse_quantity
+    return parse(req[key], kind, prefix + key)
+
+
+def nucleus(req: dict, key: str, *, magnetic: bool = True, prefix: str = "") -> Nuclide:
+    query = require(req, key, prefix)
+    if not isinstance(query, str):
+        raise InputError(f"'{key}' must be a nuclide name such as 13C.", prefix + key)
+    return (lookup_magnetic if magnetic else lookup)(query, prefix + key)
+
+
+def flag(req: dict, key: str, default: bool = False) -> bool:
+    value = req.get(key, default)
+    if not isinstance(value, bool):
+        raise InputError(f"'{key}' must be true or false.", key)
+    return value
+
+
+def magnet(req: dict, warnings: list[str]) -> tuple[float, float]:
+    """(field_T, proton_MHz) from ``spectrometer`` (1H MHz) or ``field`` (T, G, kG)."""
+    has_spec = req.get("spectrometer") not in (None, "")
+    has_field = req.get("field") not in (None, "")
+    if has_spec and has_field:
+        raise InputError("Give either 'spectrometer' or 'field', not both.", "field")
+    if has_spec:
+        proton_MHz = parse_positive(req["spectrometer"], "frequency", "spectrometer")
+        field_T = field_T_from_proton_MHz(proton_MHz)
+    elif has_field:
+        field_T = parse_positive(req["field"], "field", "field")
+        proton_MHz = proton_MHz_from_field_T(field_T)
+    else:
+        raise InputError("Give the magnet as 'spectrometer' (1H frequency, e.g. '500 MHz') or "
+                         "'field' (e.g. '11.74 T').", "spectrometer", "missing_field")
+    if field_T > STRONGEST_MAGNET_T:
+        warnings.append(f"{field_T:.4g} T is above the strongest high-resolution NMR magnets "
+                        "(about 28 T, 1.2 GHz); check the value.")
+    if field_T < WEAKEST_FIELD_T:
+        warnings.append(f"{field_T:.3g} T is below Earth's magnetic field; check the unit.")
+    return field_T, proton_MHz
+
+
+def spin_text(spin: Fraction) -> str:
+    return str(spin)

@@ -1,0 +1,125 @@
+"""Command line: ``python -m nmrcalc <command> …`` — one readable command per op.
+
+Every command builds a request and calls :func:`nmrcalc.api.handle`; ``--json``
+prints the raw response.  ``python -m nmrcalc api`` reads one JSON request on
+standard input and prints the JSON response.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+
+from nmrcalc.api import handle, handle_json
+
+# command → (op, [(argument, request key, help)])
+COMMANDS = {
+    "nuclide": ("nuclide", [("query", "query", "nuclide, e.g. 13C, C-13, carbon-13, D")],
+                "spin, magnetogyric ratio, abundance, Ξ and receptivity of one nuclide"),
+    "nuclides": ("nuclides", [("--search", "search", "filter text")], "list the magnetic nuclides"),
+    "freq": ("frequency", [("--nucleus", "nucleus", "nuclide (omit for the all-nuclide table)"),
+                           ("--spectrometer", "spectrometer", "1H frequency, e.g. '400.13 MHz'"),
+                           ("--field", "field", "B0, e.g. '9.4 T' or '94000 G'"),
+                           ("--max-mhz", "max_MHz", "table: highest frequency"),
+                           ("--min-mhz", "min_MHz", "table: lowest frequency")],
+             "Larmor and 0-ppm reference frequencies at a field"),
+    "ppm": ("ppm_hz", [("--nucleus", "nucleus", "observed nuclide"),
+                       ("--spectrometer", "spectrometer", "1H frequency"), ("--field", "field", "B0"),
+                       ("--ppm", "ppm", "shift in ppm"), ("--hz", "Hz", "offset from 0 ppm in Hz"),
+                       ("--carrier-ppm", "carrier_ppm", "carrier position")],
+            "convert between ppm and Hz"),
+    "scale": ("scale_coupling", [("J", "J", "measured coupling, e.g. '19.3 Hz'"),
+                                 ("--from", "from", "isotope in the measured compound, e.g. 2H"),
+                                 ("--to", "to", "isotope to swap in, e.g. 1H"),
+                                 ("--partner", "partner", "the other coupled nucleus, for K")],
+              "scale a coupling to another isotopologue (J′ = J γ′/γ)"),
+    "energy": ("energy", [("--nucleus", "nucleus", "nuclide"), ("--spectrometer", "spectrometer", "1H frequency"),
+                          ("--field", "field", "B0"), ("--temperature", "temperature", "e.g. '298 K'"),
+                          ("--wavelength", "wavelength", "photon, e.g. '254 nm'"),
+                          ("--wavenumber", "wavenumber", "photon, e.g. '1700 cm-1'")],
+               "transition energy, populations, and a photon for comparison"),
+    "sensitivity": ("sensitivity", [("nucleus", "nucleus", "nuclide"),
+                                    ("--relative-to", "relative_to", "reference nuclide (default 13C)"),
+                                    ("--enrichment", "enrichment_percent", "enrichment in percent")],
+                    "receptivity and time factor for equal signal-to-noise"),
+}
+
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = argparse.ArgumentParser(prog="python -m nmrcalc", description="Offline NMR calculator.")
+    sub = parser.add_subparsers(dest="command", required=True)
+    for name, (_, args, help_text) in COMMANDS.items():
+        p = sub.add_parser(name, help=help_text, description=help_text)
+        for flag, key, h in args:
+            if flag.startswith("-"):
+                p.add_argument(flag, dest=key, help=h)
+            else:
+                p.add_argument(key, metavar=flag, help=h)
+        p.add_argument("--json", action="store_true", help="print the raw JSON response")
+    sub.add_parser("api", help="read one JSON request on stdin, print the JSON response")
+    sub.add_parser("demo", help="a worked example from an invented lab")
+    return parser
+
+
+def _fmt(value) -> str:
+    if isinstance(value, float):
+        return f"{value:.6g}" if abs(value) < 1e-3 or abs(value) >= 1e7 else f"{value:.6f}".rstrip("0").rstrip(".")
+    if value is None:
+        return "—"
+    return str(value)
+
+
+def render(response: dict) -> str:
+    """A readable text form of a response: scalars as lines, lists of records as tables."""
+    if not response["ok"]:
+        err = response["error"]
+        where = f" [{err['field']}]" if err.get("field") else ""
+        return f"error{where}: {err['message']}"
+    lines = []
+    for key, value in response["result"].items():
+        if isinstance(value, list) and value and isinstance(value[0], dict):
+            cols = list(value[0])
+            lines.append(f"{key}:")
+            cells = [[_fmt(row.get(c)) for c in cols] for row in value]
+            widths = [max(len(c), *(len(r[i]) for r in cells)) for i, c in enumerate(cols)]
+            lines.append("  " + "  ".join(c.ljust(w) for c, w in zip(cols, widths)))
+            lines += ["  " + "  ".join(x.ljust(w) for x, w in zip(r, widths)) for r in cells]
+        elif isinstance(value, dict):
+            lines.append(f"{key}: " + ", ".join(f"{k}={_fmt(v)}" for k, v in value.items()))
+        else:
+            lines.append(f"{key}: {_fmt(value) if not isinstance(value, list) else ', '.join(map(_fmt, value))}")
+    lines += [f"note: {w}" for w in response["warnings"]]
+    return "\n".join(lines)
+
+
+DEMO = [
+    ("The Harbourside teaching lab's magnet reads 400.13 MHz for 1H. Where is 29Si?",
+     {"op": "frequency", "nucleus": "29Si", "spectrometer": "400.13 MHz"}),
+    ("Sample KX-7, a made-up deuterated intermediate, shows J(C,D) = 19.3 Hz. J(C,H) in the protio form?",
+     {"op": "scale_coupling", "J": "19.3 Hz", "from": "2H", "to": "1H", "partner": "13C"}),
+    ("How much weaker is 15N than 13C at natural abundance?",
+     {"op": "sensitivity", "nucleus": "15N", "relative_to": "13C"}),
+    ("The NMR quantum at 500 MHz beside a 254 nm lamp photon:",
+     {"op": "energy", "nucleus": "1H", "spectrometer": "500 MHz", "temperature": "298 K", "wavelength": "254 nm"}),
+]
+
+
+def main(argv: list[str] | None = None) -> int:
+    args = build_parser().parse_args(argv)
+    if args.command == "api":
+        print(handle_json(sys.stdin.read()))
+        return 0
+    if args.command == "demo":
+        for question, request in DEMO:
+            print(f"# {question}\n{render(handle(request))}\n")
+        return 0
+    op, arg_spec, _ = COMMANDS[args.command]
+    request = {"op": op}
+    for _, key, _ in arg_spec:
+        value = getattr(args, key)
+        if value is not None:
+            request[key] = value
+    response = handle(request)
+    print(json.dumps(response, indent=2, ensure_ascii=False) if args.json else render(response))
+    return 0 if response["ok"] else 2

@@ -1,0 +1,1 @@
+"""Data tables of nmrcalc, each with its citation in its module docstring."""
