@@ -1,0 +1,73 @@
+"""Pure-Python symmetric eigensolver against numpy.linalg.eigh (the reference library)."""
+
+import numpy
+import pytest
+
+from nmrcalc.errors import InputError
+from nmrcalc.physics.eigen import eigh
+
+
+def _check_decomposition(A, values, vectors):
+    """Residual ‖A v − λ v‖ and orthonormality, in units of ‖A‖."""
+    V = numpy.array(vectors)
+    scale = max(1.0, numpy.abs(A).max())
+    assert numpy.abs(A @ V.T - V.T * numpy.array(values)).max() < 1e-11 * scale * len(A)
+    assert numpy.abs(V @ V.T - numpy.eye(len(A))).max() < 1e-12 * len(A)
+
+
+@pytest.mark.parametrize("n", [1, 2, 3, 4, 7, 16, 33, 70])
+def test_random_symmetric_matches_numpy(n):
+    rng = numpy.random.default_rng(1000 + n)
+    A = rng.normal(size=(n, n)) * 50.0
+    A = A + A.T
+    values, vectors = eigh(A.tolist())
+    ref_values, ref_vectors = numpy.linalg.eigh(A)  # reference: numpy.linalg.eigh
+    assert numpy.allclose(values, ref_values, rtol=0, atol=1e-10 * numpy.abs(A).max() * n)
+    _check_decomposition(A, values, vectors)
+    # eigenvectors agree up to sign (random spectra have no degeneracies)
+    overlaps = numpy.abs(numpy.sum(numpy.array(vectors).T * ref_vectors, axis=0))
+    assert numpy.allclose(overlaps, 1.0, atol=1e-8)
+
+
+def test_returns_plain_lists_sorted_ascending():
+    values, vectors = eigh([[2.0, 1.0], [1.0, 2.0]])
+    assert type(values) is list and all(type(x) is float for x in values)
+    assert type(vectors) is list and all(type(v) is list for v in vectors)
+    # eigenvalues of [[2,1],[1,2]] are 1 and 3 (hand calculation, from memory)
+    assert values == pytest.approx([1.0, 3.0], abs=1e-15)
+
+
+def test_degenerate_spectrum():
+    rng = numpy.random.default_rng(7)
+    Q, _ = numpy.linalg.qr(rng.normal(size=(9, 9)))
+    lam = numpy.array([-3.0, -3.0, -3.0, 0.0, 0.0, 1.5, 4.0, 4.0, 4.0])
+    A = Q @ numpy.diag(lam) @ Q.T
+    A = 0.5 * (A + A.T)
+    values, vectors = eigh(A.tolist())
+    assert numpy.allclose(values, numpy.linalg.eigvalsh(A), atol=1e-12)  # reference: numpy.linalg.eigvalsh
+    _check_decomposition(A, values, vectors)
+
+
+def test_diagonal_tridiagonal_zero_and_empty():
+    assert eigh([]) == ([], [])
+    assert eigh([[0.0, 0.0], [0.0, 0.0]])[0] == [0.0, 0.0]
+    values, vectors = eigh([[3.0, 0, 0], [0, 1.0, 0], [0, 0, 2.0]])
+    assert values == [1.0, 2.0, 3.0]
+    assert vectors == [[0.0, 1.0, 0.0], [0.0, 0.0, 1.0], [1.0, 0.0, 0.0]]
+    T = numpy.diag(numpy.full(12, 2.0)) + numpy.diag(numpy.full(11, -1.0), 1) + numpy.diag(numpy.full(11, -1.0), -1)
+    values, vectors = eigh(T.tolist())
+    assert numpy.allclose(values, numpy.linalg.eigvalsh(T), atol=1e-13)  # reference: numpy.linalg.eigvalsh
+    _check_decomposition(T, values, vectors)
+
+
+@pytest.mark.parametrize("bad", [
+    [[1.0, 2.0]],
+    [[1.0, 2.0], [3.0, 1.0]],
+    [[1.0, float("nan")], [float("nan"), 1.0]],
+    [[1.0, "x"], ["x", 1.0]],
+    [1.0, 2.0],
+])
+def test_bad_matrix_raises_input_error(bad):
+    with pytest.raises(InputError) as info:
+        eigh(bad)
+    assert info.value.field == "matrix"
