@@ -1,0 +1,219 @@
+"""Build the nmrcalc web page from web/, the Pyodide npm package and the nmrcalc sources.
+
+Outputs (default under dist/):
+
+* ``site/``        a folder for any static host: index.html, css, js, worker.js,
+                   the Pyodide core files, nmrcalc.zip, a service worker (sw.js)
+                   that caches every file for offline use, and a web manifest.
+* ``nmrcalc.html`` one self-contained file that works from file:// with no
+                   network: every asset embedded (gzip + base64 where it helps).
+
+Usage: python build_scripts/build_web.py [--out DIR] [--package-dir DIR]
+Needs ``npm ci`` (or ``npm install``) first, for node_modules/pyodide.
+"""
+
+from __future__ import annotations
+
+import argparse
+import base64
+import gzip
+import hashlib
+import io
+import json
+import shutil
+import struct
+import sys
+import zipfile
+import zlib
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parent.parent
+WEB = ROOT / "web"
+PYODIDE_DIR = ROOT / "node_modules" / "pyodide"
+CORE_FILES = ["pyodide.mjs", "pyodide.asm.mjs", "pyodide.asm.wasm", "python_stdlib.zip", "pyodide-lock.json"]
+ZIP_DATE = (2020, 1, 1, 0, 0, 0)
+
+SITE_CSP = (
+    "default-src 'self'; script-src 'self' 'wasm-unsafe-eval'; worker-src 'self'; "
+    "connect-src 'self'; img-src 'self'; style-src 'self'; manifest-src 'self'; "
+    "object-src 'none'; base-uri 'none'; form-action 'none'"
+)
+
+
+def page_scripts() -> list[Path]:
+    """Page scripts in load order: the shell, then panels by file name, then main.js."""
+    panels = sorted((WEB / "js" / "panels").glob("*.js"))
+    return [WEB / "js" / "core.js", *panels, WEB / "js" / "main.js"]
+
+
+def package_zip(package_dir: Path) -> bytes:
+    """Zip every .py file of the package (as ``nmrcalc/...``) plus the worker bridge module."""
+    buffer = io.BytesIO()
+    files = sorted(p for p in package_dir.rglob("*.py") if "__pycache__" not in p.parts)
+    if not (package_dir / "__init__.py").exists():
+        raise SystemExit(f"no Python package at {package_dir}")
+    with zipfile.ZipFile(buffer, "w", zipfile.ZIP_DEFLATED, compresslevel=9) as archive:
+        for path in files:
+            name = "nmrcalc/" + path.relative_to(package_dir).as_posix()
+            archive.writestr(zipfile.ZipInfo(name, ZIP_DATE), path.read_bytes(), zipfile.ZIP_DEFLATED)
+        archive.writestr(zipfile.ZipInfo("nmrcalc_bridge.py", ZIP_DATE), (WEB / "bridge.py").read_bytes(), zipfile.ZIP_DEFLATED)
+    return buffer.getvalue()
+
+
+def package_version(package_dir: Path) -> str:
+    for line in (package_dir / "__init__.py").read_text().splitlines():
+        if line.startswith("__version__"):
+            return line.split("=", 1)[1].strip().strip("\"'")
+    return "dev"
+
+
+def sha256_source(text: str) -> str:
+    return "'sha256-" + base64.b64encode(hashlib.sha256(text.encode()).digest()).decode() + "'"
+
+
+def png(size: int) -> bytes:
+    """A small app icon: a teal tile with a white doublet-of-peaks trace, as PNG bytes."""
+    def line_height(x: float) -> float:
+        peaks = ((0.36, 0.55), (0.46, 0.55), (0.64, 1.0))
+        width = 0.018
+        return sum(h * width**2 / ((x - c) ** 2 + width**2) for c, h in peaks)
+
+    rows = []
+    for py in range(size):
+        y = py / size
+        row = bytearray([0])
+        for px in range(size):
+            x = px / size
+            corner = 0.18
+            dx = max(corner - x, 0, x - (1 - corner))
+            dy = max(corner - y, 0, y - (1 - corner))
+            if dx * dx + dy * dy > corner * corner:
+                row += b"\x00\x00\x00\x00"
+                continue
+            base = 0.78 - 0.56 * line_height(x)
+            on_trace = abs(y - base) < 0.022 and 0.12 < x < 0.88
+            on_axis = abs(y - 0.82) < 0.012 and 0.12 < x < 0.88
+            row += b"\xff\xff\xff\xff" if (on_trace or on_axis) else bytes((29, 90, 99, 255))
+        rows.append(bytes(row))
+
+    def chunk(kind: bytes, data: bytes) -> bytes:
+        return struct.pack(">I", len(data)) + kind + data + struct.pack(">I", zlib.crc32(kind + data))
+
+    header = struct.pack(">IIBBBBB", size, size, 8, 6, 0, 0, 0)
+    return b"\x89PNG\r\n\x1a\n" + chunk(b"IHDR", header) + chunk(b"IDAT", zlib.compress(b"".join(rows), 9)) + chunk(b"IEND", b"")
+
+
+def manifest() -> str:
+    return json.dumps({
+        "name": "nmrcalc — offline NMR calculator",
+        "short_name": "nmrcalc",
+        "description": "Larmor frequencies, isotopologue couplings, energies and receptivities, computed offline.",
+        "start_url": "./index.html",
+        "scope": "./",
+        "display": "standalone",
+        "background_color": "#f4f7f7",
+        "theme_color": "#1d5a63",
+        "icons": [
+            {"src": "icons/icon-192.png", "sizes": "192x192", "type": "image/png"},
+            {"src": "icons/icon-512.png", "sizes": "512x512", "type": "image/png", "purpose": "any maskable"},
+        ],
+    }, indent=2)
+
+
+def service_worker(files: list[str], version: str) -> str:
+    """sw.js: cache every site file at install, answer from the cache first."""
+    return (WEB / "sw.template.js").read_text().replace("@CACHE@", json.dumps(f"nmrcalc-{version}")).replace(
+        "@FILES@", json.dumps(["./", *files], indent=2)
+    )
+
+
+def fill(template: str, head: str, body: str, csp: str) -> str:
+    return template.replace("@CSP@", csp).replace("@HEAD@", head).replace("@BODY@", body)
+
+
+def build_site(out: Path, package_bytes: bytes) -> None:
+    if out.exists():
+        shutil.rmtree(out)
+    (out / "icons").mkdir(parents=True)
+    for name in CORE_FILES:
+        shutil.copyfile(PYODIDE_DIR / name, out / name)
+    (out / "nmrcalc.zip").write_bytes(package_bytes)
+    shutil.copyfile(WEB / "worker.js", out / "worker.js")
+    shutil.copyfile(WEB / "css" / "app.css", out / "app.css")
+    scripts = page_scripts()
+    (out / "js").mkdir()
+    for path in scripts:
+        target = out / "js" / path.name
+        shutil.copyfile(path, target)
+    (out / "icons" / "icon-192.png").write_bytes(png(192))
+    (out / "icons" / "icon-512.png").write_bytes(png(512))
+    (out / "manifest.webmanifest").write_text(manifest())
+    head = "\n".join([
+        '<link rel="manifest" href="manifest.webmanifest">',
+        '<link rel="icon" href="icons/icon-192.png" type="image/png">',
+        '<link rel="apple-touch-icon" href="icons/icon-192.png">',
+        '<link rel="stylesheet" href="app.css">',
+    ])
+    body = "\n".join(f'<script defer src="js/{p.name}"></script>' for p in scripts)
+    (out / "index.html").write_text(fill((WEB / "index.html").read_text(), head, body, SITE_CSP))
+    files = sorted(p.relative_to(out).as_posix() for p in out.rglob("*") if p.is_file())
+    version = hashlib.sha256(b"".join((out / f).read_bytes() for f in files)).hexdigest()[:12]
+    (out / "sw.js").write_text(service_worker(files, version))
+
+
+def data_block(name: str, payload: bytes, kind: str, gzip_it: bool) -> str:
+    data = gzip.compress(payload, 9, mtime=0) if gzip_it else payload
+    text = base64.b64encode(data).decode()
+    return (f'<script type="application/octet-stream" class="nmrcalc-asset" data-name="{name}" '
+            f'data-kind="{kind}" data-gzip="{1 if gzip_it else 0}">{text}</script>')
+
+
+def build_single(out_file: Path, package_bytes: bytes) -> None:
+    css = (WEB / "css" / "app.css").read_text()
+    script = "\n".join(p.read_text() for p in page_scripts())
+    blocks = [
+        '<script type="application/octet-stream" id="nmrcalc-worker">'
+        + base64.b64encode((WEB / "worker.js").read_bytes()).decode() + "</script>",
+        data_block("pyodide.mjs", (PYODIDE_DIR / "pyodide.mjs").read_bytes(), "module", False),
+        data_block("pyodide.asm.mjs", (PYODIDE_DIR / "pyodide.asm.mjs").read_bytes(), "module", False),
+        data_block("pyodide.asm.wasm", (PYODIDE_DIR / "pyodide.asm.wasm").read_bytes(), "asset", True),
+        data_block("python_stdlib.zip", (PYODIDE_DIR / "python_stdlib.zip").read_bytes(), "asset", True),
+        data_block("pyodide-lock.json", (PYODIDE_DIR / "pyodide-lock.json").read_bytes(), "asset", True),
+        data_block("nmrcalc.zip", package_bytes, "asset", False),
+    ]
+    csp = (
+        f"default-src 'none'; script-src {sha256_source(script)} data: 'wasm-unsafe-eval'; worker-src data:; "
+        f"style-src {sha256_source(css)}; img-src data:; connect-src 'none'; object-src 'none'; "
+        "base-uri 'none'; form-action 'none'"
+    )
+    head = '<link rel="icon" href="data:,">\n<style>' + css + "</style>"
+    body = "\n".join(blocks) + "\n<script>" + script + "</script>"
+    out_file.parent.mkdir(parents=True, exist_ok=True)
+    out_file.write_text(fill((WEB / "index.html").read_text(), head, body, csp))
+
+
+def core_size() -> int:
+    """Total bytes of the Pyodide core files the page ships."""
+    return sum((PYODIDE_DIR / name).stat().st_size for name in CORE_FILES)
+
+
+def main(argv: list[str] | None = None) -> int:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--out", type=Path, default=ROOT / "dist", help="output folder (default dist/)")
+    parser.add_argument("--package-dir", type=Path, default=ROOT / "nmrcalc", help="the nmrcalc package to pack")
+    args = parser.parse_args(argv)
+    missing = [name for name in CORE_FILES if not (PYODIDE_DIR / name).exists()]
+    if missing:
+        print(f"missing {', '.join(missing)} in {PYODIDE_DIR}: run `npm ci` in {ROOT} first", file=sys.stderr)
+        return 1
+    package_bytes = package_zip(args.package_dir)
+    build_site(args.out / "site", package_bytes)
+    build_single(args.out / "nmrcalc.html", package_bytes)
+    single = (args.out / "nmrcalc.html").stat().st_size
+    print(f"nmrcalc {package_version(args.package_dir)}: {args.out / 'site'} and {args.out / 'nmrcalc.html'}")
+    print(f"single file {single / 1e6:.2f} MB = {single / core_size():.3f} x Pyodide core ({core_size() / 1e6:.2f} MB)")
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())

@@ -1,0 +1,412 @@
+// nmrcalc page shell: worker boot, the one generic API call, tabs, form and
+// result helpers. Panels live in js/panels/*.js and register themselves with
+// NMR.registerPanel({id, title, build(container)}). No physics here: every
+// number shown comes from nmrcalc.api.handle in the worker.
+"use strict";
+
+const NMR = (() => {
+  const STORE_KEY = "nmrcalc.inputs.v1";
+  const TAB_KEY = "nmrcalc.tab.v1";
+  const panels = [];
+  const waiting = new Map();
+  let worker = null;
+  let nextId = 1;
+  let markReady;
+  const ready = new Promise((resolve) => { markReady = resolve; });
+  const timings = { navigationStart: 0, workerStart: null, ready: null, firstResult: null };
+  window.nmrcalcStatus = { state: "starting", error: null, timings };
+
+  // ---------- storage ----------
+  function loadStore() {
+    try {
+      return JSON.parse(localStorage.getItem(STORE_KEY) || "{}") || {};
+    } catch (err) {
+      return {};
+    }
+  }
+  const store = loadStore();
+  function remember(key, value) {
+    store[key] = value;
+    try {
+      localStorage.setItem(STORE_KEY, JSON.stringify(store));
+    } catch (err) {
+      // storage full or disabled: inputs simply will not survive a reload
+    }
+  }
+
+  // ---------- DOM helpers (text only, never innerHTML) ----------
+  function el(tag, attrs, ...children) {
+    const node = document.createElement(tag);
+    for (const [name, value] of Object.entries(attrs || {})) {
+      if (value === null || value === undefined || value === false) continue;
+      if (name === "class") node.className = value;
+      else if (name === "text") node.textContent = value;
+      else if (name.startsWith("on")) node.addEventListener(name.slice(2), value);
+      else node.setAttribute(name, value === true ? "" : String(value));
+    }
+    for (const child of children) {
+      if (child === null || child === undefined) continue;
+      node.append(child instanceof Node ? child : document.createTextNode(String(child)));
+    }
+    return node;
+  }
+
+  // "13C" -> <span><sup>13</sup>C</span>; anything else as plain text.
+  function nuclideLabel(symbol) {
+    const match = /^(\d+)([A-Za-z]+)$/.exec(String(symbol));
+    if (!match) return el("span", { class: "nuc" }, String(symbol));
+    return el("span", { class: "nuc" }, el("sup", {}, match[1]), match[2]);
+  }
+
+  // Display formatting only (significant digits); no arithmetic on the values.
+  function fmt(value, digits) {
+    if (value === null || value === undefined) return "—";
+    if (typeof value !== "number") return String(value);
+    if (value === 0) return "0";
+    const abs = Math.abs(value);
+    if (abs >= 1e-3 && abs < 1e7) {
+      const text = value.toPrecision(digits || 6);
+      return text.includes("e") ? String(Number(text)) : text;
+    }
+    const [mantissa, exponent] = value.toExponential((digits || 6) - 1).split("e");
+    return `${mantissa} × 10^${Number(exponent)}`;
+  }
+  function fixed(value, places) {
+    if (value === null || value === undefined) return "—";
+    return typeof value === "number" ? value.toFixed(places) : String(value);
+  }
+
+  // Render "a × 10^b" with a real superscript.
+  function numberNode(text) {
+    const match = /^(.*) × 10\^(-?\d+)$/.exec(text);
+    if (!match) return document.createTextNode(text);
+    return el("span", {}, `${match[1]} × 10`, el("sup", {}, match[2]));
+  }
+
+  // ---------- worker and the one API call ----------
+  function setBoot(fraction, text, state) {
+    const fill = document.getElementById("boot-fill");
+    const label = document.getElementById("boot-text");
+    const box = document.getElementById("boot");
+    if (fill) fill.style.width = `${Math.round(fraction * 100)}%`;
+    if (label) label.textContent = text;
+    if (box && state) box.dataset.state = state;
+  }
+
+  const STAGES = { decode: [0.15, "Unpacking embedded files…"], runtime: [0.35, "Starting Python…"], package: [0.8, "Loading nmrcalc…"], import: [0.92, "Importing nmrcalc…"] };
+
+  function onWorkerMessage(event) {
+    const message = event.data;
+    if (message.type === "progress") {
+      const [fraction, text] = STAGES[message.stage] || [0.5, message.detail];
+      setBoot(fraction, text, "loading");
+    } else if (message.type === "ready") {
+      timings.ready = performance.now();
+      window.nmrcalcStatus.state = "ready";
+      window.nmrcalcStatus.python = message.python;
+      setBoot(1, `Ready — Python in this browser (${(message.ms / 1000).toFixed(1)} s)`, "ready");
+      document.body.classList.add("is-ready");
+      markReady();
+    } else if (message.type === "boot-error") {
+      window.nmrcalcStatus.state = "failed";
+      window.nmrcalcStatus.error = message.message;
+      setBoot(1, "Could not start Python in this browser. Reload the page; if it persists, try another browser.", "failed");
+      console.error(message.message);
+    } else if (message.type === "reply") {
+      const resolve = waiting.get(message.id);
+      waiting.delete(message.id);
+      if (resolve) resolve(JSON.parse(message.text));
+    }
+  }
+
+  function inlineAssets() {
+    const assets = {};
+    const modules = {};
+    for (const node of document.querySelectorAll("script.nmrcalc-asset")) {
+      const name = node.dataset.name;
+      const data = node.textContent.trim();
+      if (node.dataset.kind === "module") modules[name] = `data:text/javascript;base64,${data}`;
+      else assets[name] = { data, gzip: node.dataset.gzip === "1" };
+    }
+    return { assets, modules };
+  }
+
+  function startWorker() {
+    timings.workerStart = performance.now();
+    const workerNode = document.getElementById("nmrcalc-worker");
+    if (workerNode) {
+      // Single file on file://: opaque origin, so the worker and the Pyodide
+      // modules come from data: URLs and the rest is passed by message.
+      const { assets, modules } = inlineAssets();
+      worker = new Worker(`data:text/javascript;base64,${workerNode.textContent.trim()}`, { type: "module" });
+      worker.addEventListener("message", onWorkerMessage);
+      worker.postMessage({ type: "boot", mode: "inline", indexURL: "https://nmrcalc.invalid/", assets, modules });
+    } else {
+      worker = new Worker("worker.js", { type: "module" });
+      worker.addEventListener("message", onWorkerMessage);
+      worker.postMessage({ type: "boot", mode: "site" });
+    }
+    worker.addEventListener("error", (event) => {
+      onWorkerMessage({ data: { type: "boot-error", message: event.message || "worker failed to start" } });
+    });
+  }
+
+  /** Send one request object to nmrcalc.api.handle; resolves with its response object. */
+  function api(request) {
+    return ready.then(() => new Promise((resolve) => {
+      const id = nextId;
+      nextId += 1;
+      waiting.set(id, resolve);
+      worker.postMessage({ type: "call", id, text: JSON.stringify(request) });
+    }));
+  }
+
+  // ---------- forms ----------
+  // A field: {id, label, kind: "text"|"select"|"checkbox", value, keys, hint,
+  //           options: [[value, label]], units: [{unit, label, key}], list, inputmode}
+  // keys: the request keys whose errors belong beside this field.
+  function buildField(form, field) {
+    const inputId = `${form.id}-${field.id}`;
+    const storeKey = `${form.id}.${field.id}`;
+    const saved = store[storeKey];
+    const errorId = `${inputId}-error`;
+    const hintId = field.hint ? `${inputId}-hint` : null;
+    const wrap = el("div", { class: `field field-${field.kind || "text"}${field.wide ? " field-wide" : ""}` });
+    let input;
+    let unitSelect = null;
+    if (field.kind === "checkbox") {
+      input = el("input", { type: "checkbox", id: inputId, "aria-describedby": errorId });
+      input.checked = saved !== undefined ? Boolean(saved.value) : Boolean(field.value);
+      wrap.append(el("label", { class: "check", for: inputId }, input, el("span", {}, field.label)));
+    } else {
+      if (field.kind === "select") {
+        input = el("select", { id: inputId });
+        for (const [value, label] of field.options) input.append(el("option", { value }, label));
+      } else {
+        input = el("input", {
+          type: "text", id: inputId, autocomplete: "off", spellcheck: "false",
+          inputmode: field.inputmode || null, list: field.list || null, placeholder: field.placeholder || null,
+        });
+      }
+      input.value = saved !== undefined ? saved.value : (field.value ?? "");
+      input.setAttribute("aria-describedby", [hintId, errorId].filter(Boolean).join(" "));
+      wrap.append(el("label", { for: inputId }, field.label));
+      const row = el("div", { class: "input-row" }, input);
+      if (field.units) {
+        unitSelect = el("select", { id: `${inputId}-unit`, "aria-label": `${field.label} unit` });
+        for (const option of field.units) unitSelect.append(el("option", { value: option.unit }, option.label));
+        unitSelect.value = saved && saved.unit ? saved.unit : field.units[0].unit;
+        row.append(unitSelect);
+      }
+      wrap.append(row);
+    }
+    if (hintId) wrap.append(el("p", { class: "hint", id: hintId }, field.hint));
+    const error = el("p", { class: "field-error", id: errorId, "aria-live": "polite" });
+    wrap.append(error);
+    const state = {
+      field, input, unitSelect, error, wrap,
+      read() {
+        if (field.kind === "checkbox") return { value: input.checked };
+        return { value: input.value.trim(), unit: unitSelect ? unitSelect.value : null };
+      },
+      save() {
+        remember(storeKey, field.kind === "checkbox" ? { value: input.checked } : { value: input.value, unit: unitSelect ? unitSelect.value : null });
+      },
+      setError(message) {
+        error.textContent = message || "";
+        wrap.classList.toggle("has-error", Boolean(message));
+        if (message) input.setAttribute("aria-invalid", "true");
+        else input.removeAttribute("aria-invalid");
+      },
+      ownsKey(key) {
+        const keys = field.keys || [field.id];
+        return keys.some((k) => key === k || key.startsWith(`${k}.`));
+      },
+    };
+    return state;
+  }
+
+  // A form: {id, title, intro, fields, request(values) -> object|null, render(result, out, response), submitLabel}
+  function form(spec) {
+    const section = el("section", { class: "card", id: `card-${spec.id}`, "aria-labelledby": `${spec.id}-title` });
+    section.append(el("h2", { id: `${spec.id}-title` }, spec.title));
+    if (spec.intro) section.append(el("p", { class: "intro" }, spec.intro));
+    const formNode = el("form", { class: "calc-form", id: `form-${spec.id}`, novalidate: true });
+    const fields = spec.fields.map((f) => buildField(spec, f));
+    const grid = el("div", { class: "fields" });
+    for (const f of fields) grid.append(f.wrap);
+    formNode.append(grid);
+    const formError = el("p", { class: "form-error", id: `${spec.id}-form-error`, "aria-live": "polite" });
+    const button = el("button", { type: "submit", class: "primary" }, spec.submitLabel || "Calculate");
+    formNode.append(el("div", { class: "actions" }, button, formError));
+    const out = el("div", { class: "result", id: `${spec.id}-result`, "aria-live": "polite" });
+    const warn = el("ul", { class: "warnings", id: `${spec.id}-warnings` });
+    section.append(formNode, out, warn);
+
+    let sequence = 0;
+    let timer = null;
+    async function run() {
+      const values = {};
+      for (const f of fields) {
+        f.save();
+        values[f.field.id] = f.read();
+      }
+      const request = spec.request(values);
+      const mine = ++sequence;
+      const response = await api(request);
+      if (mine !== sequence) return;
+      for (const f of fields) f.setError("");
+      formError.textContent = "";
+      warn.replaceChildren();
+      section.classList.toggle("is-error", !response.ok);
+      if (!response.ok) {
+        const { field, message } = response.error;
+        const owner = field ? fields.find((f) => f.ownsKey(field)) : null;
+        if (owner) owner.setError(message);
+        else formError.textContent = message;
+        out.classList.add("stale");
+        return;
+      }
+      out.classList.remove("stale");
+      spec.render(response.result, out, response);
+      for (const text of response.warnings || []) warn.append(el("li", {}, text));
+      if (timings.firstResult === null) timings.firstResult = performance.now();
+    }
+    formNode.addEventListener("submit", (event) => {
+      event.preventDefault();
+      clearTimeout(timer);
+      run();
+    });
+    const schedule = () => {
+      clearTimeout(timer);
+      timer = setTimeout(run, 450);
+    };
+    formNode.addEventListener("input", schedule);
+    formNode.addEventListener("change", schedule);
+    ready.then(run);
+    return { node: section, run, fields };
+  }
+
+  // A definition list of results: rows = [[label, text or Node, unit?]]
+  function resultList(rows, extraClass) {
+    const list = el("dl", { class: `values ${extraClass || ""}` });
+    for (const [label, value, unit] of rows) {
+      const shown = value instanceof Node ? value : numberNode(String(value));
+      list.append(el("div", { class: "value" }, el("dt", {}, label), el("dd", {}, shown, unit ? el("span", { class: "unit" }, ` ${unit}`) : null)));
+    }
+    return list;
+  }
+
+  // A sortable table: columns = [{key, label, value(row) -> sortable, show(row) -> text|Node, numeric}]
+  function sortableTable(columns, rows, caption) {
+    let sortKey = null;
+    let direction = 1;
+    const table = el("table", { class: "data" });
+    if (caption) table.append(el("caption", {}, caption));
+    const headRow = el("tr");
+    const body = el("tbody");
+    function draw() {
+      const ordered = rows.slice();
+      if (sortKey !== null) {
+        const column = columns.find((c) => c.key === sortKey);
+        ordered.sort((a, b) => {
+          const x = column.value(a);
+          const y = column.value(b);
+          if (x === y) return 0;
+          if (x === null || x === undefined) return 1;
+          if (y === null || y === undefined) return -1;
+          return (x < y ? -1 : 1) * direction;
+        });
+      }
+      body.replaceChildren(...ordered.map((row) => el("tr", {}, ...columns.map((c) => {
+        const shown = c.show(row);
+        return el("td", { class: c.numeric ? "num" : null }, shown instanceof Node ? shown : String(shown));
+      }))));
+      for (const th of headRow.children) {
+        const key = th.dataset.key;
+        th.setAttribute("aria-sort", key === sortKey ? (direction > 0 ? "ascending" : "descending") : "none");
+      }
+    }
+    for (const column of columns) {
+      const button = el("button", { type: "button", class: "sort" }, column.label);
+      button.addEventListener("click", () => {
+        direction = sortKey === column.key ? -direction : 1;
+        sortKey = column.key;
+        draw();
+      });
+      headRow.append(el("th", { scope: "col", "data-key": column.key, class: column.numeric ? "num" : null }, button));
+    }
+    table.append(el("thead", {}, headRow), body);
+    draw();
+    return el("div", { class: "table-wrap", tabindex: "0", role: "region", "aria-label": caption || "table" }, table);
+  }
+
+  // ---------- panels and tabs ----------
+  function registerPanel(panel) {
+    panels.push(panel);
+  }
+
+  function selectTab(id, focus) {
+    for (const panel of panels) {
+      const selected = panel.id === id;
+      panel.tab.setAttribute("aria-selected", String(selected));
+      panel.tab.tabIndex = selected ? 0 : -1;
+      panel.section.hidden = !selected;
+      if (selected && focus) panel.tab.focus();
+    }
+    try {
+      localStorage.setItem(TAB_KEY, id);
+    } catch (err) {
+      // ignore: the first tab is shown next time
+    }
+  }
+
+  function buildShell() {
+    const tabs = document.getElementById("tabs");
+    const main = document.getElementById("main");
+    for (const panel of panels) {
+      panel.tab = el("button", {
+        type: "button", role: "tab", id: `tab-${panel.id}`, "aria-controls": `panel-${panel.id}`, class: "tab",
+      }, panel.title);
+      panel.tab.addEventListener("click", () => selectTab(panel.id, false));
+      tabs.append(panel.tab);
+      panel.section = el("section", { role: "tabpanel", id: `panel-${panel.id}`, "aria-labelledby": `tab-${panel.id}`, class: "panel" });
+      main.append(panel.section);
+      panel.build(panel.section);
+    }
+    tabs.addEventListener("keydown", (event) => {
+      const index = panels.findIndex((p) => p.tab === document.activeElement);
+      if (index < 0) return;
+      let next = null;
+      if (event.key === "ArrowRight") next = (index + 1) % panels.length;
+      else if (event.key === "ArrowLeft") next = (index - 1 + panels.length) % panels.length;
+      else if (event.key === "Home") next = 0;
+      else if (event.key === "End") next = panels.length - 1;
+      if (next === null) return;
+      event.preventDefault();
+      selectTab(panels[next].id, true);
+    });
+    if (panels.length === 0) return;
+    let first = panels[0].id;
+    try {
+      const saved = localStorage.getItem(TAB_KEY);
+      if (saved && panels.some((p) => p.id === saved)) first = saved;
+    } catch (err) {
+      // ignore
+    }
+    selectTab(first, false);
+  }
+
+  function registerServiceWorker() {
+    if (!("serviceWorker" in navigator) || !location.protocol.startsWith("http")) return;
+    navigator.serviceWorker.register("sw.js").catch((err) => console.warn("offline cache unavailable:", err));
+  }
+
+  function start() {
+    buildShell();
+    startWorker();
+    registerServiceWorker();
+  }
+
+  return { api, ready, el, fmt, fixed, nuclideLabel, numberNode, form, resultList, sortableTable, registerPanel, start, timings };
+})();
