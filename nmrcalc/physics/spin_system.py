@@ -1,0 +1,621 @@
+"""Exact liquid-state spectra of coupled spin systems (strong and weak coupling).
+
+Hamiltonian, in Hz, in the rotating frame of each nuclide (Pople, Schneider &
+Bernstein, *High-resolution Nuclear Magnetic Resonance*, 1959, ch. 6)::
+
+    H = Σ_k ν_k I_zk + Σ_{k<l like} J_kl I_k·I_l + Σ_{k<l unlike} J_kl I_zk I_zl
+
+"Like" means the same nucleus label (strong coupling); spins of different
+nuclides are coupled weakly, because their Larmor frequencies differ by MHz.
+Spins may have any I with 2I integer.  The spectrum of the observed nuclide is
+the set of transitions i → f with frequency ν = E_f − E_i and intensity
+|<f|F_x|i>|², F_x = Σ I_x over the observed spins, in the high-temperature limit
+(all states equally populated).  Convention: f has M_obs one higher than i, so
+the lines come from the matrix elements of F_+ = F_x + iF_y, |<f|F_x|i>|² =
+|<f|F_+|i>|²/4; an uncoupled spin then gives a line at +offset_Hz, the sign in
+which shifts are quoted.  (The ΔM_obs = −1 convention gives the same lines with
+ν = E_i − E_f.)
+
+Factoring, all exact:
+1. Connected components: sites joined by no chain of non-zero couplings have
+   commuting Hamiltonians, so each component with observed spins is solved alone.
+2. Magnetic equivalence: a ``Site`` with ``count`` n stands for n spins with the
+   same nucleus and shift and *identical* couplings to every other spin.  The n
+   spins are decomposed into total spins F with multiplicities (Clebsch–Gordan
+   counting, ``total_spin_multiplicities``).  H and F_x conserve each group's F,
+   and the couplings of the group to another spin become J F·I, so every choice of
+   F per group is a smaller problem with one spin F per group, weighted by the
+   product of multiplicities.  Couplings inside a group only shift whole
+   F-manifolds and never appear in the spectrum, so they are not an input.  This
+   is valid only for magnetic equivalence: chemically equivalent spins that couple
+   differently to a third spin (AA′XX′) must be given as separate sites
+   (``equivalence_caveats`` detects the situation).  ``factor_equivalence=False``
+   expands every site into individual spins instead (same lines, more work).
+3. Blocks: H conserves the total M of each nuclide separately, so it is
+   block-diagonal in the product basis with one block per tuple of per-nuclide
+   M; only blocks are diagonalized, and F_+ links block (M_obs, M_rest) to
+   (M_obs + 1, M_rest).
+
+Normalization: intensities are divided by the exact sum rule
+Σ |<f|F_x|i>|² over ΔM_obs = +1 = Tr(F_x²)/2 = D Σ_obs I(I+1)/6 (D = Hilbert
+dimension), so they sum to 1 (less whatever ``min_rel_intensity`` drops); each
+observed spin contributes I(I+1) / Σ_obs I(I+1) of the total, as in first order.
+
+Public interface::
+
+    Site(nucleus: str, spin: Fraction, offset_Hz: float, count: int = 1)
+    simulate(sites, couplings, observe, *, use_numpy=None, factor_equivalence=True,
+             merge_tol_Hz=1e-3, min_rel_intensity=1e-6, progress=None)
+        -> list[tuple[float, float]]   # (freq_Hz, intensity), ascending freq_Hz
+    first_order_checks(sites, couplings, threshold=10.0, spectrometer_1H_MHz=None)
+        -> list[dict]
+    equivalence_caveats(sites, couplings, shift_tol_Hz=1e-6, J_tol_Hz=1e-6) -> list[str]
+    total_spin_multiplicities(n, spin) -> list[tuple[Fraction, int]]
+    problem_size(sites, couplings, observe, *, factor_equivalence=True)
+        -> dict(largest_block=int | None, total_dim=int)
+    MAX_BLOCK_DIM, MAX_TOTAL_DIM   # size limits (after factoring): InputError "too_large"
+    MAX_SPIN, MAX_COUNT            # input bounds on Site.spin and Site.count
+
+``couplings`` is a list of ``(i, j, J_Hz)`` with i, j site indices (i ≠ j); a
+coupling between two sites applies to every pair of spins across them.  Offsets
+are in Hz relative to each nuclide's own reference (ppm × spectrometer
+frequency of that nuclide, converted by the caller); result frequencies are in
+the same frame.
+"""
+
+import itertools
+import math
+from dataclasses import dataclass
+from fractions import Fraction
+from operator import mul
+
+from nmrcalc.errors import InputError
+from nmrcalc.physics.eigen import eigh
+
+# Size limits, applied after factoring (per connected component).  A 10-spin-1/2
+# like-nuclide system has a largest block of 252 (about 20 s in pure CPython,
+# under 1 s with numpy); 8 spins-1/2 (largest block 70) take about 0.3 s.
+MAX_BLOCK_DIM = 252
+MAX_TOTAL_DIM = 4096
+# Input bounds that keep the size check itself instant (nuclear ground-state
+# spins stay below 10; a site of more than 64 equivalent spins is not chemistry).
+MAX_SPIN = 10
+MAX_COUNT = 64
+
+
+@dataclass(frozen=True)
+class Site:
+    """A set of ``count`` magnetically equivalent spins of one nucleus at one shift.
+
+    ``nucleus`` is a label such as "1H" (sites with the same label are like
+    spins and must have the same ``spin``); ``offset_Hz`` is the shift in Hz from
+    that nuclide's reference.
+    """
+
+    nucleus: str
+    spin: Fraction
+    offset_Hz: float
+    count: int = 1
+
+
+# ---------------------------------------------------------------- validation
+
+def _checked_sites(sites) -> list[Site]:
+    try:
+        sites = list(sites)
+    except TypeError:
+        raise InputError("sites must be a list of Site", field="sites") from None
+    if not sites:
+        raise InputError("at least one site is needed", field="sites")
+    spin_of: dict[str, Fraction] = {}
+    out = []
+    for k, site in enumerate(sites):
+        where = f"sites.{k}"
+        if not isinstance(site, Site):
+            raise InputError("each site must be a Site", field=where)
+        if not isinstance(site.nucleus, str) or not site.nucleus.strip():
+            raise InputError("nucleus must be a non-empty label such as '1H'", field=f"{where}.nucleus")
+        spin = _checked_spin(site.spin, f"{where}.spin")
+        if spin_of.setdefault(site.nucleus, spin) != spin:
+            raise InputError(
+                f"nucleus {site.nucleus} was given spin {spin_of[site.nucleus]} before, now {spin}",
+                field=f"{where}.spin",
+            )
+        offset = _checked_real(site.offset_Hz, f"{where}.offset_Hz")
+        if isinstance(site.count, bool) or not isinstance(site.count, int) or site.count < 1:
+            raise InputError("count must be an integer >= 1", field=f"{where}.count")
+        if site.count > MAX_COUNT:
+            raise InputError(f"count above {MAX_COUNT} is not supported", field=f"{where}.count")
+        out.append(Site(site.nucleus, spin, offset, site.count))
+    return out
+
+
+def _checked_spin(value, field: str) -> Fraction:
+    if isinstance(value, bool):
+        raise InputError("spin must be a positive multiple of 1/2", field=field)
+    try:
+        spin = Fraction(value)
+    except (TypeError, ValueError, OverflowError):
+        raise InputError("spin must be a positive multiple of 1/2", field=field) from None
+    if spin <= 0 or (2 * spin).denominator != 1:
+        raise InputError(f"spin must be a positive multiple of 1/2, got {spin}", field=field)
+    if spin > MAX_SPIN:
+        raise InputError(f"spin {spin} is above the supported maximum {MAX_SPIN}", field=field)
+    return spin
+
+
+def _checked_real(value, field: str) -> float:
+    if isinstance(value, bool):
+        raise InputError("must be a number", field=field)
+    try:
+        x = float(value)
+    except (TypeError, ValueError):
+        raise InputError("must be a number", field=field) from None
+    if not math.isfinite(x):
+        raise InputError("must be finite", field=field)
+    return x
+
+
+def _checked_couplings(couplings, n_sites: int) -> dict[tuple[int, int], float]:
+    """Map (i, j) with i < j to J_Hz; zero couplings are kept out of the map."""
+    try:
+        couplings = list(couplings)
+    except TypeError:
+        raise InputError("couplings must be a list of (i, j, J_Hz)", field="couplings") from None
+    seen: dict[tuple[int, int], float] = {}
+    for k, entry in enumerate(couplings):
+        where = f"couplings.{k}"
+        try:
+            i, j, J = entry
+        except (TypeError, ValueError):
+            raise InputError("a coupling is (i, j, J_Hz)", field=where) from None
+        for idx in (i, j):
+            if isinstance(idx, bool) or not isinstance(idx, int) or not 0 <= idx < n_sites:
+                raise InputError(f"site index {idx!r} is not in 0..{n_sites - 1}", field=f"{where}.between")
+        if i == j:
+            raise InputError(
+                f"a coupling needs two different sites (site {i} with itself; couplings inside "
+                "an equivalent group do not show in the spectrum)",
+                field=f"{where}.between",
+            )
+        pair = (min(i, j), max(i, j))
+        if pair in seen:
+            raise InputError(f"sites {pair[0]} and {pair[1]} are coupled twice", field=f"{where}.between")
+        seen[pair] = _checked_real(J, f"{where}.J_Hz")
+    return {pair: J for pair, J in seen.items() if J != 0.0}
+
+
+# ------------------------------------------------------- spin composition
+
+def total_spin_multiplicities(n: int, spin) -> list[tuple[Fraction, int]]:
+    """Total spins F (descending) and multiplicities for n spins of ``spin``.
+
+    Clebsch–Gordan counting: the number N(M) of product states with total M is
+    the coefficient of x^M in (x^-I + ... + x^I)^n, and F occurs N(F) − N(F+1)
+    times (Pople, Schneider & Bernstein 1959, sec. 6-4).  For 3 spins-1/2:
+    F = 3/2 once, F = 1/2 twice.
+    """
+    spin = _checked_spin(spin, "spin")
+    if isinstance(n, bool) or not isinstance(n, int) or not 1 <= n <= MAX_COUNT:
+        raise InputError(f"count must be an integer from 1 to {MAX_COUNT}", field="count")
+    counts = _state_counts([int(2 * spin)] * n)  # index j ↔ 2M = j − top
+    top = len(counts) - 1  # = 2 n I
+    out = []
+    for j in range(top, (top - 1) // 2, -1):  # 2M from n·2I down to 0 or 1
+        above = counts[j + 1] if j + 1 <= top else 0
+        mult = counts[j] - above
+        if mult:
+            out.append((Fraction(2 * j - top, 2), mult))
+    return out
+
+
+def _state_counts(two_spins: list[int]) -> list[int]:
+    """Number of product states per total M for spins 2F = ``two_spins``.
+
+    Index j counts Σ (m_k + F_k), i.e. M = j − Σ F_k, from the lowest M upward.
+    """
+    counts = [1]
+    for two_f in two_spins:
+        new = [0] * (len(counts) + two_f)
+        for j, c in enumerate(counts):
+            for step in range(two_f + 1):
+                new[j + step] += c
+        counts = new
+    return counts
+
+
+# ---------------------------------------------------------- problem set-up
+
+@dataclass(frozen=True)
+class _Unit:
+    """One spin or one equivalent group in a component, with its F options."""
+
+    nucleus: str
+    offset_Hz: float
+    options: tuple[tuple[int, int], ...]  # (2F, multiplicity)
+    site: int
+
+
+def _components(n_sites: int, J: dict[tuple[int, int], float]) -> list[list[int]]:
+    """Connected components of the coupling graph (non-zero J only), each sorted."""
+    parent = list(range(n_sites))
+
+    def root(i):
+        while parent[i] != i:
+            parent[i] = parent[parent[i]]
+            i = parent[i]
+        return i
+
+    for i, j in J:
+        parent[root(i)] = root(j)
+    groups: dict[int, list[int]] = {}
+    for i in range(n_sites):
+        groups.setdefault(root(i), []).append(i)
+    return list(groups.values())
+
+
+def _units(sites, component, factor_equivalence: bool) -> list[_Unit]:
+    units = []
+    for s in component:
+        site = sites[s]
+        if factor_equivalence:
+            opts = tuple((int(2 * F), m) for F, m in total_spin_multiplicities(site.count, site.spin))
+            units.append(_Unit(site.nucleus, site.offset_Hz, opts, s))
+        else:
+            units.extend(_Unit(site.nucleus, site.offset_Hz, ((int(2 * site.spin), 1),), s)
+                         for _ in range(site.count))
+    return units
+
+
+def _compositions(units):
+    """Yield (spins, weight): spins = list of (unit index, 2F) with F > 0."""
+    for choice in itertools.product(*(u.options for u in units)):
+        weight = math.prod(m for _, m in choice)
+        spins = [(k, two_f) for k, (two_f, _) in enumerate(choice) if two_f > 0]
+        yield spins, weight
+
+
+def _block_profile(units, spins) -> tuple[int, int]:
+    """(largest block dimension, Σ block dim³) for one composition."""
+    largest, cube_sum = 1, 1
+    for nucleus in dict.fromkeys(units[k].nucleus for k, _ in spins):
+        counts = _state_counts([tf for k, tf in spins if units[k].nucleus == nucleus])
+        largest *= max(counts)
+        cube_sum *= sum(c ** 3 for c in counts)
+    return largest, cube_sum
+
+
+def _plan(sites, J, observe, factor_equivalence):
+    """Components that contain observed spins, with their units and work estimate."""
+    plan = []
+    for component in _components(len(sites), J):
+        if not any(sites[s].nucleus == observe for s in component):
+            continue
+        units = _units(sites, component, factor_equivalence)
+        total = math.prod(sum(tf + 1 for tf, _ in u.options) for u in units)
+        plan.append((component, units, total))
+    return plan
+
+
+_MAX_COUNTED_2F = 512  # beyond this Σ 2F the block count is not worked out (the total is already too large)
+
+
+def _size_report(plan) -> tuple[int | None, int, int]:
+    """(largest block, largest total dimension, Σ dim³) over the plan.
+
+    The largest block comes from taking the largest F of every group: a larger
+    F convolves the state counts with a longer run of ones, which dominates the
+    shorter run elementwise, so no block can shrink.  It is None when not
+    counted (the system is then far beyond MAX_TOTAL_DIM); the work estimate
+    is only summed for systems within the limits.
+    """
+    largest: int | None = 0
+    total_dim = 0
+    for _, units, total in plan:
+        total_dim = max(total_dim, total)
+        top = [(k, max(tf for tf, _ in u.options)) for k, u in enumerate(units)]
+        if largest is not None and sum(tf for _, tf in top) <= _MAX_COUNTED_2F:
+            largest = max(largest, _block_profile(units, [(k, tf) for k, tf in top if tf > 0])[0])
+        else:
+            largest = None
+    work = 0
+    if total_dim <= MAX_TOTAL_DIM and largest is not None and largest <= MAX_BLOCK_DIM:
+        work = sum(_block_profile(units, spins)[1]
+                   for _, units, _ in plan for spins, _ in _compositions(units))
+    return largest, total_dim, work
+
+
+def problem_size(sites, couplings, observe: str, *, factor_equivalence: bool = True) -> dict:
+    """Largest block and largest total dimension (per component) that ``simulate`` would meet.
+
+    ``largest_block`` is None for systems too big to count quickly (Σ 2F > 512
+    in one component), which are far beyond ``MAX_TOTAL_DIM`` anyway.
+    """
+    sites = _checked_sites(sites)
+    J = _checked_couplings(couplings, len(sites))
+    _checked_observe(sites, observe)
+    largest, total_dim, _ = _size_report(_plan(sites, J, observe, factor_equivalence))
+    return {"largest_block": largest, "total_dim": total_dim}
+
+
+def _checked_observe(sites, observe) -> None:
+    if not any(s.nucleus == observe for s in sites):
+        names = ", ".join(sorted({s.nucleus for s in sites}))
+        raise InputError(f"observe must be one of the nuclei present ({names})", field="observe")
+
+
+# ----------------------------------------------------------------- solving
+
+def _ladder(two_f: int, two_m: int, up: bool) -> float:
+    """<m±1|I_±|m> = sqrt(F(F+1) − m(m±1)), in doubled units."""
+    sign = 2 if up else -2
+    return 0.5 * math.sqrt(two_f * (two_f + 2) - two_m * (two_m + sign))
+
+
+def _blocks(two_fs, nuc_of, n_nuclei) -> dict[tuple, list[tuple]]:
+    """Product states (tuples of 2m) grouped by the tuple of per-nuclide total 2M."""
+    blocks: dict[tuple, list[tuple]] = {}
+    for state in itertools.product(*(range(-tf, tf + 1, 2) for tf in two_fs)):
+        key = [0] * n_nuclei
+        for n_idx, tm in zip(nuc_of, state):
+            key[n_idx] += tm
+        blocks.setdefault(tuple(key), []).append(state)
+    return blocks
+
+
+def _block_hamiltonian(states, index, nu, two_fs, pairs) -> list[list[float]]:
+    """H in one block: Σ ν m + Σ J m_a m_b on the diagonal, J/2 (I+I- + I-I+) for like pairs."""
+    H = [[0.0] * len(states) for _ in states]
+    for i, s in enumerate(states):
+        H[i][i] = 0.5 * sum(map(mul, nu, s)) + 0.25 * sum(Jab * s[a] * s[b] for a, b, Jab, _ in pairs)
+        # raising a and lowering b from every state visits each linked pair of
+        # states exactly once; the element is mirrored into the lower triangle
+        for a, b, Jab, like in pairs:
+            if like and s[a] < two_fs[a] and s[b] > -two_fs[b]:
+                t = list(s)
+                t[a] += 2
+                t[b] -= 2
+                j = index[tuple(t)]
+                val = 0.5 * Jab * _ladder(two_fs[a], s[a], True) * _ladder(two_fs[b], s[b], False)
+                H[i][j] += val
+                H[j][i] += val
+    return H
+
+
+def _composition_lines(units, spins, J_units, observe, weight, solve, emit, tick):
+    """Diagonalize every block of one composition and emit (freq_Hz, raw intensity)."""
+    nuclei = list(dict.fromkeys(units[k].nucleus for k, _ in spins))
+    nuc_of = [nuclei.index(units[k].nucleus) for k, _ in spins]
+    obs = nuclei.index(observe) if observe in nuclei else None
+    if obs is None:
+        return
+    two_fs = [tf for _, tf in spins]
+    nu = [units[k].offset_Hz for k, _ in spins]
+    pairs = []
+    for a in range(len(spins)):
+        for b in range(a + 1, len(spins)):
+            Jab = J_units(spins[a][0], spins[b][0])
+            if Jab != 0.0:
+                pairs.append((a, b, Jab, nuc_of[a] == nuc_of[b]))
+    solved = {}
+    for key, states in _blocks(two_fs, nuc_of, len(nuclei)).items():
+        index = {s: i for i, s in enumerate(states)}
+        solved[key] = (states, index, solve(_block_hamiltonian(states, index, nu, two_fs, pairs)))
+        tick(len(states) ** 3)
+    obs_spins = [a for a in range(len(spins)) if nuc_of[a] == obs]
+    for key, (states, _, (E_i, V_i)) in solved.items():
+        target = list(key)
+        target[obs] += 2
+        if tuple(target) not in solved:
+            continue
+        f_states, f_index, (E_f, V_f) = solved[tuple(target)]
+        entries = []  # (row in i block, row in f block, <t|F_+|s>)
+        for si, s in enumerate(states):
+            for a in obs_spins:
+                if s[a] < two_fs[a]:
+                    t = list(s)
+                    t[a] += 2
+                    entries.append((si, f_index[tuple(t)], _ladder(two_fs[a], s[a], True)))
+        for freq, amp in _transition_amplitudes(entries, len(f_states), E_i, V_i, E_f, V_f):
+            emit(freq, 0.25 * weight * amp * amp)
+
+
+def _transition_amplitudes(entries, dim_f, E_i, V_i, E_f, V_f):
+    """Yield (E_f[a] − E_i[b], <f_a|F_+|i_b>) for every eigenpair across two blocks."""
+    if hasattr(V_i, "shape"):  # numpy arrays: columns are eigenvectors
+        import numpy
+
+        P = numpy.zeros((dim_f, len(E_i)))
+        for si, ti, c in entries:
+            P[ti, si] += c
+        A = V_f.T @ P @ V_i
+        freqs = E_f[:, None] - E_i[None, :]
+        yield from zip(freqs.ravel().tolist(), A.ravel().tolist())
+        return
+    for Eb, vb in zip(E_i, V_i):
+        w = [0.0] * dim_f
+        for si, ti, c in entries:
+            w[ti] += c * vb[si]
+        for Ea, va in zip(E_f, V_f):
+            yield Ea - Eb, sum(map(mul, va, w))
+
+
+def _solver(use_numpy):
+    """Block eigensolver: numpy.linalg.eigh if wanted and importable, else ``eigh``."""
+    if use_numpy is False:
+        return eigh
+    try:
+        import numpy
+    except ImportError:
+        if use_numpy:
+            raise InputError("numpy is not available here", field="use_numpy", code="unavailable") from None
+        return eigh
+    return lambda H: numpy.linalg.eigh(numpy.array(H, dtype=float))
+
+
+def _merge(lines, tol_Hz: float) -> list[tuple[float, float]]:
+    """Join lines whose position is within ``tol_Hz`` of the running weighted mean."""
+    merged: list[list[float]] = []
+    for freq, inten in sorted(lines):
+        if merged and freq - merged[-1][0] <= tol_Hz:
+            last = merged[-1]
+            total = last[1] + inten
+            if total > 0.0:
+                last[0] = (last[0] * last[1] + freq * inten) / total
+            last[1] = total
+        else:
+            merged.append([freq, inten])
+    return [(f, i) for f, i in merged]
+
+
+def simulate(sites, couplings, observe: str, *, use_numpy: bool | None = None,
+             factor_equivalence: bool = True, merge_tol_Hz: float = 1e-3,
+             min_rel_intensity: float = 1e-6, progress=None) -> list[tuple[float, float]]:
+    """Lines (freq_Hz, intensity) of the ``observe`` nuclide, ascending in frequency.
+
+    ``use_numpy``: None = numpy.linalg.eigh when importable, False = pure Python,
+    True = require numpy.  Lines closer than ``merge_tol_Hz`` are merged at their
+    intensity-weighted mean; merged lines weaker than ``min_rel_intensity`` times
+    the strongest are dropped.  ``progress(done_fraction)`` is called after each
+    block.  Raises InputError (code "too_large", field "spins") beyond
+    MAX_BLOCK_DIM / MAX_TOTAL_DIM.
+    """
+    sites = _checked_sites(sites)
+    J = _checked_couplings(couplings, len(sites))
+    _checked_observe(sites, observe)
+    merge_tol_Hz = _checked_real(merge_tol_Hz, "merge_tol_Hz")
+    min_rel_intensity = _checked_real(min_rel_intensity, "min_rel_intensity")
+    if merge_tol_Hz < 0:
+        raise InputError("merge_tol_Hz must be >= 0", field="merge_tol_Hz")
+    if not 0 <= min_rel_intensity < 1:
+        raise InputError("min_rel_intensity must be in [0, 1)", field="min_rel_intensity")
+    if progress is not None and not callable(progress):
+        raise InputError("progress must be callable", field="progress")
+    solve = _solver(use_numpy)
+
+    plan = _plan(sites, J, observe, factor_equivalence)
+    largest, total_dim, work = _size_report(plan)
+    if total_dim > MAX_TOTAL_DIM:
+        size = f"{total_dim} states after factoring (limit {MAX_TOTAL_DIM})"
+    elif largest is None:
+        size = "too many states to count"
+    elif largest > MAX_BLOCK_DIM:
+        size = f"a block of {largest} states (limit {MAX_BLOCK_DIM})"
+    else:
+        size = None
+    if size:
+        raise InputError(
+            f"spin system too large for the exact calculation: {size}; use the first-order "
+            "multiplet builder, or split the system into fragments that are not coupled",
+            field="spins", code="too_large",
+        )
+
+    sum_rule = sum(s.count * float(s.spin * (s.spin + 1)) for s in sites if s.nucleus == observe)
+    done = [0]
+
+    def tick(cost):
+        done[0] += cost
+        if progress is not None:
+            progress(min(1.0, done[0] / work))
+
+    raw: list[tuple[float, float]] = []
+    for component, units, _ in plan:
+        full_dim = math.prod(int(2 * sites[s].spin + 1) ** sites[s].count for s in component)
+        scale = 6.0 / (float(full_dim) * sum_rule)
+        unit_J = [[0.0] * len(units) for _ in units]
+        for a, ua in enumerate(units):
+            for b, ub in enumerate(units):
+                if ua.site != ub.site:
+                    unit_J[a][b] = J.get((min(ua.site, ub.site), max(ua.site, ub.site)), 0.0)
+
+        def emit(freq, inten, scale=scale):
+            raw.append((freq, inten * scale))
+
+        for spins, weight in _compositions(units):
+            _composition_lines(units, spins, lambda a, b: unit_J[a][b], observe,
+                               float(weight), solve, emit, tick)
+
+    if progress is not None:
+        progress(1.0)
+    lines = _merge(raw, merge_tol_Hz)
+    strongest = max((i for _, i in lines), default=0.0)
+    return [(f, i) for f, i in lines if i > 0.0 and i >= min_rel_intensity * strongest]
+
+
+# ------------------------------------------------------------ diagnostics
+
+def first_order_checks(sites, couplings, threshold: float = 10.0,
+                       spectrometer_1H_MHz: float | None = None) -> list[dict]:
+    """Δν/|J| for every coupled pair of like-nuclide sites with J ≠ 0.
+
+    First order is taken as Δν/|J| >= ``threshold`` (10 by default, a rule of
+    thumb: common practice, e.g. Pople, Schneider & Bernstein 1959 treat the
+    AX limit as Δν ≫ J).  Δν (Hz) scales linearly with the field and J does not,
+    so ``threshold_scale`` = threshold / (Δν/|J|) is the factor on the field
+    (or on the 1H spectrometer frequency) at which the pair reaches the
+    threshold; None when Δν = 0 (no field separates them).  With
+    ``spectrometer_1H_MHz`` given, ``threshold_1H_MHz`` is that frequency.
+    Each dict: pair (i, j), nucleus, delta_nu_Hz, J_Hz, delta_nu_over_J,
+    first_order, same_shift, threshold_scale (and threshold_1H_MHz).
+    """
+    sites = _checked_sites(sites)
+    J = _checked_couplings(couplings, len(sites))
+    threshold = _checked_real(threshold, "threshold")
+    if threshold <= 0:
+        raise InputError("threshold must be > 0", field="threshold")
+    if spectrometer_1H_MHz is not None:
+        spectrometer_1H_MHz = _checked_real(spectrometer_1H_MHz, "spectrometer_1H_MHz")
+        if spectrometer_1H_MHz <= 0:
+            raise InputError("spectrometer_1H_MHz must be > 0", field="spectrometer_1H_MHz")
+    out = []
+    for (i, j), J_Hz in sorted(J.items()):
+        if sites[i].nucleus != sites[j].nucleus:
+            continue
+        delta = abs(sites[i].offset_Hz - sites[j].offset_Hz)
+        ratio = delta / abs(J_Hz)
+        scale = threshold / ratio if ratio > 0 else None
+        entry = {
+            "pair": (i, j), "nucleus": sites[i].nucleus, "delta_nu_Hz": delta, "J_Hz": J_Hz,
+            "delta_nu_over_J": ratio, "first_order": ratio >= threshold,
+            "same_shift": delta == 0.0, "threshold_scale": scale,
+        }
+        if spectrometer_1H_MHz is not None:
+            entry["threshold_1H_MHz"] = None if scale is None else scale * spectrometer_1H_MHz
+        out.append(entry)
+    return out
+
+
+def equivalence_caveats(sites, couplings, shift_tol_Hz: float = 1e-6, J_tol_Hz: float = 1e-6) -> list[str]:
+    """Warn about chemically equivalent but magnetically inequivalent site pairs.
+
+    Two sites of one nucleus at the same shift (within ``shift_tol_Hz``) whose
+    couplings to some third site differ (by more than ``J_tol_Hz``) form an
+    AA′XX′-type system: its spectrum is second order at every field, because the
+    A/A′ shift difference that would have to exceed J is zero (Pople, Schneider &
+    Bernstein 1959, ch. 6, AA′BB′ / AA′XX′ systems).
+    """
+    sites = _checked_sites(sites)
+    J = _checked_couplings(couplings, len(sites))
+    shift_tol_Hz = _checked_real(shift_tol_Hz, "shift_tol_Hz")
+    J_tol_Hz = _checked_real(J_tol_Hz, "J_tol_Hz")
+
+    def coupling(a, b):
+        return J.get((min(a, b), max(a, b)), 0.0)
+
+    out = []
+    for i, j in itertools.combinations(range(len(sites)), 2):
+        si, sj = sites[i], sites[j]
+        if si.nucleus != sj.nucleus or abs(si.offset_Hz - sj.offset_Hz) > shift_tol_Hz:
+            continue
+        diffs = [
+            f"site {k}: {coupling(i, k):g} Hz vs {coupling(j, k):g} Hz"
+            for k in range(len(sites))
+            if k not in (i, j) and abs(coupling(i, k) - coupling(j, k)) > J_tol_Hz
+        ]
+        if diffs:
+            out.append(
+                f"sites {i} and {j} ({si.nucleus}, same shift) couple differently to "
+                + "; ".join(diffs)
+                + ": magnetically inequivalent (AA′XX′-type): never first order"
+            )
+    return out
