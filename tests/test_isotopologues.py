@@ -71,9 +71,9 @@ def test_borohydride_proton():
     assert set(found) == {"11B1", "10B1"}
     assert float(found["11B1"].share) == pytest.approx(0.80, abs=0.01)  # from memory
     assert float(found["10B1"].share) == pytest.approx(0.20, abs=0.01)  # from memory
-    assert ratio_string(found["11B1"].sticks) == "1:1:1:1"  # I = 3/2: 2I + 1 equal lines (Günther, ch. 4)
+    assert ratio_string(found["11B1"].sticks) == "1:1:1:1"  # I = 3/2: 2I + 1 equal lines (Günther, NMR Spectroscopy, 3rd ed.)
     assert found["11B1"].multiplet_label == "1:1:1:1 quartet"
-    assert ratio_string(found["10B1"].sticks) == "1:1:1:1:1:1:1"  # I = 3: 2I + 1 equal lines (Günther, ch. 4)
+    assert ratio_string(found["10B1"].sticks) == "1:1:1:1:1:1:1"  # I = 3: 2I + 1 equal lines (Günther, NMR Spectroscopy, 3rd ed.)
     spacings = [b[0] - a[0] for a, b in zip(found["10B1"].lines, found["10B1"].lines[1:])]
     assert spacings == pytest.approx([J_11B * 0.3353] * 6)
     # 4 lines of 0.801/4 and 7 lines of 0.199/7, none coincident here

@@ -82,7 +82,7 @@ groups_strategy = st.lists(st.tuples(spins, st.integers(1, 4), couplings), min_s
 @settings(max_examples=150, deadline=None)
 @given(spins, st.integers(1, 12), st.floats(min_value=0.05, max_value=100))
 def test_single_group_line_count_and_spacing(spin, count, J):
-    # first-order rule: 2nI + 1 lines spaced J (Günther, NMR Spectroscopy, ch. 4)
+    # first-order rule: 2nI + 1 lines spaced J (Günther, NMR Spectroscopy, 3rd ed., first-order spectra)
     sticks = multiplet([(spin, count, J)])
     assert len(sticks) == 2 * count * spin + 1
     gaps = [b[0] - a[0] for a, b in zip(sticks, sticks[1:])]
@@ -120,7 +120,7 @@ def test_group_order_does_not_matter(groups):
 
 
 def test_dd_with_equal_couplings_merges_to_triplet():
-    # two equal spin-1/2 couplings: Pascal 1:2:1 (Günther, NMR Spectroscopy, ch. 4)
+    # two equal spin-1/2 couplings: Pascal 1:2:1 (Günther, NMR Spectroscopy, 3rd ed., first-order spectra)
     groups = [(HALF, 1, 0.1 + 0.2), (HALF, 1, 0.3)]  # J values differ by one float ulp
     sticks = multiplet(groups)
     assert ratio_string(sticks) == "1:2:1"
@@ -128,7 +128,7 @@ def test_dd_with_equal_couplings_merges_to_triplet():
 
 
 def test_dd_with_double_coupling_gives_partial_overlap():
-    # J1 = 2 J2: the inner lines of a dd coincide, 1:1:1:1 spaced J2 ... becomes lines at -1.5,-0.5,0.5,1.5 J2
+    # J1 = 2 J2: a dd of four equal, evenly spaced lines (1:1:1:1, not a 1:3:3:1 quartet); first-order rule, Günther
     sticks = multiplet([(HALF, 1, 10.0), (HALF, 1, 5.0)])
     assert [x for x, _ in sticks] == pytest.approx([-7.5, -2.5, 2.5, 7.5])
     assert ratio_string(sticks) == "1:1:1:1"

@@ -5,7 +5,7 @@ Physics
 Each stick of intensity ``A`` at ``x0`` becomes a line of full width at half
 height ``w`` whose AREA is ``A`` (the normalized profiles of any spectroscopy
 text, e.g. P. W. Atkins & J. de Paula, *Physical Chemistry*, or J. Keeler,
-*Understanding NMR Spectroscopy*, 2nd ed., ch. 5):
+*Understanding NMR Spectroscopy*, 2nd ed., Wiley 2010):
 
 * Lorentzian: ``L(x) = (A / pi) * (w/2) / ((x - x0)**2 + (w/2)**2)``, peak
   height ``2A / (pi w)``;

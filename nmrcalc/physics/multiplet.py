@@ -14,7 +14,7 @@ coefficient of ``x^(M + nI)`` in
 I = 1).  Several groups with different couplings combine by successive
 splitting: every line of the pattern so far is split by the next group, i.e.
 the stick patterns are convolved.  Textbook source: H. Günther, *NMR
-Spectroscopy*, 3rd ed. (Wiley 2013), ch. 4 (first-order multiplets).
+Spectroscopy*, 3rd ed. (Wiley-VCH 2013), chapter on first-order spectra.
 
 Numbers
 -------
