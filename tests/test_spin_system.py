@@ -209,11 +209,34 @@ def test_zero_couplings_give_singlets_weighted_by_count():
     ([H1(0.0, count=2), H1(9.0), Site("19F", HALF, 0.0, count=2)], [(0, 1, 6.0), (0, 2, 20.0), (1, 2, 3.0)], "1H"),
     ([Site("2H", ONE, 0.0, count=2), Site("2H", ONE, 2.0), H1(0.0)], [(0, 1, 1.2), (0, 2, 2.0)], "2H"),
     ([H1(0.0, count=4), H1(15.0)], [(0, 1, -9.0)], "1H"),
+    ([Site("7Li", Fraction(3, 2), 0.0, count=2), Site("7Li", Fraction(3, 2), 4.0), H1(0.0)],
+     [(0, 1, 3.0), (1, 2, 1.0)], "7Li"),
 ])
 def test_equivalence_factoring_equals_expanded_spins(sites, couplings, observe):
     factored = simulate(sites, couplings, observe, use_numpy=False)
     # the expanded calculation is the unfactored Hamiltonian (PSB 1959 sec. 6-4 composite particles)
     same_lines(factored, simulate(sites, couplings, observe, use_numpy=False, factor_equivalence=False))
+
+
+def test_coupling_inside_an_equivalent_group_is_invisible():
+    # ethyl as five separate spins with geminal J inside CH3 and CH2, versus two equivalent groups:
+    # intra-group couplings commute with H and F_x and drop out (PSB 1959 sec. 6-4)
+    spins = [H1(24.0)] * 3 + [H1(72.0)] * 2
+    couplings = [(0, 1, -12.0), (0, 2, -12.0), (1, 2, -12.0), (3, 4, -14.0)]
+    couplings += [(a, b, 7.0) for a in range(3) for b in (3, 4)]
+    same_lines(simulate(spins, couplings, "1H"), simulate([H1(24.0, 3), H1(72.0, 2)], [(0, 1, 7.0)], "1H"))
+
+
+@pytest.mark.parametrize("seed", [61, 62, 63])
+def test_random_groups_factor_like_expanded(seed):
+    rng = random.Random(seed)
+    nuclei = (("1H", HALF), ("19F", HALF), ("2H", ONE))
+    sites = [Site(*rng.choice(nuclei), rng.uniform(-60, 60), rng.choice([1, 1, 2, 3])) for _ in range(4)]
+    sites[0] = Site("1H", HALF, 0.0, 2)
+    couplings = [(i, j, rng.uniform(-15, 15)) for i in range(4) for j in range(i + 1, 4) if rng.random() < 0.8]
+    # reference: the same Hamiltonian over individual spins, diagonalized by numpy.linalg.eigh
+    expanded = simulate(sites, couplings, "1H", use_numpy=True, factor_equivalence=False)
+    same_lines(simulate(sites, couplings, "1H", use_numpy=False), expanded)
 
 
 def test_total_spin_multiplicities():
