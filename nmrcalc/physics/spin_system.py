@@ -198,7 +198,7 @@ def total_spin_multiplicities(n: int, spin) -> list[tuple[Fraction, int]]:
     spin = _checked_spin(spin, "spin")
     if isinstance(n, bool) or not isinstance(n, int) or not 1 <= n <= MAX_COUNT:
         raise InputError(f"count must be an integer from 1 to {MAX_COUNT}", field="count")
-    counts = _state_counts([int(2 * spin)] * n)  # index j ↔ 2M = j − top
+    counts = _state_counts([int(2 * spin)] * n)  # index j ↔ 2M = 2j − top
     top = len(counts) - 1  # = 2 n I
     out = []
     for j in range(top, (top - 1) // 2, -1):  # 2M from n·2I down to 0 or 1
@@ -286,7 +286,7 @@ def _block_profile(units, spins) -> tuple[int, int]:
 
 
 def _plan(sites, J, observe, factor_equivalence):
-    """Components that contain observed spins, with their units and work estimate."""
+    """(component, units, total dimension after factoring) for components with observed spins."""
     plan = []
     for component in _components(len(sites), J):
         if not any(sites[s].nucleus == observe for s in component):
@@ -297,7 +297,7 @@ def _plan(sites, J, observe, factor_equivalence):
     return plan
 
 
-_MAX_COUNTED_2F = 512  # beyond this Σ 2F the block count is not worked out (the total is already too large)
+_MAX_COUNTED_2F = 512  # beyond this Σ 2F in one component the largest block is not counted
 
 
 def _size_report(plan) -> tuple[int | None, int, int]:
