@@ -57,6 +57,15 @@ def build_parser() -> argparse.ArgumentParser:
             else:
                 p.add_argument(key, metavar=flag, help=h)
         p.add_argument("--json", action="store_true", help="print the raw JSON response")
+    m = sub.add_parser("multiplet", help="first-order multiplet from partner groups",
+                       description="first-order multiplet; a group is PARTNER,COUNT,J such as '2H,3,19.3 Hz', "
+                                   "'B,1,81 Hz' (an element: its isotope mixture) or 'spin=1,2,7 Hz'")
+    m.add_argument("--observe", required=True, help="observed nuclide, e.g. 13C")
+    m.add_argument("--group", action="append", default=[], help="PARTNER,COUNT,J (repeat for several groups)")
+    m.add_argument("--abundance", action="append", default=[], help="ISOTOPE=PERCENT, e.g. 2H=99.8")
+    m.add_argument("--spectrometer", help="1H frequency, e.g. '500 MHz'")
+    m.add_argument("--center", help="centre in ppm")
+    m.add_argument("--json", action="store_true", help="print the raw JSON response")
     sub.add_parser("api", help="read one JSON request on stdin, print the JSON response")
     sub.add_parser("demo", help="a worked example from an invented lab")
     return parser
@@ -93,6 +102,41 @@ def render(response: dict) -> str:
     return "\n".join(lines)
 
 
+def multiplet_request(args) -> dict:
+    """Turn ``--group PARTNER,COUNT,J`` and ``--abundance ISO=PCT`` into a multiplet request."""
+    groups = []
+    for text in args.group:
+        partner, _, rest = text.partition(",")
+        count, _, J = rest.partition(",")
+        key, value = ("spin", partner[5:]) if partner.startswith("spin=") else ("partner", partner)
+        groups.append({key: value.strip(), "count": int(count) if count.strip().isdigit() else count, "J": J.strip()})
+    abundance = dict(item.split("=", 1) for item in args.abundance if "=" in item)
+    request = {"op": "multiplet", "observe": args.observe, "groups": groups}
+    for key in ("spectrometer", "center"):
+        if getattr(args, key):
+            request[key] = getattr(args, key)
+    if abundance:
+        request["abundance"] = abundance
+    return request
+
+
+def render_multiplet(response: dict) -> str:
+    if not response["ok"]:
+        return render(response)
+    r = response["result"]
+    out = [f"label: {r['label']}"]
+    if r["ratio"]:
+        out.append(f"ratio: {r['ratio']}")
+    for iso in r.get("isotopologues", []):
+        out.append(f"isotopologue {iso['label']}: share {iso['share'] * 100:.4g} %, {iso['multiplet']} ({iso['ratio']})")
+    out.append(("  ppm        " if r["center_ppm"] is not None else "  ") + "Hz           intensity")
+    for line in r["lines"]:
+        ppm = f"{line['ppm']:<10.5f} " if "ppm" in line else ""
+        out.append(f"  {ppm}{line['Hz']:<12.3f} {line['intensity']:.6f}")
+    out += [f"note: {w}" for w in response["warnings"]]
+    return "\n".join(out)
+
+
 DEMO = [
     ("The Harbourside teaching lab's magnet reads 400.13 MHz for 1H. Where is 29Si?",
      {"op": "frequency", "nucleus": "29Si", "spectrometer": "400.13 MHz"}),
@@ -114,6 +158,10 @@ def main(argv: list[str] | None = None) -> int:
         for question, request in DEMO:
             print(f"# {question}\n{render(handle(request))}\n")
         return 0
+    if args.command == "multiplet":
+        response = handle(multiplet_request(args))
+        print(json.dumps(response, indent=2, ensure_ascii=False) if args.json else render_multiplet(response))
+        return 0 if response["ok"] else 2
     op, arg_spec, _ = COMMANDS[args.command]
     request = {"op": op}
     for _, key, _ in arg_spec:

@@ -12,9 +12,10 @@ from __future__ import annotations
 import json
 
 from nmrcalc.api.core_ops import OPS as CORE_OPS
+from nmrcalc.api.multiplet_ops import OPS as MULTIPLET_OPS
 from nmrcalc.errors import InputError
 
-OPS = {**CORE_OPS}
+OPS = {**CORE_OPS, **MULTIPLET_OPS}
 MAX_REQUEST_CHARS = 1_000_000
 
 
