@@ -261,6 +261,10 @@ def test_too_large_is_refused_quickly():
     with pytest.raises(InputError) as info:
         simulate(chain, [(k, k + 1, 5.0) for k in range(19)], "1H")
     assert info.value.code == "too_large"
+    huge = [Site("1H", HALF, float(k), 64) for k in range(200)]
+    with pytest.raises(InputError) as info:
+        simulate(huge, [(k, k + 1, 1.0) for k in range(199)], "1H", factor_equivalence=False)
+    assert "more than 10^3853 states" in info.value.message  # 2^12800 states
 
 
 def test_large_equivalent_group_is_cheap_when_factored():

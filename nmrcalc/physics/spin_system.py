@@ -468,6 +468,13 @@ def _merge(lines, tol_Hz: float) -> list[tuple[float, float]]:
     return [(f, i) for f, i in merged]
 
 
+def _count_text(n: int) -> str:
+    """A state count for a message; huge ones as a power of ten (bit_length keeps it instant)."""
+    if n < 10 ** 6:
+        return str(n)
+    return f"more than 10^{int((n.bit_length() - 1) * math.log10(2))}"
+
+
 def simulate(sites, couplings, observe: str, *, use_numpy: bool | None = None,
              factor_equivalence: bool = True, merge_tol_Hz: float = 1e-3,
              min_rel_intensity: float = 1e-6, progress=None) -> list[tuple[float, float]]:
@@ -496,7 +503,7 @@ def simulate(sites, couplings, observe: str, *, use_numpy: bool | None = None,
     plan = _plan(sites, J, observe, factor_equivalence)
     largest, total_dim, work = _size_report(plan)
     if total_dim > MAX_TOTAL_DIM:
-        size = f"{total_dim} states after factoring (limit {MAX_TOTAL_DIM})"
+        size = f"{_count_text(total_dim)} states after factoring (limit {MAX_TOTAL_DIM})"
     elif largest is None:
         size = "too many states to count"
     elif largest > MAX_BLOCK_DIM:
