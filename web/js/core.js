@@ -69,18 +69,18 @@ const NMR = (() => {
       return text.includes("e") ? String(Number(text)) : text;
     }
     const [mantissa, exponent] = value.toExponential((digits || 6) - 1).split("e");
-    return `${mantissa} × 10^${Number(exponent)}`;
+    const SUPERSCRIPT = { "-": "⁻", 0: "⁰", 1: "¹", 2: "²", 3: "³", 4: "⁴", 5: "⁵", 6: "⁶", 7: "⁷", 8: "⁸", 9: "⁹" };
+    const power = [...String(Number(exponent))].map((c) => SUPERSCRIPT[c]).join("");
+    return `${mantissa} × 10${power}`;
   }
   function fixed(value, places) {
     if (value === null || value === undefined) return "—";
     return typeof value === "number" ? value.toFixed(places) : String(value);
   }
 
-  // Render "a × 10^b" with a real superscript.
+  /** A text node for a formatted number (fmt already writes exponents as superscripts). */
   function numberNode(text) {
-    const match = /^(.*) × 10\^(-?\d+)$/.exec(text);
-    if (!match) return document.createTextNode(text);
-    return el("span", {}, `${match[1]} × 10`, el("sup", {}, match[2]));
+    return document.createTextNode(text);
   }
 
   // ---------- worker and the one API call ----------
@@ -188,7 +188,9 @@ const NMR = (() => {
           inputmode: field.inputmode || null, list: field.list || null, placeholder: field.placeholder || null,
         });
       }
-      input.value = saved !== undefined ? saved.value : (field.value ?? "");
+      const fallback = field.kind === "select" ? field.options[0][0] : "";
+      input.value = saved !== undefined ? saved.value : (field.value ?? fallback);
+      if (field.kind === "select" && input.selectedIndex < 0) input.value = fallback;
       input.setAttribute("aria-describedby", [hintId, errorId].filter(Boolean).join(" "));
       wrap.append(el("label", { for: inputId }, field.label));
       const row = el("div", { class: "input-row" }, input);
@@ -226,15 +228,27 @@ const NMR = (() => {
     return state;
   }
 
-  // A form: {id, title, intro, fields, request(values) -> object|null, render(result, out, response), submitLabel}
+  /** A field shown on its own (e.g. one magnet for several cards); pass it to forms as spec.shared. */
+  function sharedField(groupId, field) {
+    const state = buildField({ id: groupId }, field);
+    state.listeners = [];
+    const notify = () => state.listeners.forEach((fn) => fn());
+    state.input.addEventListener("input", notify);
+    state.input.addEventListener("change", notify);
+    if (state.unitSelect) state.unitSelect.addEventListener("change", notify);
+    return state;
+  }
+
+  // A form: {id, title, intro, fields, shared, request(values) -> object, render(result, out, response), submitLabel}
   function form(spec) {
     const section = el("section", { class: "card", id: `card-${spec.id}`, "aria-labelledby": `${spec.id}-title` });
     section.append(el("h2", { id: `${spec.id}-title` }, spec.title));
     if (spec.intro) section.append(el("p", { class: "intro" }, spec.intro));
     const formNode = el("form", { class: "calc-form", id: `form-${spec.id}`, novalidate: true });
-    const fields = spec.fields.map((f) => buildField(spec, f));
+    const own = spec.fields.map((f) => buildField(spec, f));
+    const fields = [...(spec.shared || []), ...own];
     const grid = el("div", { class: "fields" });
-    for (const f of fields) grid.append(f.wrap);
+    for (const f of own) grid.append(f.wrap);
     formNode.append(grid);
     const formError = el("p", { class: "form-error", id: `${spec.id}-form-error`, "aria-live": "polite" });
     const button = el("button", { type: "submit", class: "primary" }, spec.submitLabel || "Calculate");
@@ -281,10 +295,11 @@ const NMR = (() => {
       clearTimeout(timer);
       timer = setTimeout(run, 450);
     };
+    for (const f of spec.shared || []) f.listeners.push(schedule);
     formNode.addEventListener("input", schedule);
     formNode.addEventListener("change", schedule);
     ready.then(run);
-    return { node: section, run, fields };
+    return { node: section, run, fields, out };
   }
 
   // A definition list of results: rows = [[label, text or Node, unit?]]
@@ -402,11 +417,38 @@ const NMR = (() => {
     navigator.serviceWorker.register("sw.js").catch((err) => console.warn("offline cache unavailable:", err));
   }
 
+  // One <datalist id="nuclide-list"> for every nucleus input, filled from the API.
+  function fillNuclideList() {
+    const list = el("datalist", { id: "nuclide-list" });
+    document.body.append(list);
+    api({ op: "nuclides" }).then((response) => {
+      if (!response.ok) return;
+      list.replaceChildren(...response.result.nuclides.map((n) => el("option", { value: n.symbol }, `${n.element_name || n.element} · I = ${n.spin}`)));
+    });
+  }
+
+  /** Request keys for a magnet field with units MHz (1H frequency) or T / kG / G. */
+  function magnetRequest(value) {
+    const key = value.unit === "MHz" ? "spectrometer" : "field";
+    return { [key]: value.value === "" ? "" : `${value.value} ${value.unit}` };
+  }
+
+  const MAGNET_UNITS = [
+    { unit: "MHz", label: "MHz ¹H" },
+    { unit: "T", label: "T" },
+    { unit: "kG", label: "kG" },
+    { unit: "G", label: "G" },
+  ];
+
   function start() {
+    fillNuclideList();
     buildShell();
     startWorker();
     registerServiceWorker();
   }
 
-  return { api, ready, el, fmt, fixed, nuclideLabel, numberNode, form, resultList, sortableTable, registerPanel, start, timings };
+  return {
+    api, ready, el, fmt, fixed, nuclideLabel, numberNode, form, sharedField, resultList, sortableTable,
+    registerPanel, start, timings, magnetRequest, MAGNET_UNITS,
+  };
 })();

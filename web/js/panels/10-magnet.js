@@ -1,0 +1,113 @@
+// Panel: magnet & frequencies — one nucleus at the magnet, ppm <-> Hz, and the
+// table of every magnetic nuclide at that field. One magnet field feeds all three.
+"use strict";
+
+NMR.registerPanel({
+  id: "magnet",
+  title: "Magnet & frequencies",
+  build(container) {
+    const { el, fmt, fixed, nuclideLabel } = NMR;
+    const magnet = NMR.sharedField("freqs", {
+      id: "magnet", label: "Magnet (¹H frequency or field)", value: "400.13", inputmode: "decimal",
+      units: NMR.MAGNET_UNITS, keys: ["spectrometer", "field"],
+      hint: "The proton frequency printed on the console, or the field strength.",
+    });
+    const magnetCard = el("section", { class: "card card-magnet", "aria-label": "Magnet" }, el("h2", {}, "Magnet"), magnet.wrap);
+    const magnetOut = el("p", { class: "magnet-summary", id: "freqs-magnet-summary", "aria-live": "polite" });
+    magnetCard.append(magnetOut);
+
+    const one = NMR.form({
+      id: "larmor",
+      title: "One nucleus",
+      intro: "Larmor frequency at this magnet and the frequency of its 0 ppm reference (from Ξ).",
+      shared: [magnet],
+      fields: [
+        { id: "nucleus", label: "Nucleus", value: "13C", list: "nuclide-list", placeholder: "e.g. 13C, 15N, 31P" },
+        {
+          id: "scale", label: "Reference scale", kind: "select",
+          options: [["unified", "Unified (TMS-based)"], ["biomolecular", "Biomolecular (DSS)"]],
+        },
+      ],
+      request: (v) => ({ op: "frequency", nucleus: v.nucleus.value, scale: v.scale.value, ...NMR.magnetRequest(v.magnet) }),
+      render(r, out) {
+        magnetOut.replaceChildren(`${fmt(r.field_T, 6)} T · ${fmt(r.field_G, 6)} G · ¹H at ${fixed(r.proton_MHz, 4)} MHz`);
+        out.replaceChildren(NMR.resultList([
+          ["Nucleus", nuclideLabel(r.symbol)],
+          ["Larmor frequency", fixed(r.larmor_MHz, 6), "MHz"],
+          ["0 ppm reference", fixed(r.reference_MHz, 6), r.reference_MHz === null ? "" : "MHz"],
+          ["0 ppm − Larmor", fmt(r.difference_ppm, 6), r.difference_ppm === null ? "" : "ppm"],
+          ["Spin", r.spin],
+          ["Natural abundance", fmt(r.abundance_percent, 4), "%"],
+        ]));
+      },
+    });
+
+    const convert = NMR.form({
+      id: "ppmhz",
+      title: "ppm ↔ Hz",
+      intro: "Convert a chemical shift to an offset from 0 ppm, or back. Give a carrier to get the offset from it too.",
+      shared: [magnet],
+      fields: [
+        { id: "nucleus", label: "Nucleus", value: "1H", list: "nuclide-list" },
+        { id: "direction", label: "Convert", kind: "select", options: [["ppm", "ppm → Hz"], ["Hz", "Hz → ppm"]] },
+        { id: "amount", label: "Value", value: "7.26", inputmode: "decimal", keys: ["ppm", "Hz"] },
+        { id: "carrier", label: "Carrier (ppm, optional)", value: "", inputmode: "decimal", keys: ["carrier_ppm"] },
+      ],
+      request(v) {
+        const req = { op: "ppm_hz", nucleus: v.nucleus.value, ...NMR.magnetRequest(v.magnet) };
+        req[v.direction.value] = v.amount.value;
+        if (v.carrier.value !== "") req.carrier_ppm = v.carrier.value;
+        return req;
+      },
+      render(r, out) {
+        const rows = [
+          ["Shift", fmt(r.ppm, 7), "ppm"],
+          ["Offset from 0 ppm", fmt(r.offset_Hz, 7), "Hz"],
+          ["Absolute frequency", fixed(r.frequency_MHz, 6), "MHz"],
+          ["Hz per ppm", fmt(r.Hz_per_ppm, 7), "Hz"],
+        ];
+        if (r.offset_from_carrier_Hz !== undefined) rows.push(["Offset from carrier", fmt(r.offset_from_carrier_Hz, 7), "Hz"]);
+        out.replaceChildren(NMR.resultList(rows));
+      },
+    });
+
+    const table = NMR.form({
+      id: "table",
+      title: "Every nuclide at this magnet",
+      intro: "Highest frequency first. Filter, then tap a column heading to sort by it.",
+      shared: [magnet],
+      submitLabel: "Show table",
+      fields: [
+        { id: "spinhalf", label: "Spin ½ only", kind: "checkbox", value: false, keys: ["spin_half_only"] },
+        { id: "minab", label: "Minimum abundance (%)", value: "", inputmode: "decimal", keys: ["min_abundance_percent"] },
+        { id: "minmhz", label: "From (MHz)", value: "", inputmode: "decimal", keys: ["min_MHz"] },
+        { id: "maxmhz", label: "To (MHz)", value: "", inputmode: "decimal", keys: ["max_MHz"] },
+      ],
+      request(v) {
+        const req = { op: "frequency", spin_half_only: v.spinhalf.value, ...NMR.magnetRequest(v.magnet) };
+        if (v.minab.value !== "") req.min_abundance_percent = v.minab.value;
+        if (v.minmhz.value !== "") req.min_MHz = `${v.minmhz.value} MHz`;
+        if (v.maxmhz.value !== "") req.max_MHz = `${v.maxmhz.value} MHz`;
+        return req;
+      },
+      render(r, out) {
+        const columns = [
+          { key: "A", label: "Nuclide", value: (row) => row.symbol.replace(/^\d+/, "") + row.symbol.match(/^\d+/)[0].padStart(3, "0"), show: (row) => nuclideLabel(row.symbol) },
+          { key: "spin", label: "Spin", value: (row) => { const [n, d] = row.spin.split("/"); return Number(n) / Number(d || 1); }, show: (row) => row.spin },
+          { key: "ab", label: "Abundance %", numeric: true, value: (row) => row.abundance_percent, show: (row) => fmt(row.abundance_percent, 4) },
+          { key: "nu", label: "Larmor MHz", numeric: true, value: (row) => row.larmor_MHz, show: (row) => fixed(row.larmor_MHz, 4) },
+          { key: "ref", label: "0 ppm MHz", numeric: true, value: (row) => row.reference_MHz, show: (row) => fixed(row.reference_MHz, 4) },
+          { key: "dppm", label: "0 ppm − Larmor, ppm", numeric: true, value: (row) => row.difference_ppm, show: (row) => fmt(row.difference_ppm, 5) },
+          { key: "dc", label: "Receptivity vs ¹³C", numeric: true, value: (row) => row.receptivity_C, show: (row) => NMR.numberNode(fmt(row.receptivity_C, 3)) },
+        ];
+        out.replaceChildren(
+          el("p", { class: "count" }, `${r.count} nuclides at ${fmt(r.field_T, 5)} T`),
+          NMR.sortableTable(columns, r.table, "Magnetic nuclides at the chosen magnet"),
+        );
+      },
+    });
+
+    container.append(el("div", { class: "cards" }, magnetCard, one.node, convert.node, table.node));
+    container.lastChild.lastChild.classList.add("card-wide");
+  },
+});
