@@ -1,0 +1,154 @@
+"""The ``spin_system`` op: exact (second-order) spectra of small coupled systems,
+the first-order check of every coupled pair, the first-order pattern for
+comparison, and the same system at several fields.
+
+Each spin's offset at a field is δ × ν_ref of its nuclide (IUPAC 2001 unified
+scale, ``nmrcalc.physics.larmor``); couplings do not change with the field.
+"""
+
+from __future__ import annotations
+
+from fractions import Fraction
+
+from nmrcalc.api.fields import flag, magnet, nucleus, quantity
+from nmrcalc.errors import InputError
+from nmrcalc.nuclides import Nuclide
+from nmrcalc.physics import larmor, lineshape
+from nmrcalc.physics.multiplet import multiplet
+from nmrcalc.physics.spin_system import Site, equivalence_caveats, first_order_checks, simulate
+
+MAX_FIELDS = 12
+
+
+def _spins(req) -> list[tuple[Nuclide, float, int]]:
+    spins = req.get("spins")
+    if not isinstance(spins, list) or not spins:
+        raise InputError("'spins' must list the spins: nucleus, shift and count.", "spins", "missing_field")
+    out = []
+    for i, s in enumerate(spins):
+        where = f"spins.{i}."
+        if not isinstance(s, dict):
+            raise InputError("Each spin is an object with nucleus, shift and count.", f"spins.{i}")
+        nuc = nucleus(s, "nucleus", prefix=where)
+        shift = quantity(s, "shift", "shift", prefix=where)
+        count = s.get("count", 1)
+        if isinstance(count, bool) or not isinstance(count, int) or count < 1:
+            raise InputError("count must be a whole number of at least 1.", where + "count")
+        out.append((nuc, shift, count))
+    return out
+
+
+def _couplings(req, n: int) -> list[tuple[int, int, float]]:
+    items = req.get("couplings", [])
+    if not isinstance(items, list):
+        raise InputError("'couplings' must be a list.", "couplings")
+    out, seen = [], set()
+    for k, c in enumerate(items):
+        where = f"couplings.{k}."
+        if not isinstance(c, dict):
+            raise InputError("Each coupling is an object with between [i, j] and J.", f"couplings.{k}")
+        pair = c.get("between")
+        if (not isinstance(pair, list) or len(pair) != 2
+                or not all(isinstance(x, int) and not isinstance(x, bool) for x in pair)):
+            raise InputError("between must be two spin numbers, e.g. [0, 1].", where + "between")
+        i, j = pair
+        if not (0 <= i < n and 0 <= j < n):
+            raise InputError(f"between must name spins 0 to {n - 1}.", where + "between")
+        if i == j:
+            raise InputError("A spin has no coupling with itself.", where + "between")
+        key = (min(i, j), max(i, j))
+        if key in seen:
+            raise InputError(f"The coupling between spins {i} and {j} is given twice.", where + "between")
+        seen.add(key)
+        out.append((key[0], key[1], quantity(c, "J", "coupling", prefix=where)))
+    return out
+
+
+def _magnets(req, warnings) -> list[tuple[float, float]]:
+    fields = req.get("fields")
+    if fields in (None, []):
+        return [magnet(req, warnings)]
+    if not isinstance(fields, list):
+        raise InputError("'fields' must be a list such as [\"300 MHz\", \"600 MHz\"].", "fields")
+    if len(fields) > MAX_FIELDS:
+        raise InputError(f"At most {MAX_FIELDS} fields at once.", "fields", "too_large")
+    out = []
+    for k, f in enumerate(fields):
+        try:
+            out.append(magnet({"spectrometer": f}, warnings))
+        except InputError as e:
+            raise InputError(e.message.replace("spectrometer", f"fields.{k}"), f"fields.{k}", e.code) from None
+    return out
+
+
+def _ref_MHz(nuc: Nuclide, field_T: float, proton_MHz: float) -> float:
+    return larmor.reference_MHz(nuc, proton_MHz) or larmor.larmor_MHz(nuc, field_T)
+
+
+def _first_order_lines(sites, couplings, observe: str) -> list[tuple[float, float]]:
+    """Each observed site as a first-order multiplet, weighted by count × I(I+1)."""
+    weighted = []
+    for i, site in enumerate(sites):
+        if site.nucleus != observe:
+            continue
+        groups = [(sites[j].spin, sites[j].count, J) for a, b, J in couplings
+                  for j in ((b,) if a == i else (a,) if b == i else ())]
+        sticks = multiplet(groups)
+        total = sum(w for _, w in sticks)
+        weight = site.count * float(site.spin * (site.spin + 1))
+        weighted += [(site.offset_Hz + x, weight * w / total) for x, w in sticks]
+    norm = sum(y for _, y in weighted)
+    return sorted((x, y / norm) for x, y in weighted)
+
+
+def _line_dicts(lines, ref_MHz):
+    return [{"Hz": x, "ppm": x / ref_MHz, "intensity": y} for x, y in lines]
+
+
+def _block(spins, couplings, observe, field_T, proton_MHz, req, warnings) -> dict:
+    sites = [Site(nuc.symbol, nuc.spin, shift * _ref_MHz(nuc, field_T, proton_MHz), count)
+             for nuc, shift, count in spins]
+    lines = simulate(sites, couplings, observe.symbol)
+    ref = _ref_MHz(observe, field_T, proton_MHz)
+    checks = [{"pair": list(c["pair"]), "nucleus": c["nucleus"], "delta_nu_Hz": c["delta_nu_Hz"], "J_Hz": c["J_Hz"],
+               "delta_nu_over_J": c["delta_nu_over_J"], "first_order": c["first_order"],
+               "first_order_from_MHz": c.get("threshold_1H_MHz")}
+              for c in first_order_checks(sites, couplings, spectrometer_1H_MHz=proton_MHz)]
+    block = {"spectrometer_MHz": proton_MHz, "field_T": field_T, "observe_MHz": ref,
+             "lines": _line_dicts(lines, ref), "checks": checks}
+    first = _first_order_lines(sites, couplings, observe.symbol)
+    if flag(req, "first_order"):
+        block["first_order_lines"] = _line_dicts(first, ref)
+    if flag(req, "spectrum"):
+        width = quantity(req, "linewidth", "coupling", positive=True, default=0.5)
+        shape = req.get("shape", "lorentzian")
+        try:
+            exact = lineshape.sample_spectrum(lines, width, shape)
+            spectrum = {"x_ppm": [x / ref for x in exact.x_Hz], "y": exact.y, "linewidth_Hz": width}
+            if flag(req, "first_order"):
+                fo = lineshape.sample_spectrum(first, width, shape, window_Hz=(exact.x_Hz[0], exact.x_Hz[-1]))
+                spectrum["first_order_y"] = fo.y
+        except InputError as e:
+            raise InputError(e.message, {"fwhm_Hz": "linewidth"}.get(e.field, e.field), e.code) from None
+        block["spectrum"] = spectrum
+    return block
+
+
+def op_spin_system(req, warnings):
+    observe = nucleus(req, "observe")
+    spins = _spins(req)
+    if not any(nuc.symbol == observe.symbol for nuc, _, _ in spins):
+        raise InputError(f"No {observe.symbol} among the spins: nothing to observe.", "observe")
+    couplings = _couplings(req, len(spins))
+    magnets = _magnets(req, warnings)
+    blocks = [_block(spins, couplings, observe, f, p, req, warnings) for f, p in magnets]
+    offsets0 = [Site(nuc.symbol, nuc.spin, shift, count) for nuc, shift, count in spins]
+    warnings.extend(equivalence_caveats(offsets0, couplings))
+    if any(nuc.quadrupolar and nuc.symbol != "2H" for nuc, _, _ in spins):
+        warnings.append("A quadrupolar spin is treated as sharp: fast relaxation often collapses its couplings.")
+    if req.get("fields") not in (None, []):
+        return {"observe": observe.symbol, "fields": blocks}
+    return {"observe": observe.symbol, **blocks[0]}
+
+
+OPS = {"spin_system": op_spin_system}

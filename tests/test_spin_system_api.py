@@ -1,0 +1,95 @@
+"""The spin_system op: exact lines, first-order checks, several fields, errors."""
+
+import math
+
+import pytest
+
+from nmrcalc.api import handle
+
+AB = {"op": "spin_system", "observe": "1H", "spectrometer": "400 MHz",
+      "spins": [{"nucleus": "1H", "shift": "7.10 ppm"}, {"nucleus": "1H", "shift": "7.00 ppm"}],
+      "couplings": [{"between": [0, 1], "J": "8.0 Hz"}]}
+
+
+def run(request):
+    r = handle(request)
+    assert r["ok"], r
+    return r["result"]
+
+
+def test_ab_quartet_positions_and_roofing():
+    # Pople, Schneider & Bernstein (1959): AB lines at ν̄ ± (C ± J)/2, C = √(Δν² + J²);
+    # inner/outer intensity ratio (1 + J/C)/(1 − J/C)
+    r = run(AB)
+    ref = 100.0 / 100 * 400  # Ξ(1H) = 100 % (IUPAC 2001)
+    dnu, J = 0.10 * ref, 8.0
+    C, mean = math.hypot(dnu, J), 7.05 * ref
+    expected = sorted(mean + s * (C + t * J) / 2 for s in (-1, 1) for t in (-1, 1))
+    got = [l["Hz"] for l in r["lines"]]
+    assert all(abs(a - b) < 1e-6 for a, b in zip(got, expected))
+    inner, outer = r["lines"][1]["intensity"], r["lines"][0]["intensity"]
+    assert math.isclose(inner / outer, (1 + J / C) / (1 - J / C), rel_tol=1e-9)
+    assert all(math.isclose(l["ppm"], l["Hz"] / ref) for l in r["lines"])
+
+
+def test_first_order_check_and_threshold_field():
+    # rule of thumb Δν/J ≥ 10 for first order (common practice, no source); Δν ∝ B0, J is not
+    c = run(AB)["checks"][0]
+    assert math.isclose(c["delta_nu_over_J"], 40 / 8) and c["first_order"] is False
+    assert math.isclose(c["first_order_from_MHz"], 800.0)
+
+
+def test_several_fields_and_first_order_pattern():
+    req = {**AB, "fields": ["300 MHz", "600 MHz", "1200 MHz"], "first_order": True}
+    del req["spectrometer"]
+    blocks = run(req)["fields"]
+    assert [b["spectrometer_MHz"] for b in blocks] == [300, 600, 1200]
+    ratios = [b["checks"][0]["delta_nu_over_J"] for b in blocks]
+    assert ratios == sorted(ratios) and math.isclose(ratios[2] / ratios[0], 4)
+    # first-order pattern: two doublets of equal intensity (Pascal, I = 1/2)
+    fo = blocks[0]["first_order_lines"]
+    assert len(fo) == 4 and all(math.isclose(l["intensity"], 0.25) for l in fo)
+
+
+def test_mixed_nuclides_weak_coupling():
+    # 1H–19F: unlike nuclides couple weakly (J I_z I_z), so the 1H is an exact doublet (PSB 1959)
+    r = run({"op": "spin_system", "observe": "1H", "spectrometer": "400 MHz",
+             "spins": [{"nucleus": "1H", "shift": 4.5}, {"nucleus": "19F", "shift": -120}],
+             "couplings": [{"between": [0, 1], "J": 48}]})
+    assert len(r["lines"]) == 2 and math.isclose(r["lines"][1]["Hz"] - r["lines"][0]["Hz"], 48)
+
+
+def test_spectrum_with_first_order_overlay():
+    r = run({**AB, "spectrum": True, "first_order": True, "linewidth": "0.5 Hz"})["spectrum"]
+    assert len(r["x_ppm"]) == len(r["y"]) == len(r["first_order_y"])
+
+
+def test_aa_xx_caveat():
+    # AA′XX′: chemically equivalent, magnetically inequivalent: never first order (PSB 1959)
+    spins = [{"nucleus": "1H", "shift": 7.0}, {"nucleus": "1H", "shift": 7.0},
+             {"nucleus": "1H", "shift": 7.5}, {"nucleus": "1H", "shift": 7.5}]
+    couplings = [{"between": [0, 2], "J": 8}, {"between": [1, 3], "J": 8}, {"between": [0, 3], "J": 0.5},
+                 {"between": [1, 2], "J": 0.5}, {"between": [0, 1], "J": 2}, {"between": [2, 3], "J": 2}]
+    r = handle({"op": "spin_system", "observe": "1H", "spectrometer": 400, "spins": spins, "couplings": couplings})
+    assert r["ok"] and any("never first order" in w for w in r["warnings"])
+
+
+@pytest.mark.parametrize("change,field", [
+    ({"couplings": [{"between": [0, 0], "J": 8}]}, "couplings.0.between"),
+    ({"couplings": [{"between": [0, 5], "J": 8}]}, "couplings.0.between"),
+    ({"couplings": [{"between": [0, 1], "J": "NaN"}]}, "couplings.0.J"),
+    ({"spins": [{"nucleus": "1H", "shift": "inf"}]}, "spins.0.shift"),
+    ({"spins": [{"nucleus": "12C", "shift": 1}]}, "spins.0.nucleus"),
+    ({"observe": "13C"}, "observe"),
+    ({"fields": ["400 MHz", "zero"]}, "fields.1"),
+])
+def test_errors_name_the_field(change, field):
+    r = handle({**AB, **change})
+    assert not r["ok"] and r["error"]["field"] == field, r
+
+
+def test_too_large_is_refused_with_hint():
+    spins = [{"nucleus": "1H", "shift": 1 + 0.1 * k} for k in range(14)]
+    couplings = [{"between": [i, j], "J": 3} for i in range(14) for j in range(i + 1, 14)]
+    r = handle({"op": "spin_system", "observe": "1H", "spectrometer": 400, "spins": spins, "couplings": couplings})
+    assert not r["ok"] and r["error"]["code"] == "too_large" and "multiplet" in r["error"]["message"]
