@@ -66,6 +66,15 @@ def build_parser() -> argparse.ArgumentParser:
     m.add_argument("--spectrometer", help="1H frequency, e.g. '500 MHz'")
     m.add_argument("--center", help="centre in ppm")
     m.add_argument("--json", action="store_true", help="print the raw JSON response")
+    ss = sub.add_parser("spins", help="exact (second-order) spectrum of a small coupled spin system",
+                        description="exact spectrum; a spin is NUCLEUS,SHIFT_PPM[,COUNT] and a coupling I,J,HZ "
+                                    "with spins numbered from 0")
+    ss.add_argument("--observe", default="1H", help="observed nuclide (default 1H)")
+    ss.add_argument("--spin", action="append", default=[], help="NUCLEUS,SHIFT_PPM[,COUNT], e.g. 1H,7.10")
+    ss.add_argument("--coupling", action="append", default=[], help="I,J,HZ, e.g. 0,1,8.0")
+    ss.add_argument("--spectrometer", help="1H frequency, e.g. '400 MHz'")
+    ss.add_argument("--fields", help="several 1H frequencies, comma separated, e.g. 300,600,900")
+    ss.add_argument("--json", action="store_true", help="print the raw JSON response")
     sub.add_parser("api", help="read one JSON request on stdin, print the JSON response")
     sub.add_parser("demo", help="a worked example from an invented lab")
     return parser
@@ -137,6 +146,51 @@ def render_multiplet(response: dict) -> str:
     return "\n".join(out)
 
 
+def _number(text: str):
+    try:
+        return int(text)
+    except ValueError:
+        return text.strip()
+
+
+def spin_system_request(args) -> dict:
+    spins = []
+    for text in args.spin:
+        parts = [p.strip() for p in text.split(",")]
+        spin = {"nucleus": parts[0], "shift": parts[1] if len(parts) > 1 else ""}
+        if len(parts) > 2:
+            spin["count"] = _number(parts[2])
+        spins.append(spin)
+    couplings = []
+    for text in args.coupling:
+        parts = [p.strip() for p in text.split(",")]
+        couplings.append({"between": [_number(p) for p in parts[:2]], "J": parts[2] if len(parts) > 2 else ""})
+    request = {"op": "spin_system", "observe": args.observe, "spins": spins, "couplings": couplings}
+    if args.fields:
+        request["fields"] = [f.strip() for f in args.fields.split(",")]
+    elif args.spectrometer:
+        request["spectrometer"] = args.spectrometer
+    return request
+
+
+def render_spin_system(response: dict) -> str:
+    if not response["ok"]:
+        return render(response)
+    r = response["result"]
+    out = []
+    for block in r.get("fields", [r]):
+        out.append(f"at {block['spectrometer_MHz']:g} MHz ({block['field_T']:.4f} T):")
+        for c in block["checks"]:
+            verdict = "first order" if c["first_order"] else "second order"
+            when = c["first_order_from_MHz"]
+            hint = f"; reaches 10 at {when:.0f} MHz" if when and not c["first_order"] else ""
+            out.append(f"  spins {c['pair'][0]}–{c['pair'][1]}: Δν/J = {c['delta_nu_over_J']:.3g} ({verdict}{hint})")
+        out.append("  ppm        Hz           intensity")
+        out += [f"  {l['ppm']:<10.5f} {l['Hz']:<12.3f} {l['intensity']:.6f}" for l in block["lines"]]
+    out += [f"note: {w}" for w in response["warnings"]]
+    return "\n".join(out)
+
+
 DEMO = [
     ("The Harbourside teaching lab's magnet reads 400.13 MHz for 1H. Where is 29Si?",
      {"op": "frequency", "nucleus": "29Si", "spectrometer": "400.13 MHz"}),
@@ -161,6 +215,10 @@ def main(argv: list[str] | None = None) -> int:
     if args.command == "multiplet":
         response = handle(multiplet_request(args))
         print(json.dumps(response, indent=2, ensure_ascii=False) if args.json else render_multiplet(response))
+        return 0 if response["ok"] else 2
+    if args.command == "spins":
+        response = handle(spin_system_request(args))
+        print(json.dumps(response, indent=2, ensure_ascii=False) if args.json else render_spin_system(response))
         return 0 if response["ok"] else 2
     op, arg_spec, _ = COMMANDS[args.command]
     request = {"op": op}

@@ -29,3 +29,12 @@ def test_api_stdin():
 def test_demo_runs(capsys):
     assert main(["demo"]) == 0
     assert "29Si" in capsys.readouterr().out
+
+
+def test_multiplet_and_spins_commands(capsys):
+    # common practice, no source: three spin-1 partners give 1:3:6:7:6:3:1
+    assert main(["multiplet", "--observe", "13C", "--group", "2H,3,19.3 Hz"]) == 0
+    assert "1:3:6:7:6:3:1" in capsys.readouterr().out
+    assert main(["spins", "--spin", "1H,7.10", "--spin", "1H,7.00", "--coupling", "0,1,8", "--spectrometer", "400"]) == 0
+    assert "second order" in capsys.readouterr().out
+    assert main(["spins", "--spin", "1H,7.10", "--coupling", "0,0,8", "--spectrometer", "400"]) == 2
