@@ -241,24 +241,17 @@ def _spin_text(spin: Fraction) -> str:
     return str(spin) if spin.denominator == 1 else f"{spin.numerator}/{spin.denominator}"
 
 
-def _token(group: SpinGroup) -> str:
+def _group_text(group: SpinGroup, long: bool) -> str:
+    """Name of one group's pattern: short codes (``t``, ``1:1:1 t``) or, with ``long``, words."""
     lines = int(2 * group.count * group.spin) + 1
+    fallback = f"{lines}-line multiplet" if long else f"{lines}-line"
     if group.spin == Fraction(1, 2):
-        return _SHORT.get(lines, f"{lines}-line")
+        return _SHORT.get(lines, fallback)
     if lines > _MAX_RATIO_LINES:
-        return f"{lines}-line (I={_spin_text(group.spin)})"
+        detail = f"{group.count} × I={_spin_text(group.spin)}" if long else f"I={_spin_text(group.spin)}"
+        return f"{fallback} ({detail})"
     ratio = ":".join(map(str, group_coefficients(group.spin, group.count)))
-    return f"{ratio} {_SHORT.get(lines, f'{lines}-line')}"
-
-
-def _single_label(group: SpinGroup) -> str:
-    lines = int(2 * group.count * group.spin) + 1
-    if group.spin == Fraction(1, 2):
-        return _SHORT.get(lines, f"{lines}-line multiplet")
-    if lines > _MAX_RATIO_LINES:
-        return f"{lines}-line multiplet ({group.count} × I={_spin_text(group.spin)})"
-    ratio = ":".join(map(str, group_coefficients(group.spin, group.count)))
-    return f"{ratio} {_WORD[lines]}"
+    return f"{ratio} {_WORD[lines] if long else _SHORT.get(lines, fallback)}"
 
 
 def multiplet_label(groups: Iterable) -> str:
@@ -294,10 +287,10 @@ def multiplet_label(groups: Iterable) -> str:
     if not combined:
         return "s"
     if len(combined) == 1:
-        return _single_label(combined[0])
+        return _group_text(combined[0], long=True)
     combined.sort(key=lambda g: (-abs(g.J_Hz), g.spin))
     pieces: list[str] = []
-    for token in map(_token, combined):
+    for token in (_group_text(g, long=False) for g in combined):
         if token in _LETTERS and pieces and all(ch in _LETTERS for ch in pieces[-1]):
             pieces[-1] += token
         else:
