@@ -33,6 +33,10 @@ const NMR = (() => {
       // storage full or disabled: inputs simply will not survive a reload
     }
   }
+  /** The value saved under key by remember(), or undefined. */
+  function recall(key) {
+    return store[key];
+  }
 
   // ---------- DOM helpers (text only, never innerHTML) ----------
   function el(tag, attrs, ...children) {
@@ -159,6 +163,19 @@ const NMR = (() => {
       waiting.set(id, resolve);
       worker.postMessage({ type: "call", id, text: JSON.stringify(request) });
     }));
+  }
+
+  /** Stop a long calculation: end the worker, answer every waiting call with a
+   * "cancelled" error and start a fresh worker (calls queue until it is ready). */
+  function cancel() {
+    if (!worker) return;
+    worker.terminate();
+    for (const [id, resolve] of waiting) {
+      waiting.delete(id);
+      resolve({ ok: false, error: { code: "cancelled", message: "Calculation cancelled.", field: null }, warnings: [] });
+    }
+    setBoot(0.1, "Restarting Python after cancel…", "loading");
+    startWorker();
   }
 
   // ---------- forms ----------
@@ -449,6 +466,6 @@ const NMR = (() => {
 
   return {
     api, ready, el, fmt, fixed, nuclideLabel, numberNode, form, sharedField, resultList, sortableTable,
-    registerPanel, start, timings, magnetRequest, MAGNET_UNITS,
+    registerPanel, start, timings, magnetRequest, MAGNET_UNITS, remember, recall, cancel,
   };
 })();
