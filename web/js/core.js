@@ -237,11 +237,18 @@ const NMR = (() => {
         if (message) input.setAttribute("aria-invalid", "true");
         else input.removeAttribute("aria-invalid");
       },
+      watch() {
+        for (const node of [input, unitSelect].filter(Boolean)) {
+          node.addEventListener("input", () => state.save());
+          node.addEventListener("change", () => state.save());
+        }
+      },
       ownsKey(key) {
         const keys = field.keys || [field.id];
         return keys.some((k) => key === k || key.startsWith(`${k}.`));
       },
     };
+    state.watch();
     return state;
   }
 
@@ -278,10 +285,7 @@ const NMR = (() => {
     let timer = null;
     async function run() {
       const values = {};
-      for (const f of fields) {
-        f.save();
-        values[f.field.id] = f.read();
-      }
+      for (const f of fields) values[f.field.id] = f.read();
       const request = spec.request(values);
       const mine = ++sequence;
       const response = await api(request);

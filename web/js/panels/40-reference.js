@@ -24,7 +24,7 @@ NMR.registerPanel({
       const rows = [
         ["Element", `${n.element_name || n.element} (Z = ${n.Z})`],
         ["Spin I", n.spin],
-        ["Natural abundance", fmt(n.abundance_percent, 5), "%"],
+        ["Natural abundance", n.abundance_percent === null ? "none (not natural)" : fmt(n.abundance_percent, 5), n.abundance_percent === null ? "" : "%"],
         ["γ", NMR.numberNode(fmt(n.gamma_rad_per_s_per_T, 7)), "rad s⁻¹ T⁻¹"],
         ["Ξ (unified scale)", n.xi_percent === null ? "none" : fixed(n.xi_percent, 6), n.xi_percent === null ? "" : "%"],
         ["Reference compound", n.reference || "none"],
@@ -51,9 +51,9 @@ NMR.registerPanel({
       request: (v) => ({ op: "nuclides", search: v.search.value }),
       render(r, out) {
         const list = el("ul", { class: "pick-list" }, ...r.nuclides.map((n) => el("li", {},
-          el("button", { type: "button", class: "pick", onclick: () => show(n.symbol) },
+          el("button", { type: "button", class: "pick", onclick: () => show(n.symbol).then(() => details.scrollIntoView({ block: "nearest" })) },
             el("span", { class: "pick-sym" }, nuclideLabel(n.symbol)),
-            el("span", { class: "pick-meta" }, `${n.element_name || n.element} · I = ${n.spin} · ${fmt(n.abundance_percent, 3)} %`)))));
+            el("span", { class: "pick-meta" }, `${n.element_name || n.element} · I = ${n.spin} · ${n.abundance_percent === null ? "not natural" : `${fmt(n.abundance_percent, 3)} %`}`)))));
         out.replaceChildren(el("p", { class: "count" }, `${r.count} nuclides`), list);
       },
     });
