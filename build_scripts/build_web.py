@@ -41,9 +41,12 @@ SITE_CSP = (
 
 
 def page_scripts() -> list[Path]:
-    """Page scripts in load order: the shell, then panels by file name, then main.js."""
-    panels = sorted((WEB / "js" / "panels").glob("*.js"))
-    return [WEB / "js" / "core.js", *panels, WEB / "js" / "main.js"]
+    """Page scripts in load order: the shell (core.js), shared modules (other web/js/*.js,
+    e.g. plot.js, by name), panels (web/js/panels/*.js, by name), then main.js."""
+    js = WEB / "js"
+    shared = sorted(p for p in js.glob("*.js") if p.name not in ("core.js", "main.js"))
+    panels = sorted((js / "panels").glob("*.js"))
+    return [js / "core.js", *shared, *panels, js / "main.js"]
 
 
 def package_zip(package_dir: Path) -> bytes:

@@ -465,7 +465,8 @@ const NMR = (() => {
     fillNuclideList();
     buildShell();
     startWorker();
-    registerServiceWorker();
+    // after boot, so caching the files for offline use does not compete with the first load
+    ready.then(registerServiceWorker);
   }
 
   return {
