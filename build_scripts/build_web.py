@@ -118,7 +118,7 @@ def manifest() -> str:
         "theme_color": "#1d5a63",
         "icons": [
             {"src": "icons/icon-192.png", "sizes": "192x192", "type": "image/png"},
-            {"src": "icons/icon-512.png", "sizes": "512x512", "type": "image/png", "purpose": "any maskable"},
+            {"src": "icons/icon-512.png", "sizes": "512x512", "type": "image/png"},
         ],
     }, indent=2)
 
@@ -130,11 +130,11 @@ def service_worker(files: list[str], version: str) -> str:
     )
 
 
-def fill(template: str, head: str, body: str, csp: str) -> str:
-    return template.replace("@CSP@", csp).replace("@HEAD@", head).replace("@BODY@", body)
+def fill(template: str, head: str, body: str, csp: str, version: str) -> str:
+    return template.replace("@CSP@", csp).replace("@VERSION@", version).replace("@HEAD@", head).replace("@BODY@", body)
 
 
-def build_site(out: Path, package_bytes: bytes) -> None:
+def build_site(out: Path, package_bytes: bytes, version: str) -> None:
     if out.exists():
         shutil.rmtree(out)
     (out / "icons").mkdir(parents=True)
@@ -158,10 +158,10 @@ def build_site(out: Path, package_bytes: bytes) -> None:
         '<link rel="stylesheet" href="app.css">',
     ])
     body = "\n".join(f'<script defer src="js/{p.name}"></script>' for p in scripts)
-    (out / "index.html").write_text(fill((WEB / "index.html").read_text(), head, body, SITE_CSP))
+    (out / "index.html").write_text(fill((WEB / "index.html").read_text(), head, body, SITE_CSP, version))
     files = sorted(p.relative_to(out).as_posix() for p in out.rglob("*") if p.is_file())
-    version = hashlib.sha256(b"".join((out / f).read_bytes() for f in files)).hexdigest()[:12]
-    (out / "sw.js").write_text(service_worker(files, version))
+    content = hashlib.sha256(b"".join((out / f).read_bytes() for f in files)).hexdigest()[:12]
+    (out / "sw.js").write_text(service_worker(files, content))
 
 
 def data_block(name: str, payload: bytes, kind: str, gzip_it: bool) -> str:
@@ -171,7 +171,7 @@ def data_block(name: str, payload: bytes, kind: str, gzip_it: bool) -> str:
             f'data-kind="{kind}" data-gzip="{1 if gzip_it else 0}">{text}</script>')
 
 
-def build_single(out_file: Path, package_bytes: bytes) -> None:
+def build_single(out_file: Path, package_bytes: bytes, version: str) -> None:
     css = (WEB / "css" / "app.css").read_text()
     script = "\n".join(p.read_text() for p in page_scripts())
     blocks = [
@@ -192,7 +192,7 @@ def build_single(out_file: Path, package_bytes: bytes) -> None:
     head = '<link rel="icon" href="data:,">\n<style>' + css + "</style>"
     body = "\n".join(blocks) + "\n<script>" + script + "</script>"
     out_file.parent.mkdir(parents=True, exist_ok=True)
-    out_file.write_text(fill((WEB / "index.html").read_text(), head, body, csp))
+    out_file.write_text(fill((WEB / "index.html").read_text(), head, body, csp, version))
 
 
 def core_size() -> int:
@@ -210,10 +210,11 @@ def main(argv: list[str] | None = None) -> int:
         print(f"missing {', '.join(missing)} in {PYODIDE_DIR}: run `npm ci` in {ROOT} first", file=sys.stderr)
         return 1
     package_bytes = package_zip(args.package_dir)
-    build_site(args.out / "site", package_bytes)
-    build_single(args.out / "nmrcalc.html", package_bytes)
+    version = package_version(args.package_dir)
+    build_site(args.out / "site", package_bytes, version)
+    build_single(args.out / "nmrcalc.html", package_bytes, version)
     single = (args.out / "nmrcalc.html").stat().st_size
-    print(f"nmrcalc {package_version(args.package_dir)}: {args.out / 'site'} and {args.out / 'nmrcalc.html'}")
+    print(f"nmrcalc {version}: {args.out / 'site'} and {args.out / 'nmrcalc.html'}")
     print(f"single file {single / 1e6:.2f} MB = {single / core_size():.3f} x Pyodide core ({core_size() / 1e6:.2f} MB)")
     return 0
 

@@ -1,0 +1,395 @@
+// Panel: multiplet builder — one observed line split by groups of partners
+// (nuclides, elements with their isotope mixture, or bare spins). Everything
+// shown (label, ratio, lines, tree, spectrum, isotopologue traces) comes from
+// the API op "multiplet"; this file only collects inputs and draws results.
+"use strict";
+
+NMR.registerPanel({
+  id: "multiplet",
+  title: "Multiplet builder",
+  build(container) {
+    const { el, fmt } = NMR;
+    const ROWS_KEY = "mult.rows";
+    const short = (value) => String(Number(value.toPrecision(6))); // display only: drop trailing zeros
+    const PRESETS = [
+      {
+        name: "Labelled intermediate with a CD3 group (made up)",
+        fixed: { observe: "13C", magnet: ["400", "MHz"], center: "29.8", linewidth: "0.8", shape: "lorentzian" },
+        groups: [{ kind: "partner", partner: "2H", count: "3", J: "19.3", J_isotope: "", quadrupolar: "" }],
+        abundance: [{ isotope: "2H", percent: "99.8" }],
+      },
+      {
+        name: "Made-up platinum hydride complex",
+        fixed: { observe: "1H", magnet: ["500", "MHz"], center: "-12.4", linewidth: "2", shape: "lorentzian" },
+        groups: [
+          { kind: "partner", partner: "Pt", count: "1", J: "1180", J_isotope: "195Pt", quadrupolar: "" },
+          { kind: "partner", partner: "31P", count: "2", J: "14.5", J_isotope: "", quadrupolar: "" },
+        ],
+        abundance: [],
+      },
+      {
+        name: "Made-up tin reagent",
+        fixed: { observe: "1H", magnet: ["400", "MHz"], center: "0.27", linewidth: "0.6", shape: "lorentzian" },
+        groups: [{ kind: "partner", partner: "Sn", count: "1", J: "54", J_isotope: "119Sn", quadrupolar: "" }],
+        abundance: [],
+      },
+      {
+        name: "Borohydride salt",
+        fixed: { observe: "1H", magnet: ["400", "MHz"], center: "-0.4", linewidth: "3", shape: "lorentzian" },
+        groups: [{ kind: "partner", partner: "B", count: "1", J: "81", J_isotope: "11B", quadrupolar: "resolved" }],
+        abundance: [],
+      },
+    ];
+
+    const card = el("section", { class: "card card-wide", id: "card-mult", "aria-labelledby": "mult-title" });
+    card.append(
+      el("h2", { id: "mult-title" }, "Multiplet builder"),
+      el("p", { class: "intro" }, "Split one line by groups of equivalent partners, first order. An element partner brings its isotope mixture: each isotopologue is its own pattern."),
+    );
+    const presetBar = el("div", { class: "presets", role: "group", "aria-label": "Example scenarios (invented)" });
+    card.append(el("p", { class: "hint" }, "Examples (invented scenarios), one tap to load:"), presetBar);
+
+    const fixed = {
+      observe: NMR.sharedField("mult", { id: "observe", label: "Observed nucleus", value: "13C", list: "nuclide-list", keys: ["observe"] }),
+      magnet: NMR.sharedField("mult", { id: "magnet", label: "Magnet", value: "400", inputmode: "decimal", units: NMR.MAGNET_UNITS, keys: ["spectrometer", "field"] }),
+      center: NMR.sharedField("mult", { id: "center", label: "Centre (ppm)", value: "77.0", inputmode: "decimal", keys: ["center"] }),
+      linewidth: NMR.sharedField("mult", { id: "linewidth", label: "Line width (Hz)", value: "0.5", inputmode: "decimal", keys: ["linewidth"] }),
+      shape: NMR.sharedField("mult", { id: "shape", label: "Line shape", kind: "select", options: [["lorentzian", "Lorentzian"], ["gaussian", "Gaussian"]], keys: ["shape"] }),
+    };
+    const formNode = el("form", { class: "calc-form", id: "form-mult", novalidate: true });
+    formNode.append(el("div", { class: "fields" }, ...Object.values(fixed).map((f) => f.wrap)));
+
+    // ---------- partner groups and abundance overrides (dynamic rows) ----------
+    const saved = NMR.recall(ROWS_KEY);
+    let rows = saved && Array.isArray(saved.groups) ? saved : {
+      groups: [{ kind: "partner", partner: "2H", count: "3", J: "19.3", J_isotope: "", quadrupolar: "" }],
+      abundance: [],
+    };
+    const groupBox = el("div", { class: "rows", id: "mult-groups" });
+    const abundanceBox = el("div", { class: "rows", id: "mult-abundance" });
+    const rowErrors = new Map();
+    const save = () => NMR.remember(ROWS_KEY, rows);
+
+    function rowInput(id, label, value, key, onInput, extra) {
+      const input = el("input", { type: "text", id, autocomplete: "off", spellcheck: "false", "data-key": key, "aria-describedby": `${id}-error`, ...extra });
+      input.value = value;
+      input.addEventListener("input", () => {
+        onInput(input.value);
+        save();
+      });
+      const error = el("p", { class: "field-error", id: `${id}-error`, "aria-live": "polite" });
+      const wrap = el("div", { class: "field" }, el("label", { for: id }, label), input, error);
+      rowErrors.set(key, { wrap, input, error });
+      return wrap;
+    }
+    function rowSelect(id, label, value, options, key, onChange) {
+      const select = el("select", { id, "data-key": key, "aria-describedby": `${id}-error` });
+      for (const [v, text] of options) select.append(el("option", { value: v }, text));
+      select.value = value;
+      select.addEventListener("change", () => {
+        onChange(select.value);
+        save();
+      });
+      const error = el("p", { class: "field-error", id: `${id}-error`, "aria-live": "polite" });
+      rowErrors.set(key, { wrap: null, input: select, error });
+      return el("div", { class: "field" }, el("label", { for: id }, label), select, error);
+    }
+
+    function drawRows() {
+      rowErrors.clear();
+      groupBox.replaceChildren(...rows.groups.map((g, i) => {
+        const base = `mult-g${i}`;
+        const key = `groups.${i}`;
+        const box = el("fieldset", { class: "row-card", id: `${base}-box` });
+        const remove = el("button", { type: "button", class: "small-button", "aria-label": `Remove group ${i + 1}` }, "Remove");
+        remove.addEventListener("click", () => {
+          rows.groups.splice(i, 1);
+          save();
+          drawRows();
+          schedule();
+        });
+        box.append(el("legend", { class: "row-title" }, `Group ${i + 1}`));
+        box.append(rowSelect(`${base}-kind`, "Partner given as", g.kind, [["partner", "Isotope / element"], ["spin", "Bare spin"]], `${key}.kind`, (v) => {
+          g.kind = v;
+          drawRows();
+        }));
+        if (g.kind === "spin") {
+          box.append(rowInput(`${base}-spin`, "Spin I", g.spin || "1/2", `${key}.spin`, (v) => { g.spin = v; }, { inputmode: "text" }));
+        } else {
+          box.append(rowInput(`${base}-partner`, "Partner (e.g. 2H, Pt)", g.partner || "", `${key}.partner`, (v) => { g.partner = v; }, { list: "nuclide-list" }));
+        }
+        box.append(
+          rowInput(`${base}-count`, "How many", g.count, `${key}.count`, (v) => { g.count = v; }, { inputmode: "numeric" }),
+          rowInput(`${base}-J`, "J (Hz)", g.J, `${key}.J`, (v) => { g.J = v; }, { inputmode: "decimal" }),
+        );
+        if (g.kind !== "spin") {
+          box.append(
+            rowInput(`${base}-jiso`, "J belongs to isotope (elements)", g.J_isotope || "", `${key}.J_isotope`, (v) => { g.J_isotope = v; }, { list: "nuclide-list", placeholder: "default" }),
+            rowSelect(`${base}-quad`, "Quadrupolar splitting", g.quadrupolar || "", [["", "Usual choice"], ["resolved", "Resolved"], ["collapsed", "Collapsed"]], `${key}.quadrupolar`, (v) => { g.quadrupolar = v; }),
+          );
+        }
+        box.append(el("div", { class: "field" }, remove));
+        return box;
+      }));
+      abundanceBox.replaceChildren(...rows.abundance.map((a, i) => {
+        const base = `mult-a${i}`;
+        const box = el("fieldset", { class: "row-card" }, el("legend", { class: "row-title" }, `Abundance override ${i + 1}`));
+        const remove = el("button", { type: "button", class: "small-button", "aria-label": `Remove abundance override ${i + 1}` }, "Remove");
+        remove.addEventListener("click", () => {
+          rows.abundance.splice(i, 1);
+          save();
+          drawRows();
+          schedule();
+        });
+        box.append(
+          rowInput(`${base}-iso`, "Isotope", a.isotope, `abundance.${i}.isotope`, (v) => { a.isotope = v; }, { list: "nuclide-list" }),
+          rowInput(`${base}-pct`, "Abundance (%)", a.percent, `abundance.${i}.percent`, (v) => { a.percent = v; }, { inputmode: "decimal" }),
+          el("div", { class: "field" }, remove),
+        );
+        return box;
+      }));
+    }
+
+    const addGroup = el("button", { type: "button", class: "small-button", id: "mult-add-group" }, "+ Add partner group");
+    addGroup.addEventListener("click", () => {
+      rows.groups.push({ kind: "partner", partner: "1H", count: "1", J: "7", J_isotope: "", quadrupolar: "" });
+      save();
+      drawRows();
+      schedule();
+    });
+    const addAbundance = el("button", { type: "button", class: "small-button", id: "mult-add-abundance" }, "+ Add abundance override");
+    addAbundance.addEventListener("click", () => {
+      rows.abundance.push({ isotope: "2H", percent: "99.8" });
+      save();
+      drawRows();
+      schedule();
+    });
+    formNode.append(
+      el("h3", { class: "sub-title" }, "Partner groups"), groupBox, el("div", { class: "actions" }, addGroup),
+      el("h3", { class: "sub-title" }, "Isotope abundances (optional)"),
+      el("p", { class: "hint" }, "Natural abundances are used unless you set one here, e.g. 2H at 99.8 % for a labelled site."),
+      abundanceBox, el("div", { class: "actions" }, addAbundance),
+    );
+    const submit = el("button", { type: "submit", class: "primary" }, "Build multiplet");
+    const formError = el("p", { class: "form-error", id: "mult-form-error", "aria-live": "polite" });
+    const cancel = el("button", { type: "button", class: "small-button", id: "mult-cancel" }, "Cancel");
+    const busy = el("div", { class: "busy", id: "mult-busy", hidden: true, role: "status" }, el("span", {}, "Calculating…"), cancel);
+    formNode.append(el("div", { class: "actions" }, submit, busy, formError));
+    card.append(formNode);
+
+    // ---------- results ----------
+    const out = el("div", { class: "result", id: "mult-result", "aria-live": "polite" });
+    const headline = el("p", { class: "headline", id: "mult-label" });
+    const ratio = el("p", { class: "count", id: "mult-ratio" });
+    const warn = el("ul", { class: "warnings", id: "mult-warnings" });
+    const plots = el("div", { class: "pair" });
+    const left = el("div");
+    const right = el("div");
+    plots.append(left, right);
+    left.append(el("h3", { class: "sub-title" }, "Stick diagram"));
+    const sticks = NMRPlot.create(left, { label: "Stick diagram of the multiplet", height: 220, fileName: "multiplet-sticks" });
+    sticks.node.id = "mult-sticks";
+    right.append(el("h3", { class: "sub-title" }, "Splitting tree (to scale, Hz)"));
+    const tree = NMRPlot.tree(right, { label: "Splitting tree", fileName: "multiplet-tree" });
+    tree.node.id = "mult-tree";
+    const treeNote = el("p", { class: "hint", id: "mult-tree-note" });
+    right.append(treeNote);
+    const spectrumTitle = el("h3", { class: "sub-title" }, "Line-shape spectrum");
+    const spectrumBox = el("div");
+    const spectrum = NMRPlot.create(spectrumBox, { label: "Line-shape spectrum", height: 300, fileName: "multiplet-spectrum" });
+    spectrum.node.id = "mult-spectrum";
+    const isoBox = el("div", { id: "mult-isotopologues" });
+    const linesBox = el("div", { id: "mult-lines" });
+    out.append(headline, ratio, warn, plots, spectrumTitle, spectrumBox, isoBox, linesBox);
+    card.append(out);
+    container.append(el("div", { class: "cards" }, card));
+
+    function groupRequest(g) {
+      const req = { count: g.count.trim() === "" ? "" : Number(g.count), J: g.J.trim() === "" ? "" : `${g.J.trim()} Hz` };
+      if (Number.isNaN(req.count)) req.count = g.count;
+      if (g.kind === "spin") req.spin = (g.spin || "").trim();
+      else req.partner = (g.partner || "").trim();
+      if (g.kind !== "spin" && (g.J_isotope || "").trim()) req.J_isotope = g.J_isotope.trim();
+      if (g.kind !== "spin" && g.quadrupolar) req.quadrupolar = g.quadrupolar;
+      return req;
+    }
+    function request() {
+      const req = { op: "multiplet", observe: fixed.observe.read().value, ...NMR.magnetRequest(fixed.magnet.read()) };
+      const center = fixed.center.read().value;
+      if (center !== "") req.center = `${center} ppm`;
+      const width = fixed.linewidth.read().value;
+      req.linewidth = width === "" ? "" : `${width} Hz`;
+      req.shape = fixed.shape.read().value;
+      req.spectrum = true;
+      req.groups = rows.groups.map(groupRequest);
+      const abundance = {};
+      for (const a of rows.abundance) if (a.isotope.trim()) abundance[a.isotope.trim()] = a.percent.trim();
+      if (Object.keys(abundance).length) req.abundance = abundance;
+      return req;
+    }
+
+    function clearErrors() {
+      for (const f of Object.values(fixed)) f.setError("");
+      for (const { input, error } of rowErrors.values()) {
+        error.textContent = "";
+        input.removeAttribute("aria-invalid");
+        input.closest(".field").classList.remove("has-error");
+      }
+      formError.textContent = "";
+    }
+    function showError(field, message) {
+      const owner = field ? Object.values(fixed).find((f) => f.ownsKey(field)) : null;
+      if (owner) return owner.setError(message);
+      let target = null;
+      const abundance = /^abundance\.(.+)$/.exec(field || "");
+      if (abundance) {
+        const i = rows.abundance.findIndex((a) => a.isotope.trim() === abundance[1]);
+        if (i >= 0) target = rowErrors.get(`abundance.${i}.percent`);
+      }
+      let key = field || "";
+      while (!target && key) {
+        target = rowErrors.get(key) || rowErrors.get(`${key}.partner`) || rowErrors.get(`${key}.spin`);
+        key = key.includes(".") ? key.slice(0, key.lastIndexOf(".")) : "";
+      }
+      if (!target) {
+        formError.textContent = message;
+        return;
+      }
+      target.error.textContent = message;
+      target.input.setAttribute("aria-invalid", "true");
+      target.input.closest(".field").classList.add("has-error");
+    }
+
+    function render(r, warnings) {
+      headline.textContent = r.label;
+      ratio.textContent = r.ratio ? `Intensity ratio ${r.ratio}` : "Several isotopologues: see the table below for each pattern and share.";
+      warn.replaceChildren(...warnings.map((text) => el("li", {}, text)));
+      const ppm = r.center_ppm !== null && r.center_ppm !== undefined;
+      const key = ppm ? "ppm" : "Hz";
+      const xLabel = ppm ? `δ(${r.observe}) / ppm` : `offset from the centre / Hz`;
+      const stickTraces = r.isotopologues
+        ? r.isotopologues.slice(0, 6).map((iso, i) => ({
+          label: `${iso.label} (${fmt(iso.share * 100, 4)} %)${i > 0 ? " — satellites" : ""}`, kind: "sticks",
+          x: iso.lines.map((l) => l[key]), y: iso.lines.map((l) => l.intensity * iso.share), color: i,
+        }))
+        : [{ label: "lines", kind: "sticks", x: r.lines.map((l) => l[key]), y: r.lines.map((l) => l.intensity), color: 0, legend: false }];
+      sticks.update({ traces: stickTraces }, false);
+      sticks.setXLabel(xLabel);
+
+      const s = r.spectrum;
+      const sx = ppm ? s.x_ppm : s.x_Hz;
+      const traces = [{ label: s.traces.length ? "sum of isotopologues" : "spectrum", x: sx, y: s.y, color: 0, legend: s.traces.length > 0 }];
+      s.traces.slice(0, 6).forEach((t, i) => {
+        traces.push({ label: `${t.label} (${fmt(t.share * 100, 4)} %)${i > 0 ? " — satellites" : ""}`, x: sx, y: t.y, color: i + 1, dashed: true });
+      });
+      spectrum.update({ traces }, false);
+      spectrum.setXLabel(xLabel);
+      spectrumTitle.textContent = s.traces.length ? "Line-shape spectrum: each isotopologue and the sum" : "Line-shape spectrum";
+
+      if (r.tree) {
+        const ordered = r.groups.filter((g) => g.J_Hz !== 0).sort((a, b) => Math.abs(b.J_Hz) - Math.abs(a.J_Hz));
+        tree.update(r.tree, ["one line", ...ordered.map((g) => `${g.count} × I=${g.spin}, J ${short(g.J_Hz)} Hz`)]);
+        treeNote.textContent = r.tree.length < 2 ? "No coupling: a single line." : "Largest coupling first; each row splits every line of the row above.";
+      } else {
+        tree.update([], []);
+        treeNote.textContent = r.isotopologues ? "With an isotope mixture each isotopologue has its own tree; see the traces below." : "Too many lines to draw a tree.";
+      }
+
+      if (r.isotopologues) {
+        const columns = [
+          { key: "label", label: "Isotopologue", value: (x) => x.label, show: (x) => x.label },
+          { key: "share", label: "Share (%)", numeric: true, value: (x) => x.share, show: (x) => fmt(x.share * 100, 5) },
+          { key: "mult", label: "Pattern", value: (x) => x.multiplet, show: (x) => x.multiplet },
+          { key: "ratio", label: "Ratio", value: (x) => x.ratio, show: (x) => x.ratio },
+          { key: "role", label: "Role", value: (x) => x.role, show: (x) => x.role },
+        ];
+        const isoRows = r.isotopologues.map((x, i) => ({ ...x, role: i === 0 ? "main line" : "satellites" }));
+        isoBox.replaceChildren(el("h3", { class: "sub-title" }, "Isotopologues"), NMR.sortableTable(columns, isoRows, "Isotopologues and their shares"));
+        if (r.dropped_share > 0) isoBox.append(el("p", { class: "hint" }, `Left out (below the cut-off): ${fmt(r.dropped_share * 100, 3)} %`));
+      } else {
+        isoBox.replaceChildren();
+      }
+
+      const lineColumns = [
+        { key: "ppm", label: "δ (ppm)", numeric: true, value: (l) => l.ppm, show: (l) => (l.ppm === undefined ? "—" : NMR.fixed(l.ppm, 5)) },
+        { key: "Hz", label: "Offset (Hz)", numeric: true, value: (l) => l.Hz, show: (l) => NMR.fixed(l.Hz, 3) },
+        { key: "intensity", label: "Relative intensity", numeric: true, value: (l) => l.intensity, show: (l) => fmt(l.intensity, 5) },
+      ];
+      const csv = ["ppm,Hz,intensity", ...r.lines.map((l) => `${l.ppm === undefined ? "" : l.ppm},${l.Hz},${l.intensity}`)].join("\n") + "\n";
+      const tsv = ["ppm\tHz\tintensity", ...r.lines.map((l) => `${l.ppm === undefined ? "" : l.ppm}\t${l.Hz}\t${l.intensity}`)].join("\n");
+      const copy = el("button", { type: "button", class: "small-button", id: "mult-copy" }, "Copy table");
+      const note = el("span", { class: "hint", "aria-live": "polite" });
+      copy.addEventListener("click", () => {
+        navigator.clipboard.writeText(tsv).then(() => { note.textContent = "Copied."; }, () => { note.textContent = "Copy is blocked here; use Export CSV."; });
+      });
+      const exportCsv = el("button", { type: "button", class: "small-button", id: "mult-csv" }, "Export CSV");
+      exportCsv.addEventListener("click", () => NMRPlot.downloadText("multiplet-lines.csv", "text/csv", csv));
+      linesBox.replaceChildren(
+        el("h3", { class: "sub-title" }, `Lines (${r.lines.length})`),
+        el("div", { class: "actions" }, copy, exportCsv, note),
+        NMR.sortableTable(lineColumns, r.lines, "Lines: position and relative intensity (sum 1)"),
+      );
+    }
+
+    let sequence = 0;
+    let timer = null;
+    async function run() {
+      clearTimeout(timer);
+      const mine = ++sequence;
+      const busyTimer = setTimeout(() => { busy.hidden = false; }, 250);
+      const response = await NMR.api(request());
+      clearTimeout(busyTimer);
+      if (mine !== sequence) return;
+      busy.hidden = true;
+      clearErrors();
+      card.classList.toggle("is-error", !response.ok);
+      if (!response.ok) {
+        showError(response.error.field, response.error.message);
+        out.classList.add("stale");
+        return;
+      }
+      out.classList.remove("stale");
+      render(response.result, response.warnings || []);
+    }
+    function schedule() {
+      clearTimeout(timer);
+      timer = setTimeout(run, 450);
+    }
+    cancel.addEventListener("click", () => {
+      sequence += 1;
+      busy.hidden = true;
+      NMR.cancel();
+      formError.textContent = "Cancelled. Change an input or press Build multiplet to try again.";
+    });
+    formNode.addEventListener("submit", (event) => {
+      event.preventDefault();
+      run();
+    });
+    formNode.addEventListener("input", schedule);
+    formNode.addEventListener("change", schedule);
+    for (const f of Object.values(fixed)) f.listeners.push(schedule);
+
+    for (const preset of PRESETS) {
+      const button = el("button", { type: "button", class: "preset" }, preset.name);
+      button.addEventListener("click", () => {
+        for (const [id, value] of Object.entries(preset.fixed)) {
+          const f = fixed[id];
+          if (Array.isArray(value)) {
+            f.input.value = value[0];
+            f.unitSelect.value = value[1];
+          } else {
+            f.input.value = value;
+          }
+          f.save();
+        }
+        rows = JSON.parse(JSON.stringify({ groups: preset.groups, abundance: preset.abundance }));
+        save();
+        drawRows();
+        run();
+      });
+      presetBar.append(button);
+    }
+    drawRows();
+    NMR.ready.then(run);
+  },
+});
