@@ -104,8 +104,7 @@ async function boot(message) {
   pyodide.pyimport("sys").path.insert(0, APP_DIR);
   progress("import", "Importing nmrcalc");
   bridge = pyodide.pyimport("nmrcalc_bridge").bridge;
-  const version = bridge(JSON.stringify({ op: "version" }));
-  post({ type: "ready", ms: performance.now() - started, python: pyodide.version, probe: version });
+  post({ type: "ready", ms: performance.now() - started, python: pyodide.version });
 }
 
 function call(message) {

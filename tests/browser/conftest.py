@@ -108,10 +108,12 @@ def open_page(browser):
     def _open(url: str, offline: bool = False) -> Recorded:
         context = browser.new_context(viewport={"width": 1280, "height": 900}, service_workers="allow")
         contexts.append(context)
-        if offline:
-            context.set_offline(True)
         page = context.new_page()
         recorded = Recorded(context, page)
+        if offline:
+            context.set_offline(True)
+            # and refuse every route except the page itself
+            context.route("**/*", lambda route: route.continue_() if route.request.url == url else route.abort())
         page.goto(url)
         recorded.wait_ready()
         return recorded

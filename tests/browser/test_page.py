@@ -24,11 +24,7 @@ def _url(target, dist, request) -> str:
 
 def _open(target, dist, request, open_page):
     url = _url(target, dist, request)
-    recorded = open_page(url, offline=(target == "single"))
-    if target == "single":
-        # every route except the file itself is refused, on top of the offline switch
-        recorded.context.route("**/*", lambda route: route.continue_() if route.request.url == url else route.abort())
-    return url, recorded
+    return url, open_page(url, offline=(target == "single"))
 
 
 def _own_requests_only(target, url, requests):

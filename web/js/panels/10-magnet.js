@@ -7,12 +7,14 @@ NMR.registerPanel({
   title: "Magnet & frequencies",
   build(container) {
     const { el, fmt, fixed, nuclideLabel } = NMR;
+    // ppm differences to 3 decimals; rounding noise around zero shown as 0
+    const ppmText = (x) => (x === null || x === undefined ? "—" : fixed(Math.abs(x) < 5e-4 ? 0 : x, 3));
     const magnet = NMR.sharedField("freqs", {
       id: "magnet", label: "Magnet (¹H frequency or field)", value: "400.13", inputmode: "decimal",
       units: NMR.MAGNET_UNITS, keys: ["spectrometer", "field"],
       hint: "The proton frequency printed on the console, or the field strength.",
     });
-    const magnetCard = el("section", { class: "card card-magnet", "aria-label": "Magnet" }, el("h2", {}, "Magnet"), magnet.wrap);
+    const magnetCard = el("section", { class: "card card-magnet card-wide", "aria-label": "Magnet" }, el("h2", {}, "Magnet"), magnet.wrap);
     const magnetOut = el("p", { class: "magnet-summary", id: "freqs-magnet-summary", "aria-live": "polite" });
     magnetCard.append(magnetOut);
 
@@ -35,7 +37,7 @@ NMR.registerPanel({
           ["Nucleus", nuclideLabel(r.symbol)],
           ["Larmor frequency", fixed(r.larmor_MHz, 6), "MHz"],
           ["0 ppm reference", fixed(r.reference_MHz, 6), r.reference_MHz === null ? "" : "MHz"],
-          ["0 ppm − Larmor", fmt(r.difference_ppm, 6), r.difference_ppm === null ? "" : "ppm"],
+          ["0 ppm − Larmor", ppmText(r.difference_ppm), r.difference_ppm === null ? "" : "ppm"],
           ["Spin", r.spin],
           ["Natural abundance", fmt(r.abundance_percent, 4), "%"],
         ]));
@@ -97,7 +99,7 @@ NMR.registerPanel({
           { key: "ab", label: "Abundance %", numeric: true, value: (row) => row.abundance_percent, show: (row) => fmt(row.abundance_percent, 4) },
           { key: "nu", label: "Larmor MHz", numeric: true, value: (row) => row.larmor_MHz, show: (row) => fixed(row.larmor_MHz, 4) },
           { key: "ref", label: "0 ppm MHz", numeric: true, value: (row) => row.reference_MHz, show: (row) => fixed(row.reference_MHz, 4) },
-          { key: "dppm", label: "0 ppm − Larmor, ppm", numeric: true, value: (row) => row.difference_ppm, show: (row) => fmt(row.difference_ppm, 5) },
+          { key: "dppm", label: "0 ppm − Larmor, ppm", numeric: true, value: (row) => row.difference_ppm, show: (row) => ppmText(row.difference_ppm) },
           { key: "dc", label: "Receptivity vs ¹³C", numeric: true, value: (row) => row.receptivity_C, show: (row) => NMR.numberNode(fmt(row.receptivity_C, 3)) },
         ];
         out.replaceChildren(

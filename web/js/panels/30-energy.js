@@ -20,7 +20,7 @@ NMR.registerPanel({
         { id: "magnet", label: "Magnet", value: "500", inputmode: "decimal", units: NMR.MAGNET_UNITS, keys: ["spectrometer", "field"] },
         { id: "temperature", label: "Temperature (K)", value: "298", inputmode: "decimal" },
         {
-          id: "photon", label: "Compare with a photon (optional)", value: "", inputmode: "decimal", keys: ["wavelength", "wavenumber"],
+          id: "photon", label: "Photon (optional)", value: "254", hint: "A UV/visible wavelength or an IR wavenumber to compare with.", inputmode: "decimal", keys: ["wavelength", "wavenumber"],
           units: [{ unit: "nm", label: "nm" }, { unit: "cm-1", label: "cm⁻¹" }],
         },
       ],
