@@ -14,6 +14,11 @@ from nmrcalc.units import parse_positive, parse_quantity
 
 STRONGEST_MAGNET_T = 30.0   # common practice: high-resolution magnets reach about 28 T (1.2 GHz)
 WEAKEST_FIELD_T = 1e-5      # below Earth's field (about 5e-5 T)
+# Every quantity, in its default unit (T, MHz, Hz, ppm, K, nm, cm-1, %), must be 0 or have a
+# magnitude in [MIN_MAGNITUDE, MAX_MAGNITUDE]: far beyond any real sample, yet products and
+# quotients of a few such numbers stay finite and nonzero, so no result overflows JSON.
+MAX_MAGNITUDE = 1e12
+MIN_MAGNITUDE = 1e-12
 
 
 def require(req: dict, key: str, prefix: str = ""):
@@ -27,8 +32,20 @@ def quantity(req: dict, key: str, kind: str, *, positive: bool = False, default=
         if default is not None:
             return default
         raise InputError(f"'{key}' is missing.", prefix + key, "missing_field")
-    parse = parse_positive if positive else parse_quantity
-    return parse(req[key], kind, prefix + key)
+    return bounded(req[key], kind, prefix + key, positive)
+
+
+def bounded(value, kind: str, field: str, positive: bool = False) -> float:
+    """Parse ``value`` as a ``kind`` quantity that is 0 or has a magnitude in
+    [MIN_MAGNITUDE, MAX_MAGNITUDE] (in the default unit); else InputError naming ``field``."""
+    try:
+        x = (parse_positive if positive else parse_quantity)(value, kind, field)
+    except OverflowError:  # an integer too large for a float
+        x = float("inf")
+    if x != 0 and not MIN_MAGNITUDE <= abs(x) <= MAX_MAGNITUDE:
+        raise InputError(f"{field}: {x:.3g} is out of range; the size must lie between "
+                         f"{MIN_MAGNITUDE:g} and {MAX_MAGNITUDE:g} in the default unit (or be 0).", field)
+    return x
 
 
 def nucleus(req: dict, key: str, *, magnetic: bool = True, prefix: str = "") -> Nuclide:
@@ -52,10 +69,10 @@ def magnet(req: dict, warnings: list[str]) -> tuple[float, float]:
     if has_spec and has_field:
         raise InputError("Give either 'spectrometer' or 'field', not both.", "field")
     if has_spec:
-        proton_MHz = parse_positive(req["spectrometer"], "frequency", "spectrometer")
+        proton_MHz = bounded(req["spectrometer"], "frequency", "spectrometer", positive=True)
         field_T = field_T_from_proton_MHz(proton_MHz)
     elif has_field:
-        field_T = parse_positive(req["field"], "field", "field")
+        field_T = bounded(req["field"], "field", "field", positive=True)
         proton_MHz = proton_MHz_from_field_T(field_T)
     else:
         raise InputError("Give the magnet as 'spectrometer' (1H frequency, e.g. '500 MHz') or "
