@@ -58,3 +58,9 @@ def test_bounds_keep_zero_and_ordinary_values():
     assert handle({"op": "ppm_hz", "nucleus": "13C", "spectrometer": 500, "ppm": -0.0})["ok"]
     assert handle({"op": "frequency", "nucleus": "1H", "field": "1e-12 T"})["ok"]
     assert handle({"op": "scale_coupling", "J": "1e12 Hz", "from": "1H", "to": "2H"})["ok"]
+
+
+def test_multiplet_isotopologue_limit_names_groups():
+    """The physics calls element sites "sites"; the request has no such key."""
+    e = _err({**MULT, "groups": [{"partner": "B", "count": 64, "J": 7}, {"partner": "Pt", "count": 64, "J": 7}]})
+    assert (e["code"], e["field"]) == ("too_large", "groups"), e

@@ -192,7 +192,10 @@ def op_multiplet(req, warnings):
               "groups": [{"spin": spin_text(Fraction(s)), "count": c, "J_Hz": j} for s, c, j in plain]}
     if sites:
         min_share = quantity(req, "min_share", "percent", default=1e-4)
-        spec = isotopologue_spectrum(sites, plain, min_share)
+        try:
+            spec = isotopologue_spectrum(sites, plain, min_share)
+        except InputError as e:  # the physics names its element sites "sites"; the request calls them groups
+            raise InputError(e.message, "groups" if e.field == "sites" else e.field, e.code) from None
         main = spec.species[0]
         lines = spec.lines
         result["isotopologues"] = [
