@@ -64,3 +64,12 @@ def test_multiplet_isotopologue_limit_names_groups():
     """The physics calls element sites "sites"; the request has no such key."""
     e = _err({**MULT, "groups": [{"partner": "B", "count": 64, "J": 7}, {"partner": "Pt", "count": 64, "J": 7}]})
     assert (e["code"], e["field"]) == ("too_large", "groups"), e
+
+
+def test_spin_system_limits_name_request_fields():
+    e = _err({**SPINS, "spins": [{"nucleus": "1H", "shift": 1.0, "count": 65}, {"nucleus": "1H", "shift": 2.0}]})
+    assert (e["code"], e["field"]) == ("too_large", "spins.0.count"), e     # was "sites.0.count"
+    t0 = time.perf_counter()
+    e = _err({**SPINS, "spins": [{"nucleus": "1H", "shift": k * 1e-3} for k in range(10**4)], "couplings": []})
+    assert (e["code"], e["field"]) == ("too_large", "spins"), e             # took about 3 s per field
+    assert time.perf_counter() - t0 < CALL_BOUND_S

@@ -15,15 +15,19 @@ from nmrcalc.errors import InputError
 from nmrcalc.nuclides import Nuclide
 from nmrcalc.physics import larmor, lineshape
 from nmrcalc.physics.multiplet import multiplet
-from nmrcalc.physics.spin_system import Site, equivalence_caveats, first_order_checks, simulate
+from nmrcalc.physics.spin_system import MAX_COUNT, Site, equivalence_caveats, first_order_checks, simulate
 
 MAX_FIELDS = 12
+MAX_SPINS = 64  # spin entries in one request; each may stand for up to MAX_COUNT equivalent nuclei
 
 
 def _spins(req) -> list[tuple[Nuclide, float, int]]:
     spins = req.get("spins")
     if not isinstance(spins, list) or not spins:
         raise InputError("'spins' must list the spins: nucleus, shift and count.", "spins", "missing_field")
+    if len(spins) > MAX_SPINS:
+        raise InputError(f"At most {MAX_SPINS} spin entries at once (use count for equivalent nuclei).",
+                         "spins", "too_large")
     out = []
     for i, s in enumerate(spins):
         where = f"spins.{i}."
@@ -34,6 +38,8 @@ def _spins(req) -> list[tuple[Nuclide, float, int]]:
         count = s.get("count", 1)
         if isinstance(count, bool) or not isinstance(count, int) or count < 1:
             raise InputError("count must be a whole number of at least 1.", where + "count")
+        if count > MAX_COUNT:
+            raise InputError(f"count is limited to {MAX_COUNT} equivalent nuclei.", where + "count", "too_large")
         out.append((nuc, shift, count))
     return out
 
