@@ -73,3 +73,14 @@ def test_spin_system_limits_name_request_fields():
     e = _err({**SPINS, "spins": [{"nucleus": "1H", "shift": k * 1e-3} for k in range(10**4)], "couplings": []})
     assert (e["code"], e["field"]) == ("too_large", "spins"), e             # took about 3 s per field
     assert time.perf_counter() - t0 < CALL_BOUND_S
+
+
+@pytest.mark.parametrize("value", ["x" * 10**6, deep_list(1000)], ids=["long", "deep"])
+def test_bad_spin_and_shape_are_not_echoed_whole(value):
+    """A 10**6-character spin came back inside the message; a 1000-deep list broke repr()."""
+    e = _err({**MULT, "groups": [{"spin": value, "count": 1, "J": 7}]})
+    assert e["field"] == "groups.0.spin" and len(e["message"]) < 200, e["message"][:300]
+    for req in ({**MULT, "spectrum": True}, {**SPINS, "spectrum": True}):
+        e = _err({**req, "shape": value})
+        assert e["field"] == "shape" and len(e["message"]) < 200, e["message"][:300]
+

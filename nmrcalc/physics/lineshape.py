@@ -31,6 +31,7 @@ relative height below 1e-31) are not evaluated.
 from __future__ import annotations
 
 import math
+import reprlib
 from fractions import Fraction
 from typing import Iterable, NamedTuple
 
@@ -119,7 +120,7 @@ def sample_spectrum(
     lines = _check_sticks(sticks)
     fwhm = _positive(fwhm_Hz, "fwhm_Hz")
     if shape not in SHAPES:
-        raise InputError(f"shape must be one of {', '.join(SHAPES)}, got {shape!r}", field="shape")
+        raise InputError(f"shape must be one of {', '.join(SHAPES)}, got {reprlib.repr(shape)}", field="shape")
     density = _finite(points_per_fwhm, "points_per_fwhm")
     if density < MIN_POINTS_PER_FWHM:
         raise InputError(f"points_per_fwhm must be at least {MIN_POINTS_PER_FWHM}, got {density}", field="points_per_fwhm")

@@ -38,6 +38,7 @@ field="groups")``.  The defaults easily cover 50 spin-1/2 nuclei (2**50) and
 from __future__ import annotations
 
 import math
+import reprlib
 from fractions import Fraction
 from typing import Iterable, NamedTuple
 
@@ -75,7 +76,7 @@ def parse_spin(value: object) -> Fraction:
             raise ValueError
         spin = Fraction(value) if not isinstance(value, str) else Fraction(value.strip())
     except (TypeError, ValueError, ZeroDivisionError):
-        raise InputError(f"spin must be a number such as 1/2, 1 or 3/2, got {value!r}", field="spin") from None
+        raise InputError(f"spin must be a number such as 1/2, 1 or 3/2, got {reprlib.repr(value)}", field="spin") from None
     if spin <= 0 or (2 * spin).denominator != 1:
         raise InputError(f"spin must be a positive multiple of 1/2, got {spin}", field="spin")
     return spin
