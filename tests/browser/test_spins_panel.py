@@ -31,7 +31,7 @@ def test_preset_checks_fields_error_and_cancel(dist, open_page):
     rows = page.locator("#spins-checks tbody tr")
     expect(rows).to_have_count(len(want["checks"]))
     for check in want["checks"]:
-        pair = f"spin {check['pair'][0] + 1} – spin {check['pair'][1] + 1}"
+        pair = f"{check['pair'][0]}–{check['pair'][1]} ({check['nucleus']})"
         row = rows.filter(has_text=pair)
         expect(row).to_contain_text(f"{check['delta_nu_over_J']:.2f}")
         expect(row).to_contain_text("yes" if check["first_order"] else "no")

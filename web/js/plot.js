@@ -43,7 +43,8 @@ const NMRPlot = (() => {
   function ticks(lo, hi, count) {
     const raw = (hi - lo) / Math.max(count, 1);
     const power = 10 ** Math.floor(Math.log10(raw));
-    const step = [1, 2, 5, 10].map((m) => m * power).find((s) => s >= raw) || raw;
+    // the smallest "nice" step that gives at most count + 1 ticks
+    const step = [0.1, 0.2, 0.5, 1, 2, 5, 10].map((m) => m * power).find((s) => (hi - lo) / s <= count + 1) || raw;
     const out = [];
     for (let v = Math.ceil(lo / step) * step; v <= hi + step * 1e-9; v += step) out.push(Number(v.toPrecision(12)));
     const places = Math.max(0, -Math.floor(Math.log10(step) + 1e-9));

@@ -10,7 +10,8 @@ NMR.registerPanel({
   build(container) {
     const { el, fmt } = NMR;
     const ROWS_KEY = "mult.rows";
-    const short = (value) => String(Number(value.toPrecision(6))); // display only: drop trailing zeros
+    // display only: n significant digits without trailing zeros
+    const short = (value, digits) => String(Number(value.toPrecision(digits || 6)));
     const PRESETS = [
       {
         name: "Labelled intermediate with a CD3 group (made up)",
@@ -109,7 +110,7 @@ NMR.registerPanel({
           schedule();
         });
         box.append(el("legend", { class: "row-title" }, `Group ${i + 1}`));
-        box.append(rowSelect(`${base}-kind`, "Partner given as", g.kind, [["partner", "Isotope / element"], ["spin", "Bare spin"]], `${key}.kind`, (v) => {
+        box.append(rowSelect(`${base}-kind`, "Partner kind", g.kind, [["partner", "Named"], ["spin", "Spin only"]], `${key}.kind`, (v) => {
           g.kind = v;
           drawRows();
         }));
@@ -260,6 +261,16 @@ NMR.registerPanel({
       target.input.closest(".field").classList.add("has-error");
     }
 
+    // Minor isotopologues around a main species without a magnetic partner are
+    // called satellites (e.g. 195Pt or 117/119Sn satellites); otherwise just minor.
+    function role(r, i) {
+      if (i === 0) return "main";
+      return r.isotopologues[0].label.startsWith("spin-0") ? "satellites" : "minor isotopologue";
+    }
+    function roleNote(r, i) {
+      return i === 0 ? "" : ` — ${role(r, i)}`;
+    }
+
     function render(r, warnings) {
       headline.textContent = r.label;
       ratio.textContent = r.ratio ? `Intensity ratio ${r.ratio}` : "Several isotopologues: see the table below for each pattern and share.";
@@ -269,7 +280,7 @@ NMR.registerPanel({
       const xLabel = ppm ? `δ(${r.observe}) / ppm` : `offset from the centre / Hz`;
       const stickTraces = r.isotopologues
         ? r.isotopologues.slice(0, 6).map((iso, i) => ({
-          label: `${iso.label} (${fmt(iso.share * 100, 4)} %)${i > 0 ? " — satellites" : ""}`, kind: "sticks",
+          label: `${iso.label} (${short(iso.share * 100, 4)} %)${roleNote(r, i)}`, kind: "sticks",
           x: iso.lines.map((l) => l[key]), y: iso.lines.map((l) => l.intensity * iso.share), color: i,
         }))
         : [{ label: "lines", kind: "sticks", x: r.lines.map((l) => l[key]), y: r.lines.map((l) => l.intensity), color: 0, legend: false }];
@@ -278,14 +289,14 @@ NMR.registerPanel({
 
       const s = r.spectrum;
       const sx = ppm ? s.x_ppm : s.x_Hz;
-      const traces = [{ label: s.traces.length ? "sum of isotopologues" : "spectrum", x: sx, y: s.y, color: 0, legend: s.traces.length > 0 }];
-      s.traces.slice(0, 6).forEach((t, i) => {
-        traces.push({ label: `${t.label} (${fmt(t.share * 100, 4)} %)${i > 0 ? " — satellites" : ""}`, x: sx, y: t.y, color: i + 1, dashed: true });
-      });
+      const traces = s.traces.slice(0, 5).map((t, i) => ({ label: `${t.label} (${short(t.share * 100, 4)} %)${roleNote(r, i)}`, x: sx, y: t.y, color: i + 1, dashed: true }));
+      traces.push({ label: s.traces.length ? "sum of isotopologues" : "spectrum", x: sx, y: s.y, color: 0, legend: s.traces.length > 0 });
       spectrum.update({ traces }, false);
       spectrum.setXLabel(xLabel);
       spectrumTitle.textContent = s.traces.length ? "Line-shape spectrum: each isotopologue and the sum" : "Line-shape spectrum";
 
+      plots.classList.toggle("single", !r.tree);
+      right.hidden = !r.tree;
       if (r.tree) {
         const ordered = r.groups.filter((g) => g.J_Hz !== 0).sort((a, b) => Math.abs(b.J_Hz) - Math.abs(a.J_Hz));
         tree.update(r.tree, ["one line", ...ordered.map((g) => `${g.count} × I=${g.spin}, J ${short(g.J_Hz)} Hz`)]);
@@ -298,12 +309,12 @@ NMR.registerPanel({
       if (r.isotopologues) {
         const columns = [
           { key: "label", label: "Isotopologue", value: (x) => x.label, show: (x) => x.label },
-          { key: "share", label: "Share (%)", numeric: true, value: (x) => x.share, show: (x) => fmt(x.share * 100, 5) },
+          { key: "share", label: "Share (%)", numeric: true, value: (x) => x.share, show: (x) => short(x.share * 100, 5) },
           { key: "mult", label: "Pattern", value: (x) => x.multiplet, show: (x) => x.multiplet },
           { key: "ratio", label: "Ratio", value: (x) => x.ratio, show: (x) => x.ratio },
           { key: "role", label: "Role", value: (x) => x.role, show: (x) => x.role },
         ];
-        const isoRows = r.isotopologues.map((x, i) => ({ ...x, role: i === 0 ? "main line" : "satellites" }));
+        const isoRows = r.isotopologues.map((x, i) => ({ ...x, role: role(r, i) }));
         isoBox.replaceChildren(el("h3", { class: "sub-title" }, "Isotopologues"), NMR.sortableTable(columns, isoRows, "Isotopologues and their shares"));
         if (r.dropped_share > 0) isoBox.append(el("p", { class: "hint" }, `Left out (below the cut-off): ${fmt(r.dropped_share * 100, 3)} %`));
       } else {
@@ -313,7 +324,7 @@ NMR.registerPanel({
       const lineColumns = [
         { key: "ppm", label: "δ (ppm)", numeric: true, value: (l) => l.ppm, show: (l) => (l.ppm === undefined ? "—" : NMR.fixed(l.ppm, 5)) },
         { key: "Hz", label: "Offset (Hz)", numeric: true, value: (l) => l.Hz, show: (l) => NMR.fixed(l.Hz, 3) },
-        { key: "intensity", label: "Relative intensity", numeric: true, value: (l) => l.intensity, show: (l) => fmt(l.intensity, 5) },
+        { key: "intensity", label: "Relative intensity", numeric: true, value: (l) => l.intensity, show: (l) => short(l.intensity, 5) },
       ];
       const csv = ["ppm,Hz,intensity", ...r.lines.map((l) => `${l.ppm === undefined ? "" : l.ppm},${l.Hz},${l.intensity}`)].join("\n") + "\n";
       const tsv = ["ppm\tHz\tintensity", ...r.lines.map((l) => `${l.ppm === undefined ? "" : l.ppm}\t${l.Hz}\t${l.intensity}`)].join("\n");

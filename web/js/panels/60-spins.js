@@ -37,7 +37,7 @@ NMR.registerPanel({
       observe: NMR.sharedField("spins", { id: "observe", label: "Observed nucleus", value: "1H", list: "nuclide-list", keys: ["observe"] }),
       magnet: NMR.sharedField("spins", { id: "magnet", label: "Magnet", value: "400", inputmode: "decimal", units: NMR.MAGNET_UNITS, keys: ["spectrometer", "field"] }),
       linewidth: NMR.sharedField("spins", { id: "linewidth", label: "Line width (Hz)", value: "0.8", inputmode: "decimal", keys: ["linewidth"] }),
-      fields: NMR.sharedField("spins", { id: "fields", label: "Several fields (MHz ¹H, comma-separated)", value: "60, 300, 400, 600, 800, 1200", keys: ["fields"] }),
+      fields: NMR.sharedField("spins", { id: "fields", label: "Several fields (MHz ¹H, comma-separated)", value: "60, 300, 400, 600, 800, 1200", keys: ["fields"], wide: true }),
       overlay: NMR.sharedField("spins", { id: "overlay", label: "Overlay the first-order pattern", kind: "checkbox", value: true, keys: ["first_order"] }),
     };
     const formNode = el("form", { class: "calc-form", id: "form-spins", novalidate: true });
@@ -62,7 +62,7 @@ NMR.registerPanel({
     }
     function spinSelect(id, label, value, key, onChange) {
       const node = el("select", { id, "aria-describedby": `${id}-error` });
-      rows.spins.forEach((s, k) => node.append(el("option", { value: String(k) }, `spin ${k + 1} (${s.nucleus} ${s.shift} ppm)`)));
+      rows.spins.forEach((s, k) => node.append(el("option", { value: String(k) }, `spin ${k} · ${s.shift} ppm`)));
       node.value = String(value);
       node.addEventListener("change", () => {
         onChange(Number(node.value));
@@ -96,11 +96,11 @@ NMR.registerPanel({
         const base = `spins-c${k}`;
         const where = `couplings.${k}`;
         box.append(el("fieldset", { class: "row-card" },
-          el("legend", { class: "row-title" }, `Coupling ${k + 1}`),
+          el("legend", { class: "row-title" }, `Coupling ${k}`),
           spinSelect(`${base}-i`, "Between", c.i, `${where}.between`, (v) => { c.i = v; }),
           spinSelect(`${base}-j`, "and", c.j, `${where}.between.1`, (v) => { c.j = v; }),
           input(`${base}-J`, "J (Hz)", c.J, `${where}.J`, (v) => { c.J = v; }, { inputmode: "decimal" }),
-          removeButton(`Remove coupling ${k + 1}`, () => rows.couplings.splice(k, 1)),
+          removeButton(`Remove coupling ${k}`, () => rows.couplings.splice(k, 1)),
         ));
       });
       const add = el("button", { type: "button", class: "small-button", id: "spins-add-coupling" }, "+ Add coupling");
@@ -115,10 +115,10 @@ NMR.registerPanel({
 
     function drawCouplingMatrix() {
       const n = rows.spins.length;
-      const head = el("tr", {}, el("th", { scope: "col" }, "J (Hz)"), ...rows.spins.map((_, k) => el("th", { scope: "col" }, `spin ${k + 1}`)));
+      const head = el("tr", {}, el("th", { scope: "col" }, "J (Hz)"), ...rows.spins.map((_, k) => el("th", { scope: "col" }, `spin ${k}`)));
       const body = el("tbody");
       for (let i = 0; i < n; i += 1) {
-        const tr = el("tr", {}, el("th", { scope: "row" }, `spin ${i + 1}`));
+        const tr = el("tr", {}, el("th", { scope: "row" }, `spin ${i}`));
         for (let j = 0; j < n; j += 1) {
           const k = rows.couplings.findIndex((c) => (c.i === i && c.j === j) || (c.i === j && c.j === i));
           if (i === j) {
@@ -127,7 +127,7 @@ NMR.registerPanel({
             tr.append(el("td", { class: "muted" }, k >= 0 ? rows.couplings[k].J : ""));
           } else {
             const id = `spins-m${i}-${j}`;
-            const cell = el("input", { type: "text", id, inputmode: "decimal", autocomplete: "off", "aria-label": `J between spin ${i + 1} and spin ${j + 1} (Hz)` });
+            const cell = el("input", { type: "text", id, inputmode: "decimal", autocomplete: "off", "aria-label": `J between spin ${i} and spin ${j} (Hz)` });
             cell.value = k >= 0 ? rows.couplings[k].J : "";
             cell.addEventListener("input", () => {
               const at = rows.couplings.findIndex((c) => (c.i === i && c.j === j) || (c.i === j && c.j === i));
@@ -159,11 +159,11 @@ NMR.registerPanel({
         const base = `spins-s${k}`;
         const where = `spins.${k}`;
         return el("fieldset", { class: "row-card" },
-          el("legend", { class: "row-title" }, `Spin ${k + 1}`),
+          el("legend", { class: "row-title" }, `Spin ${k}`),
           input(`${base}-nucleus`, "Nucleus", s.nucleus, `${where}.nucleus`, (v) => { s.nucleus = v; }, { list: "nuclide-list" }),
           input(`${base}-shift`, "Shift (ppm)", s.shift, `${where}.shift`, (v) => { s.shift = v; }, { inputmode: "decimal" }),
           input(`${base}-count`, "Equivalent nuclei", s.count, `${where}.count`, (v) => { s.count = v; }, { inputmode: "numeric" }),
-          removeButton(`Remove spin ${k + 1}`, () => {
+          removeButton(`Remove spin ${k}`, () => {
             rows.spins.splice(k, 1);
             rows.couplings = rows.couplings.filter((c) => c.i !== k && c.j !== k)
               .map((c) => ({ i: c.i > k ? c.i - 1 : c.i, j: c.j > k ? c.j - 1 : c.j, J: c.J }));
@@ -183,7 +183,8 @@ NMR.registerPanel({
       schedule();
     });
     formNode.append(
-      el("h3", { class: "sub-title" }, "Spins"), spinBox, el("div", { class: "actions" }, addSpin),
+      el("h3", { class: "sub-title" }, "Spins"),
+      el("p", { class: "hint" }, "Spins are numbered from 0, as in the messages below the spectrum."), spinBox, el("div", { class: "actions" }, addSpin),
       el("h3", { class: "sub-title" }, "Couplings"),
       el("div", { class: "actions", role: "group", "aria-label": "Coupling editor view" }, listButton, matrixButton),
       couplingBox,
@@ -269,16 +270,16 @@ NMR.registerPanel({
       spectrum.update({ traces }, true);
       spectrum.setXLabel(`δ(${r.observe}) / ppm`);
       const columns = [
-        { key: "pair", label: "Pair", value: (c) => c.pair[0] * 100 + c.pair[1], show: (c) => `spin ${c.pair[0] + 1} – spin ${c.pair[1] + 1} (${c.nucleus})` },
+        { key: "pair", label: "Pair", value: (c) => c.pair[0] * 100 + c.pair[1], show: (c) => `${c.pair[0]}–${c.pair[1]} (${c.nucleus})` },
         { key: "dnu", label: "Δν (Hz)", numeric: true, value: (c) => c.delta_nu_Hz, show: (c) => NMR.fixed(c.delta_nu_Hz, 1) },
         { key: "J", label: "J (Hz)", numeric: true, value: (c) => c.J_Hz, show: (c) => NMR.fixed(c.J_Hz, 2) },
         { key: "ratio", label: "Δν/J", numeric: true, value: (c) => c.delta_nu_over_J, show: (c) => (c.delta_nu_over_J === null ? "—" : NMR.fixed(c.delta_nu_over_J, 2)) },
-        { key: "first", label: "First order?", value: (c) => (c.first_order ? 1 : 0), show: (c) => el("span", { class: c.first_order ? "yes" : "no" }, c.first_order ? "yes" : "no") },
-        { key: "from", label: "First order from (MHz ¹H)", numeric: true, value: (c) => c.first_order_from_MHz, show: (c) => (c.first_order_from_MHz === null || c.first_order_from_MHz === undefined ? "—" : fmt(c.first_order_from_MHz, 4)) },
+        { key: "first", label: "1st order?", value: (c) => (c.first_order ? 1 : 0), show: (c) => el("span", { class: c.first_order ? "yes" : "no" }, c.first_order ? "yes" : "no") },
+        { key: "from", label: "1st order from (MHz)", numeric: true, value: (c) => c.first_order_from_MHz, show: (c) => (c.first_order_from_MHz === null || c.first_order_from_MHz === undefined ? "—" : fmt(c.first_order_from_MHz, 4)) },
       ];
       checkBox.replaceChildren(
         el("h3", { class: "sub-title" }, "First-order check, pair by pair"),
-        r.checks.length ? NMR.sortableTable(columns, r.checks, "Coupled pairs: Δν/J and the magnet where it reaches the first-order limit") : el("p", { class: "hint" }, "No coupled pairs."),
+        r.checks.length ? NMR.sortableTable(columns, r.checks, "Coupled pairs: Δν/J and the magnet where it reaches the first-order limit") : el("p", { class: "hint" }, "No coupled pairs of like nuclides: only those are checked; a coupling between different nuclides (e.g. ¹H–¹⁹F) is treated as first order."),
       );
     }
     function renderFields(r) {
