@@ -33,6 +33,13 @@ PYODIDE_DIR = ROOT / "node_modules" / "pyodide"
 CORE_FILES = ["pyodide.mjs", "pyodide.asm.mjs", "pyodide.asm.wasm", "python_stdlib.zip", "pyodide-lock.json"]
 ZIP_DATE = (2020, 1, 1, 0, 0, 0)
 
+# Content-Security-Policy, set by <meta> (a static host or file:// gives no headers).
+# Site: only the site's own files; 'wasm-unsafe-eval' is needed to compile Pyodide's wasm.
+# Single file: inline style and script allowed by sha256 hash only; the worker and the two
+# Pyodide JS modules must be data: URLs (a file:// page has an opaque origin, so blob: module
+# workers do not start), hence script-src/worker-src data:; the worker fetches nothing
+# (its fetch is answered from memory), hence connect-src 'none'.
+# Not possible by <meta>: frame-ancestors, report-uri/report-to, sandbox (header-only).
 SITE_CSP = (
     "default-src 'self'; script-src 'self' 'wasm-unsafe-eval'; worker-src 'self'; "
     "connect-src 'self'; img-src 'self'; style-src 'self'; manifest-src 'self'; "

@@ -43,6 +43,8 @@ def test_page(target, dist, request, open_page):
     page = rec.page
     _calculate_through_the_ui(page)
     _errors_beside_their_fields(page)
+    if target == "single":
+        _tablet_touch_targets_and_labels(page)
     if target == "site":
         _service_worker_has_cached_everything(page)
         rec.context.set_offline(True)  # the reload below then comes from the service worker's cache
@@ -94,6 +96,30 @@ def _errors_beside_their_fields(page):
     page.click("#form-larmor button[type=submit]")
     expect(page.locator("#larmor-nucleus-error")).not_to_be_empty()
     expect(page.locator("#freqs-magnet-error")).to_be_empty()
+
+
+SMALL_OR_UNLABELLED = """() => {
+  const problems = [];
+  for (const node of document.querySelectorAll("button, input, select, textarea, a[href]")) {
+    const box = node.getBoundingClientRect();
+    if (box.width === 0 && box.height === 0) continue;  // not on screen (other tab, skip link)
+    if (node.classList.contains("skip")) continue;
+    const target = node.type === "checkbox" ? node.closest("label").getBoundingClientRect() : box;
+    if (target.height < 44 || target.width < 44) problems.push(`${node.id || node.textContent}: ${target.width}x${target.height}`);
+    const named = node.labels?.length || node.getAttribute("aria-label") || node.textContent.trim();
+    if (node.matches("input, select, textarea") && !named) problems.push(`${node.id}: no label`);
+  }
+  return problems;
+}"""
+
+
+def _tablet_touch_targets_and_labels(page):
+    """Every visible control on every tab is at least 44 x 44 px at tablet size and has a label."""
+    page.set_viewport_size({"width": 820, "height": 1180})
+    for tab in page.locator("[role=tab]").all():
+        tab.click()
+        assert page.evaluate(SMALL_OR_UNLABELLED) == [], tab.text_content()
+    page.set_viewport_size({"width": 1280, "height": 900})
 
 
 def _service_worker_has_cached_everything(page):
