@@ -12,11 +12,12 @@ from __future__ import annotations
 import json
 
 from nmrcalc.api.core_ops import OPS as CORE_OPS
+from nmrcalc.api.identify_ops import OPS as IDENTIFY_OPS
 from nmrcalc.api.multiplet_ops import OPS as MULTIPLET_OPS
 from nmrcalc.api.spin_system_ops import OPS as SPIN_SYSTEM_OPS
 from nmrcalc.errors import InputError
 
-OPS = {**CORE_OPS, **MULTIPLET_OPS, **SPIN_SYSTEM_OPS}
+OPS = {**CORE_OPS, **MULTIPLET_OPS, **SPIN_SYSTEM_OPS, **IDENTIFY_OPS}
 MAX_REQUEST_CHARS = 1_000_000
 
 

@@ -1,0 +1,249 @@
+"""The ``identify`` op: measured lines → ranked first-order explanations.
+
+Request keys: ``lines`` (``[{"position": "1234.5 Hz", "intensity": 1}, …]``
+or ``[[position, intensity], …]``) or ``peaklist`` (pasted text, see
+``nmrcalc.api.peaklist``); ``unit`` (``"Hz"`` or ``"ppm"``, for positions
+written without a unit); ``observe`` (default 1H) and ``spectrometer`` /
+``field`` (needed for ppm); ``partners`` (nuclides such as ``"2H"``,
+elements such as ``"B"``, bare spins such as ``"1/2"`` or ``"spin=3/2"``;
+default: bare spins 1/2 to 3); ``tolerance`` (Hz); ``max_groups``,
+``max_count``, ``top``.
+
+Unit rule for a peak list with no unit in its header and no ``unit`` key:
+ppm if a magnet is given, every |value| is below ``PPM_GUESS_MAX`` and the
+values spread over less than ``PPM_GUESS_SPREAD`` (a multiplet is narrower
+than 1 ppm, while Hz offsets of a multiplet span several Hz); otherwise Hz.
+The guess is reported in ``notes``.
+
+Default tolerance: ``min(DEFAULT_TOLERANCE_HZ, TOLERANCE_FRACTION × the
+smallest spacing of neighbouring lines)``.
+
+An element partner uses its natural isotope mixture (``nmrcalc.nuclides``),
+``J`` belonging to its most abundant magnetic isotope and the couplings to
+the other isotopes scaled by |γ| ratios (``nmrcalc.physics.coupling``); an
+element whose most abundant magnetic isotope makes up at least
+``PLAIN_ELEMENT_SHARE`` of it (H, F, P, …) is treated as that one nuclide.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from fractions import Fraction
+
+from nmrcalc.api.fields import magnet, nucleus, quantity
+from nmrcalc.api.peaklist import parse_peaklist
+from nmrcalc.errors import InputError
+from nmrcalc.nuclides import element_of, isotopes_of, lookup_magnetic
+from nmrcalc.physics import larmor
+from nmrcalc.physics.identify import MAX_COUNT, MAX_GROUPS, PartnerOption, identify, spin_option
+from nmrcalc.physics.multiplet import parse_spin
+from nmrcalc.units import parse_quantity
+
+PPM_GUESS_MAX = 20.0
+PPM_GUESS_SPREAD = 1.0
+DEFAULT_TOLERANCE_HZ = 0.5
+TOLERANCE_FRACTION = 0.25
+PLAIN_ELEMENT_SHARE = 0.99
+MAX_PARTNERS = 8
+_SPIN_TEXT = re.compile(r"\s*(?:spin\s*=?|i\s*=)?\s*(\d+(?:/2)?)\s*", re.IGNORECASE)
+
+
+def _partner_option(text, where: str, notes: list[str]) -> PartnerOption:
+    if isinstance(text, (int, float)) and not isinstance(text, bool):
+        text = str(text)
+    if not isinstance(text, str) or not text.strip():
+        raise InputError("A partner is a nuclide (2H), an element (B) or a spin (1/2, spin=3/2).", where)
+    m = _SPIN_TEXT.fullmatch(text)
+    if m:
+        try:
+            return spin_option(parse_spin(m.group(1)))
+        except InputError as e:
+            raise InputError(e.message, where) from None
+    el = element_of(text)
+    if el is None:
+        nuc = lookup_magnetic(text, where)
+        return PartnerOption(nuc.symbol, "nuclide", ((nuc.symbol, nuc.spin, Fraction(1), 1.0),))
+    natural = [n for n in isotopes_of(el) if n.abundance_percent]
+    magnetic = [n for n in natural if n.magnetic]
+    if not magnetic:
+        raise InputError(f"{el} has no magnetic isotope at natural abundance: it gives no splitting.", where, "not_magnetic")
+    ref = max(magnetic, key=lambda n: n.abundance_percent)
+    total = sum(n.abundance_percent for n in natural)
+    if ref.abundance_percent / total >= PLAIN_ELEMENT_SHARE:
+        notes.append(f"Partner {el} is taken as {ref.symbol} ({ref.abundance_percent:g} % of {el}).")
+        return PartnerOption(ref.symbol, "nuclide", ((ref.symbol, ref.spin, Fraction(1), 1.0),))
+    isotopes = [(n.symbol, n.spin, Fraction(repr(n.abundance_percent / total)),
+                 abs(n.gamma_rad_per_s_per_T / ref.gamma_rad_per_s_per_T)) for n in magnetic]
+    spin0 = sum(n.abundance_percent for n in natural if not n.magnetic) / total
+    if spin0 > 0:
+        isotopes.append((f"spin-0 {el}", Fraction(0), Fraction(repr(spin0)), 0.0))
+    if len(magnetic) > 1:
+        notes.append(f"J of a {el} group is J to {ref.symbol}; the other isotopes' couplings follow by the γ ratio "
+                     "(an estimate: isotope effects of about 1–2 %).")
+    return PartnerOption(el, "element", tuple(isotopes))
+
+
+def _position(value, unit: str, where: str) -> tuple[float, str]:
+    """(number, 'Hz' or 'ppm'): a string with ppm is ppm, other units are Hz-like, bare numbers take ``unit``."""
+    if isinstance(value, str) and value.strip().lower().endswith("ppm"):
+        return parse_quantity(value, "shift", where), "ppm"
+    if isinstance(value, str) and re.search(r"[a-zA-Z]", value):
+        return parse_quantity(value, "coupling", where), "Hz"
+    return parse_quantity(value, "coupling", where), unit
+
+
+def _intensity(item: dict, where: str) -> float:
+    for key in ("intensity", "height", "integral"):
+        if item.get(key) not in (None, ""):
+            y = item[key]
+            if isinstance(y, bool) or not isinstance(y, (int, float)) or not math.isfinite(y):
+                raise InputError("The intensity must be a number.", f"{where}.{key}")
+            if y <= 0:
+                raise InputError("The intensity must be greater than zero.", f"{where}.{key}")
+            return float(y)
+    raise InputError("Give the line's intensity (height or integral).", f"{where}.intensity", "missing_field")
+
+
+def _read_lines(req: dict, unit: str) -> list[tuple[float, float, str]]:
+    lines = req.get("lines")
+    if not isinstance(lines, list) or not lines:
+        raise InputError("'lines' must be a non-empty list of {position, intensity}.", "lines", "missing_field")
+    if len(lines) > 64:
+        raise InputError(f"At most 64 lines can be analysed, got {len(lines)}.", "lines", "too_large")
+    out = []
+    for i, item in enumerate(lines):
+        where = f"lines.{i}"
+        if isinstance(item, (list, tuple)) and len(item) == 2:
+            item = {"position": item[0], "intensity": item[1]}
+        if not isinstance(item, dict):
+            raise InputError("Each line is {\"position\": …, \"intensity\": …}.", where)
+        if item.get("position") in (None, ""):
+            raise InputError("The line's position is missing.", f"{where}.position", "missing_field")
+        x, u = _position(item["position"], unit, f"{where}.position")
+        out.append((x, _intensity(item, where), u))
+    return out
+
+
+def _read_peaklist(req: dict, unit_key: str | None, has_magnet: bool, notes: list[str]):
+    parsed = parse_peaklist(req.get("peaklist"))
+    values = [p for _, p, _ in parsed.peaks]
+    if parsed.unit is not None:
+        unit = parsed.unit
+        if unit == "Hz" and parsed.header and _column_has(parsed.header, "ppm"):
+            notes.append("The peak list has both ppm and Hz columns: the Hz column is used.")
+    elif unit_key is not None:
+        unit = unit_key
+    elif has_magnet and all(abs(v) < PPM_GUESS_MAX for v in values) and max(values) - min(values) < PPM_GUESS_SPREAD:
+        unit = "ppm"
+        notes.append(f"The peak list states no unit: read as ppm (a guess: a magnet is given, all values are below "
+                     f"{PPM_GUESS_MAX:g} and they spread over less than {PPM_GUESS_SPREAD:g}); set 'unit' to override.")
+    else:
+        unit = "Hz"
+        notes.append("The peak list states no unit: read as Hz; set 'unit' to 'ppm' if it is in ppm.")
+    if not parsed.intensities_given:
+        notes.append("The peak list has one column: all intensities are taken as equal.")
+    return [(p, y, unit) for _, p, y in parsed.peaks]
+
+
+def _column_has(header: list[str], word: str) -> bool:
+    return any(word in h.lower() for h in header)
+
+
+def _small_int(req: dict, key: str, lo: int, hi: int, default: int) -> int:
+    value = req.get(key, default)
+    if isinstance(value, float) and value.is_integer():
+        value = int(value)
+    if isinstance(value, bool) or not isinstance(value, int) or not lo <= value <= hi:
+        raise InputError(f"'{key}' must be a whole number from {lo} to {hi}.", key)
+    return value
+
+
+def op_identify(req, warnings):
+    notes: list[str] = []
+    observe = nucleus(req, "observe") if req.get("observe") not in (None, "") else None
+    unit_key = req.get("unit")
+    if unit_key not in (None, ""):
+        if not isinstance(unit_key, str) or unit_key.strip().lower() not in ("hz", "ppm"):
+            raise InputError("'unit' must be 'Hz' or 'ppm'.", "unit")
+        unit_key = "ppm" if unit_key.strip().lower() == "ppm" else "Hz"
+    else:
+        unit_key = None
+    has_magnet = req.get("spectrometer") not in (None, "") or req.get("field") not in (None, "")
+    has_lines, has_list = req.get("lines") not in (None, "", []), req.get("peaklist") not in (None, "")
+    if has_lines == has_list:
+        raise InputError("Give the measured lines either as 'lines' or as a pasted 'peaklist' (one of them).",
+                         "lines", "missing_field")
+    raw = _read_lines(req, unit_key or "Hz") if has_lines else _read_peaklist(req, unit_key, has_magnet, notes)
+
+    ref_MHz = None
+    if has_magnet:
+        if observe is None:
+            observe = lookup_magnetic("1H")
+            notes.append("No observed nuclide given: 1H assumed for the ppm scale.")
+        field_T, proton_MHz = magnet(req, warnings)
+        ref_MHz = larmor.reference_MHz(observe, proton_MHz) or larmor.larmor_MHz(observe, field_T)
+    if any(u == "ppm" for *_, u in raw) and ref_MHz is None:
+        raise InputError("Positions in ppm need the magnet: give 'spectrometer' (or 'field').", "spectrometer",
+                         "missing_field")
+    units = {u for *_, u in raw}
+    if len(units) > 1:
+        notes.append("Positions mix ppm and Hz: ppm are converted with the observed nuclide's reference frequency.")
+    lines_Hz = [(x * ref_MHz if u == "ppm" else x, y) for x, y, u in raw]
+
+    partners = req.get("partners")
+    if partners in (None, "", []):
+        options = None
+    else:
+        if not isinstance(partners, list):
+            raise InputError("'partners' must be a list such as [\"H\", \"2H\", \"B\"].", "partners")
+        if len(partners) > MAX_PARTNERS:
+            raise InputError(f"At most {MAX_PARTNERS} partners can be searched.", "partners", "too_large")
+        options = []
+        for i, p in enumerate(partners):
+            opt = _partner_option(p, f"partners.{i}", notes)
+            if opt not in options:
+                options.append(opt)
+
+    xs = sorted(x for x, _ in lines_Hz)
+    spacings = [b - a for a, b in zip(xs, xs[1:]) if b - a > 0]
+    if req.get("tolerance") not in (None, ""):
+        tol = quantity(req, "tolerance", "coupling", positive=True)
+    else:
+        tol = DEFAULT_TOLERANCE_HZ
+        if spacings:
+            tol = min(tol, TOLERANCE_FRACTION * min(spacings))
+        notes.append(f"Tolerance {tol:.3g} Hz (default: the smaller of {DEFAULT_TOLERANCE_HZ:g} Hz and "
+                     f"{TOLERANCE_FRACTION:g} × the smallest line spacing).")
+    found = identify(lines_Hz, tol, options,
+                     max_groups=_small_int(req, "max_groups", 1, MAX_GROUPS, MAX_GROUPS),
+                     max_count=_small_int(req, "max_count", 1, MAX_COUNT, MAX_COUNT),
+                     top=_small_int(req, "top", 1, 20, 5))
+    peak = max(y for _, y in lines_Hz)
+    candidates = []
+    for cand in found.candidates:
+        groups = []
+        for g in cand.groups:
+            who = {"spin": g.option.label} if g.option.kind == "spin" else {"partner": g.option.label}
+            groups.append({**who, "count": g.count, "J_Hz": g.J_Hz})
+        predicted = []
+        for x, w in cand.lines:
+            line = {"Hz": cand.center_Hz + x, "intensity": cand.scale * w * peak}
+            if ref_MHz is not None:
+                line["ppm"] = (cand.center_Hz + x) / ref_MHz
+            predicted.append(line)
+        candidates.append({"groups": groups, "label": cand.label, "score": cand.score,
+                           "position_rms": cand.position_rms, "intensity_residual": cand.intensity_residual,
+                           "unmatched_observed": cand.unmatched_observed, "center_Hz": cand.center_Hz,
+                           "lines": predicted})
+    best = found.candidates[0]
+    return {"observe": observe.symbol if observe else None,
+            "observed": [{"Hz": x, "intensity": y, **({"ppm": x / ref_MHz} if ref_MHz else {})} for x, y in lines_Hz],
+            "unit": sorted(units)[0] if len(units) == 1 else "mixed",
+            "tolerance_Hz": tol, "candidates": candidates, "label": best.label,
+            "center_Hz": best.center_Hz, "center_ppm": best.center_Hz / ref_MHz if ref_MHz else None,
+            "observe_MHz": ref_MHz, "searched": found.evaluated, "complete": found.complete,
+            "notes": notes + found.notes}
+
+
+OPS = {"identify": op_identify}

@@ -1,0 +1,547 @@
+"""Pattern finder: from measured lines to first-order coupling partners that explain them.
+
+Model
+-----
+A first-order multiplet is the convolution of one comb per group of
+equivalent partners (``nmrcalc.physics.multiplet``); a group of ``n``
+nuclei of spin ``I`` and coupling ``J`` spans ``m = 2 n I`` steps of ``J``.
+So the line *positions* of a pattern made of plain groups depend only on the
+pairs ``(J_k, m_k)``: they are ``c - W/2 + sum_k j_k J_k`` with
+``0 <= j_k <= m_k`` and the width ``W = sum_k m_k J_k``; the spins and counts
+only change the intensities.  An element partner (several isotopes, some
+perhaps spin 0) gives an isotopologue mixture
+(``nmrcalc.physics.isotopologues``), its couplings scaled by the isotopes'
+γ ratios.  Every such pattern is symmetric about its centre ``c``.
+
+Search (bounded)
+----------------
+1. Candidate couplings: all pairwise spacings of the observed lines, merged
+   within the tolerance and ranked by *support* (the number of line pairs at
+   that spacing); the best ``MAX_J_CANDIDATES`` are used for plain groups,
+   ``MAX_J_CANDIDATES_ELEMENT`` (each divided by every isotope's γ ratio)
+   for element groups.
+2. Plain models: for every set of up to ``max_groups`` distinct candidate J
+   and every step vector ``m`` with ``W_obs - 2 tol <= W <= 2 W_obs + 2 tol``
+   and at most ``3 N_obs + 6`` comb points, keep it if every observed line lies
+   within ``tol`` of a predicted position; then try every split of each
+   ``m_k`` into ``count × 2I`` with the allowed spins and counts.
+3. Element models: each element group (count 1 to ``MAX_ELEMENT_COUNT``,
+   J to its reference isotope from the candidates divided by each isotope's
+   γ ratio) alone, and with one plain group whose comb, added to the
+   element pattern's lines, puts a line within ``tol`` of every observed line.
+   J sets in which two J are near a simple ratio (coinciding lines) are tried only while no model fits better than
+   ``COMMENSURATE_GATE`` (its score without the complexity term), and a model is scored only if its complexity term
+   alone is below the best score so far (it could not win otherwise).
+   Models with one more group are tried only while no model fits better than
+   ``LEVEL_GATE``: a pattern already explained that well by fewer groups is
+   reported as the simpler explanation.  Finally the best model's couplings
+   and their doubles and triples are searched ungated (models up to
+   ``PROBE_SLACK`` worse are scored), to find look-alikes such as a dd with
+   ``J2 = 2 J1`` beside a spin-3/2 1:1:1:1 quartet; they only feed the notes
+   (a look-alike with the same predicted lines), never the ranking, so that
+   noise cannot promote a model with coinciding lines.
+4. The search stops after ``max_evals`` scored models or ``time_limit_s``
+   seconds, whichever comes first, and says so in ``notes``.
+
+Score (lower is better)
+-----------------------
+Predicted lines closer than ``tol`` are merged.  Each predicted line is
+assigned to the nearest observed line within ``tol`` (one to one, nearest
+wins); the centre is refined to the intensity-weighted mean offset of the
+assigned pairs and the assignment repeated.  With observed heights ``y``
+(scaled to a maximum of 1), ``d = max(y, F)`` with the floor ``F =
+INTENSITY_FLOOR`` (errors are judged relative to each line's height, since
+height errors are roughly proportional), and predicted intensities ``w``
+scaled by the weighted least-squares factor
+``s = sum (y w / d²) / sum (w² / d²)`` over assigned pairs::
+
+    position  = sqrt( sum_assigned y (Δx / tol)² / sum_assigned y )
+    intensity = sqrt( [ sum_assigned ((y - s w) / d)²
+                        + sum_unassigned_pred (s w / M)²
+                        + sum_unassigned_obs (y / d)² ] / N_obs )
+    score = position + W_INTENSITY × intensity
+            + UNMATCHED_PENALTY × (number of unassigned observed lines)
+            + GROUP_PENALTY × groups + NUCLEUS_PENALTY × nuclei
+            + SPIN_PENALTY × sum (2I - 1)
+
+with ``M = MISSING_SCALE`` for a predicted line inside the observed span and
+``M = MISSING_SCALE_OUTER`` beyond it (weak outer lines are the ones lost in
+noise), so a missing predicted line of height ``h`` costs ``(h/M)²``: 0.01
+for a 5 % outer line, 4 for a half-height line inside the multiplet; an
+unexplained observed line costs a whole unit, and among equal fits the model
+with fewer groups, fewer nuclei and lower spins wins.
+Weights are choices of this module (common practice, no source).
+"""
+
+from __future__ import annotations
+
+import itertools
+import math
+import time
+from bisect import bisect_left
+from fractions import Fraction
+from functools import lru_cache
+from typing import Iterable, NamedTuple, Sequence
+
+from nmrcalc.errors import InputError
+from nmrcalc.physics.isotopologues import isotopologue_spectrum
+from nmrcalc.physics.multiplet import group_coefficients, merge_lines, multiplet, multiplet_label, normalized
+
+MAX_GROUPS = 3
+MAX_COUNT = 6
+MAX_ELEMENT_COUNT = 4
+MAX_INPUT_LINES = 64
+MAX_J_CANDIDATES = 10
+MAX_J_CANDIDATES_ELEMENT = 12
+DEFAULT_SPINS = tuple(Fraction(k, 2) for k in range(1, 7))
+DEFAULT_MAX_EVALS = 8000
+DEFAULT_TIME_LIMIT_S = 5.0
+W_INTENSITY = 3.0
+UNMATCHED_PENALTY = 1.0
+GROUP_PENALTY = 0.05
+NUCLEUS_PENALTY = 0.01
+SPIN_PENALTY = 0.02
+SAME_PATTERN_REL = 0.02
+INTENSITY_FLOOR = 0.05
+MISSING_SCALE = 0.25
+MISSING_SCALE_OUTER = 0.5
+COMMENSURATE_GATE = 0.45
+LEVEL_GATE = 0.3
+PROBE_SLACK = 1.0
+MIN_SHARE = 1e-4
+
+
+class PartnerOption(NamedTuple):
+    """An allowed partner: ``kind`` is ``"spin"``, ``"nuclide"`` or ``"element"``.
+
+    ``isotopes`` holds ``(label, spin, abundance, J_ratio)``: ``J_ratio`` is the
+    coupling to that isotope divided by the group's ``J`` (the γ ratio to the
+    reference isotope; 1 for the reference, 0 for spin 0).  A spin or nuclide
+    option has one isotope of abundance 1.
+    """
+
+    label: str
+    kind: str
+    isotopes: tuple[tuple[str, Fraction, Fraction, float], ...]
+
+    @property
+    def plain(self) -> bool:
+        return len(self.isotopes) == 1 and self.isotopes[0][1] > 0
+
+    @property
+    def spin(self) -> Fraction:
+        """Spin of the reference isotope (the one ``J`` belongs to)."""
+        return max(self.isotopes, key=lambda iso: (iso[3] == 1, iso[2]))[1]
+
+
+def spin_option(spin: Fraction) -> PartnerOption:
+    """A bare spin-``spin`` partner."""
+    spin = Fraction(spin)
+    return PartnerOption(str(spin), "spin", ((str(spin), spin, Fraction(1), 1.0),))
+
+
+class Group(NamedTuple):
+    option: PartnerOption
+    count: int
+    J_Hz: float
+
+
+class Candidate(NamedTuple):
+    """One explanation: groups, score parts, predicted lines (offset from ``center_Hz``, sum 1)."""
+
+    groups: tuple[Group, ...]
+    score: float
+    position_rms: float
+    intensity_residual: float
+    unmatched_observed: int
+    label: str
+    lines: list[tuple[float, float]]
+    center_Hz: float
+    scale: float
+
+
+class Identification(NamedTuple):
+    candidates: list[Candidate]
+    notes: list[str]
+    evaluated: int
+    complete: bool
+
+
+def _check_lines(lines: Iterable) -> list[tuple[float, float]]:
+    try:
+        items = list(lines)
+    except TypeError:
+        raise InputError("lines must be a list of (position_Hz, intensity)", field="lines") from None
+    if len(items) > MAX_INPUT_LINES:
+        raise InputError(f"at most {MAX_INPUT_LINES} lines can be analysed, got {len(items)}",
+                         field="lines", code="too_large")
+    out = []
+    for i, item in enumerate(items):
+        try:
+            x, y = item
+            x, y = float(x), float(y)
+        except (TypeError, ValueError):
+            raise InputError("each line must be (position_Hz, intensity)", field=f"lines.{i}") from None
+        if not (math.isfinite(x) and math.isfinite(y)):
+            raise InputError("line position and intensity must be finite numbers", field=f"lines.{i}")
+        if y <= 0:
+            raise InputError(f"intensity must be greater than zero, got {y:g}", field=f"lines.{i}.intensity")
+        out.append((x, y))
+    if not out:
+        raise InputError("give at least one line", field="lines", code="missing_field")
+    out.sort()
+    return out
+
+
+def j_candidates(xs: Sequence[float], tol_Hz: float) -> list[tuple[float, int]]:
+    """Pairwise spacings merged within ``tol_Hz``: ``[(J_Hz, support), ...]``, best supported first."""
+    diffs = sorted(b - a for a, b in itertools.combinations(xs, 2) if b - a > tol_Hz)
+    clusters: list[list[float]] = []
+    for d in diffs:
+        if clusters and d - clusters[-1][0] <= tol_Hz:
+            clusters[-1].append(d)
+        else:
+            clusters.append([d])
+    out = [(sum(c) / len(c), len(c)) for c in clusters]
+    out.sort(key=lambda js: (-js[1], js[0]))
+    return out
+
+
+def _comb_positions(Js: Sequence[float], ms: Sequence[int]) -> list[float]:
+    points = [0.0]
+    for J, m in zip(Js, ms):
+        points = [p + k * J for p in points for k in range(m + 1)]
+    return sorted(points)
+
+
+def _explains_all(xs, left: float, points: list[float], tol: float) -> bool:
+    pos = [left + p for p in points]
+    for x in xs:
+        k = bisect_left(pos, x)
+        near = min((abs(pos[j] - x) for j in (k - 1, k) if 0 <= j < len(pos)), default=math.inf)
+        if near > tol:
+            return False
+    return True
+
+
+def _step_vectors(Js: Sequence[float], width: float, tol: float, n_obs: int, max_steps: int):
+    """Step counts ``m_k >= 1`` with ``width - 2 tol <= sum m J <= 2 width + 2 tol`` and few comb points."""
+    lo, hi = width - 2 * tol, 2 * width + 2 * tol
+    max_points = 3 * n_obs + 6
+
+    def rec(k, so_far, points, acc):
+        if k == len(Js):
+            if lo <= so_far <= hi:
+                yield tuple(acc)
+            return
+        rest = sum(Js[k + 1:])
+        m = 1
+        while m <= max_steps and so_far + m * Js[k] + rest <= hi and points * (m + 1) <= max_points:
+            yield from rec(k + 1, so_far + m * Js[k], points * (m + 1), acc + [m])
+            m += 1
+
+    yield from rec(0, 0.0, 1, [])
+
+
+def _commensurate(Js: Sequence[float], tol: float) -> bool:
+    """True if two J are within ``tol`` of a simple ratio ``p/q`` (``q <= 2``, ``p/q <= 12``): their lines coincide."""
+    for a, b in itertools.combinations(sorted(Js), 2):
+        for q in (1, 2):
+            p = round(q * b / a)
+            if 1 <= p <= 12 * q and abs(q * b - p * a) <= tol:
+                return True
+    return False
+
+
+def _splits(m: int, options: Sequence[PartnerOption], max_count: int) -> list[tuple[PartnerOption, int]]:
+    out = []
+    for opt in options:
+        twice = int(2 * opt.spin)
+        if m % twice == 0 and 1 <= m // twice <= max_count:
+            out.append((opt, m // twice))
+    return out
+
+
+@lru_cache(maxsize=1024)
+def _group_cost(spin: Fraction, count: int) -> float:
+    return GROUP_PENALTY + NUCLEUS_PENALTY * count + SPIN_PENALTY * float(2 * spin - 1)
+
+
+def _complexity(groups: Sequence[Group]) -> float:
+    return sum(_group_cost(g.option.spin, g.count) for g in groups)
+
+
+@lru_cache(maxsize=256)
+def _comb(spin: Fraction, count: int) -> tuple[float, ...]:
+    coeffs = group_coefficients(spin, count)
+    total = sum(coeffs)
+    return tuple(c / total for c in coeffs)
+
+
+def _fast_plain(groups: Sequence[Group], tol: float) -> list[tuple[float, float]]:
+    """Plain groups only: the engine's per-group coefficients, convolved in floats and merged within ``tol``.
+
+    The same successive splitting as ``multiplet`` (which keeps exact integers);
+    used in the search loop because it is several times faster.
+    """
+    sticks = [(0.0, 1.0)]
+    for g in groups:
+        comb = _comb(g.option.spin, g.count)
+        half = (len(comb) - 1) / 2
+        sticks = [(x + (k - half) * g.J_Hz, w * c) for x, w in sticks for k, c in enumerate(comb)]
+    return merge_lines(sticks, tol)
+
+
+def predict(groups: Sequence[Group]) -> list[tuple[float, float]]:
+    """Normalized lines ``[(offset_Hz, intensity), ...]`` (sum 1) of a model, from the forward engines."""
+    plain = [(g.option.spin, g.count, g.J_Hz) for g in groups if g.option.plain]
+    sites = [(g.count, [(lab, spin, ab, g.J_Hz * ratio) for lab, spin, ab, ratio in g.option.isotopes])
+             for g in groups if not g.option.plain]
+    if sites:
+        return isotopologue_spectrum(sites, plain, MIN_SHARE).lines
+    return normalized(multiplet(plain))
+
+
+def _match(obs, pred, center, tol):
+    """One-to-one nearest assignment: ``{obs_index: (pred_index, Δx)}``."""
+    xs = [x for x, _ in obs]
+    best: dict[int, tuple[int, float]] = {}
+    for j, (p, _) in enumerate(pred):
+        x = center + p
+        k = bisect_left(xs, x)
+        choices = [(abs(xs[i] - x), i) for i in (k - 1, k) if 0 <= i < len(xs)]
+        d, i = min(choices)
+        if d <= tol and (i not in best or d < abs(best[i][1])):
+            best[i] = (j, xs[i] - x)
+    return best
+
+
+def score_model(obs, tol: float, groups: Sequence[Group], center0: float) -> Candidate:
+    """Score one model against observed lines (see the module docstring)."""
+    if all(g.option.plain for g in groups):
+        pred = _fast_plain(groups, tol)
+    else:
+        pred = merge_lines(predict(groups), tol)
+    center = center0
+    pairs = _match(obs, pred, center, tol)
+    if pairs:
+        total = sum(obs[i][1] for i in pairs)
+        center += sum(obs[i][1] * dx for i, (_, dx) in pairs.items()) / total
+        pairs = _match(obs, pred, center, tol)
+    if not pairs:
+        return Candidate(tuple(groups), math.inf, math.inf, 1.0, len(obs), "", pred, center, 0.0)
+    floor = INTENSITY_FLOOR
+    weights = {i: 1.0 / max(obs[i][1], floor) ** 2 for i in pairs}
+    s = (sum(weights[i] * obs[i][1] * pred[j][1] for i, (j, _) in pairs.items())
+         / sum(weights[i] * pred[j][1] ** 2 for i, (j, _) in pairs.items()))
+    used = {j for j, _ in pairs.values()}
+    resid = sum(weights[i] * (obs[i][1] - s * pred[j][1]) ** 2 for i, (j, _) in pairs.items())
+    lo, hi = obs[0][0] - tol, obs[-1][0] + tol
+    resid += sum((s * w / (MISSING_SCALE if lo <= center + x <= hi else MISSING_SCALE_OUTER)) ** 2
+                 for j, (x, w) in enumerate(pred) if j not in used)
+    resid += sum((y / max(y, floor)) ** 2 for i, (_, y) in enumerate(obs) if i not in pairs)
+    wsum = sum(obs[i][1] for i in pairs)
+    position = math.sqrt(sum(obs[i][1] * (dx / tol) ** 2 for i, (_, dx) in pairs.items()) / wsum)
+    intensity = math.sqrt(resid / len(obs))
+    unmatched = len(obs) - len(pairs)
+    score = position + W_INTENSITY * intensity + UNMATCHED_PENALTY * unmatched + _complexity(groups)
+    return Candidate(tuple(groups), score, position, intensity, unmatched, "", pred, center, s)
+
+
+def model_label(groups: Sequence[Group]) -> str:
+    """Multiplicity text: the multiplet label for plain groups, partner names for element groups."""
+    plain = [(g.option.spin, g.count, g.J_Hz) for g in groups if g.option.plain]
+    text = multiplet_label(plain) if plain else ""
+    elements = [f"isotopologues of {g.count} × {g.option.label} (J {g.J_Hz:.4g} Hz to {_reference(g.option)})"
+                for g in groups if not g.option.plain]
+    return ", ".join(([text] if text and (text != "s" or not elements) else []) + elements)
+
+
+def _reference(option: PartnerOption) -> str:
+    return next((iso[0] for iso in option.isotopes if iso[3] == 1), option.label)
+
+
+def _same_pattern(a: Candidate, b: Candidate, tol: float) -> bool:
+    if len(a.lines) != len(b.lines):
+        return False
+    return all(abs(x1 - x2) <= tol and abs(y1 - y2) <= SAME_PATTERN_REL * max(y1, y2)
+               for (x1, y1), (x2, y2) in zip(a.lines, b.lines))
+
+
+def _describe(groups: Sequence[Group]) -> str:
+    return " + ".join(f"{g.count}×{g.option.label} (J {g.J_Hz:.3g} Hz)" for g in groups) or "no coupling"
+
+
+def identify(lines: Iterable, tol_Hz: float, options: Sequence[PartnerOption] | None = None, *,
+             max_groups: int = MAX_GROUPS, max_count: int = MAX_COUNT, top: int = 5,
+             max_evals: int = DEFAULT_MAX_EVALS, time_limit_s: float = DEFAULT_TIME_LIMIT_S) -> Identification:
+    """Rank first-order explanations of observed ``(position_Hz, intensity)`` lines, best first.
+
+    ``options``: allowed partners (default: bare spins 1/2 to 3).  Plain
+    options (one isotope) enter the comb search; element options the
+    isotopologue search.  Returns at most ``top`` candidates with distinct
+    predicted patterns, plus notes on ties and the budget.
+    """
+    obs_raw = _check_lines(lines)
+    if isinstance(tol_Hz, bool) or not isinstance(tol_Hz, (int, float)) or not tol_Hz > 0 or not math.isfinite(tol_Hz):
+        raise InputError("tolerance must be a positive number of Hz", field="tolerance")
+    if not 1 <= max_groups <= MAX_GROUPS:
+        raise InputError(f"max_groups must be 1 to {MAX_GROUPS}", field="max_groups")
+    if not 1 <= max_count <= MAX_COUNT:
+        raise InputError(f"max_count must be 1 to {MAX_COUNT}", field="max_count")
+    options = list(options) if options else [spin_option(s) for s in DEFAULT_SPINS]
+    peak = max(y for _, y in obs_raw)
+    obs = [(x, y / peak) for x, y in obs_raw]
+    xs = [x for x, _ in obs]
+    center0 = (xs[0] + xs[-1]) / 2
+    notes: list[str] = []
+    if len(obs) == 1 or xs[-1] - xs[0] <= tol_Hz:
+        single = Candidate((), 0.0, 0.0, 0.0, 0, "s", [(0.0, 1.0)], sum(x * y for x, y in obs) / sum(y for _, y in obs), 1.0)
+        notes.append("Only one resolved line: a singlet (no resolved coupling).")
+        return Identification([single], notes, 0, True)
+
+    start = time.monotonic()
+    evaluated = 0
+    complete = True
+    results: dict[tuple, Candidate] = {}
+
+    def budget_left() -> bool:
+        return evaluated < max_evals and time.monotonic() - start < time_limit_s
+
+    look_alikes: dict[tuple, Candidate] = {}
+    store = results
+
+    def evaluate(groups: tuple[Group, ...]) -> None:
+        nonlocal evaluated
+        key = tuple((g.option.label, g.count, round(g.J_Hz, 6)) for g in groups)
+        if key in results or key in store:
+            return
+        evaluated += 1
+        try:
+            cand = score_model(obs, tol_Hz, groups, center0)
+        except InputError:  # beyond the forward engines' size limits: not a usable model
+            return
+        store[key] = cand
+        if store is not results:
+            return
+        best["score"] = min(best["score"], cand.score)
+        best["fit"] = min(best["fit"], cand.score - _complexity(groups))
+
+    plain_opts = [o for o in options if o.plain]
+    element_opts = [o for o in options if not o.plain]
+    js = j_candidates(xs, tol_Hz)
+    width = xs[-1] - xs[0]
+    max_steps = 2 * max_count * int(2 * max((o.spin for o in plain_opts), default=Fraction(1, 2)))
+    top_js = sorted(J for J, _ in js[:MAX_J_CANDIDATES])
+    best = {"score": math.inf, "fit": math.inf}
+
+    def best_score() -> float:
+        return best["score"]
+
+    def best_fit() -> float:
+        return best["fit"]
+
+    def try_set(Js: tuple[float, ...], slack: float) -> bool:
+        """Score the models on one J set; False when the budget ran out."""
+        for ms in _step_vectors(Js, width, tol_Hz, len(obs), max_steps):
+            if not budget_left():
+                return False
+            W = sum(m * J for m, J in zip(ms, Js))
+            if not _explains_all(xs, center0 - W / 2, _comb_positions(Js, ms), tol_Hz):
+                continue
+            bound = best_score() + slack
+            for choice in itertools.product(*(_splits(m, plain_opts, max_count) for m in ms)):
+                groups = tuple(Group(opt, n, J) for (opt, n), J in zip(choice, Js))
+                if _complexity(groups) < bound:
+                    evaluate(groups)
+        return True
+
+    for k in range(1, max_groups + 1):
+        if best_fit() < LEVEL_GATE or not complete:
+            break
+        for Js in itertools.combinations(sorted(top_js, reverse=True), k):
+            if _commensurate(Js, tol_Hz) and best_fit() < COMMENSURATE_GATE:
+                continue
+            if not try_set(Js, 0.0):
+                complete = False
+                break
+
+    if results and complete:
+        # Probe for look-alikes of the best model: its couplings and their multiples, ungated.
+        leader = min(results.values(), key=lambda c: c.score)
+        store = look_alikes
+        base = sorted({g.J_Hz for g in leader.groups})
+        probe = sorted({J * f for J in base for f in (1, 2, 3)}, reverse=True)
+        for k in range(1, max_groups + 1):
+            for Js in itertools.combinations(probe, k):
+                if all(b - a > tol_Hz for a, b in zip(sorted(Js), sorted(Js)[1:])) and not try_set(Js, PROBE_SLACK):
+                    complete = False
+                    break
+
+        store = results
+
+    if element_opts and complete:
+        element_js = [J for J, _ in js[:MAX_J_CANDIDATES_ELEMENT]]
+        max_points = 3 * len(obs) + 6
+        for opt in element_opts:
+            refs = sorted({round(J / iso[3], 9) for J in element_js for iso in opt.isotopes if iso[3] > 0})
+            for n in range(1, min(max_count, MAX_ELEMENT_COUNT) + 1):
+                for J_ref in refs:
+                    if not budget_left():
+                        complete = False
+                        break
+                    base = Group(opt, n, J_ref)
+                    evaluate((base,))
+                    if max_groups < 2:
+                        continue
+                    try:
+                        offsets = [x for x, _ in merge_lines(predict((base,)), tol_Hz)]
+                    except InputError:
+                        continue
+                    for J in top_js:
+                        for m in range(1, max_steps + 1):
+                            if len(offsets) * (m + 1) > max_points or not budget_left():
+                                break
+                            points = sorted(a + (k - m / 2) * J for a in offsets for k in range(m + 1))
+                            if _explains_all(xs, center0, points, tol_Hz):
+                                for popt, pn in _splits(m, plain_opts, max_count):
+                                    evaluate((base, Group(popt, pn, J)))
+    if not complete:
+        notes.append(f"The search stopped at its budget ({evaluated} models scored, limit {max_evals} models or "
+                     f"{time_limit_s:g} s): the ranking may be incomplete; narrow the partners or the lines.")
+    ranked = sorted(results.values(), key=lambda c: (c.score, len(c.groups)))
+    if ranked:
+        ranked += sorted((c for c in look_alikes.values() if _same_pattern(ranked[0], c, tol_Hz)),
+                         key=lambda c: c.score)
+    kept: list[Candidate] = []
+    for cand in ranked:
+        cand = cand._replace(label=model_label(cand.groups))
+        twin = next((k for k in kept if _same_pattern(k, cand, tol_Hz)), None)
+        if twin is not None:
+            same_kind = [(g.option, g.count) for g in twin.groups] == [(g.option, g.count) for g in cand.groups]
+            if twin is kept[0] and not same_kind and len(notes) < 6 and cand.score < twin.score + PROBE_SLACK:
+                notes.append(f"{_describe(cand.groups)} gives the same lines as {_describe(twin.groups)}: "
+                             "they cannot be told apart from the spectrum; the simpler one is listed.")
+            continue
+        kept.append(cand)
+        if len(kept) >= top:
+            break
+    if not kept:
+        raise InputError("No first-order pattern with the allowed partners explains these lines.",
+                         field="lines", code="no_solution")
+    lead = kept[0]
+    for other in kept[1:3]:
+        if len(other.lines) == len(lead.lines) and all(
+                abs(a[0] - b[0]) <= tol_Hz for a, b in zip(other.lines, lead.lines)):
+            notes.append(f"{other.label} puts lines at the same positions as {lead.label}; the intensities decide "
+                         f"(score {other.score:.3f} against {lead.score:.3f}).")
+    for g in lead.groups:
+        if g.option.plain and g.option.spin == Fraction(1, 2) and g.count > 1:
+            notes.append(f"{g.count} spin-1/2 partners with one J ({g.J_Hz:.3g} Hz) may also be {g.count} different "
+                         "partners whose couplings happen to be equal (a dd with J1 = J2 reads as a t).")
+    if len(kept) > 1 and kept[1].score - kept[0].score < 0.1:
+        notes.append(f"The two best explanations fit almost equally well ({kept[0].label}: {kept[0].score:.3f}; "
+                     f"{kept[1].label}: {kept[1].score:.3f}).")
+    if kept[0].unmatched_observed:
+        notes.append(f"{kept[0].unmatched_observed} observed line(s) are not explained by the best candidate.")
+    return Identification(kept, notes, evaluated, complete)

@@ -1,0 +1,119 @@
+"""The identify op: request forms, peak-list parsing, element partners, errors naming fields."""
+
+import math
+
+import pytest
+
+from nmrcalc.api import handle
+from nmrcalc.api.peaklist import parse_peaklist
+from nmrcalc.errors import InputError
+
+
+def run(request):
+    r = handle({"op": "identify", **request})
+    assert r["ok"], r
+    return r["result"]
+
+
+def error(request):
+    r = handle({"op": "identify", **request})
+    assert not r["ok"], r
+    return r["error"]
+
+
+QUARTET = [(-10.5, 1), (-3.5, 3), (3.5, 3), (10.5, 1)]  # common practice, no source: CH3-coupled q, J = 7 Hz
+
+
+def test_contract_lines_with_units_and_ppm_output():
+    lines = [{"position": f"{1234.5 + x} Hz", "intensity": y} for x, y in QUARTET]
+    r = run({"observe": "1H", "spectrometer": "400 MHz", "lines": lines, "tolerance": "0.5 Hz"})
+    top = r["candidates"][0]
+    assert top["label"] == "q" and top["groups"] == [{"spin": "1/2", "count": 3, "J_Hz": pytest.approx(7.0)}]
+    assert math.isclose(r["center_Hz"], 1234.5, abs_tol=1e-6)
+    ref = r["observe_MHz"]  # 1H reference = spectrometer frequency × Ξ(1H)/100 = 400 MHz (IUPAC 2001, Ξ = 100 %)
+    assert math.isclose(ref, 400.0, rel_tol=1e-9)
+    assert math.isclose(r["center_ppm"], 1234.5 / ref)
+    assert all(math.isclose(l["ppm"], l["Hz"] / ref) for l in top["lines"])
+    assert [round(l["Hz"], 6) for l in top["lines"]] == [round(1234.5 + x, 6) for x, _ in QUARTET]
+
+
+def test_ppm_positions_and_nuclide_partner():
+    # common practice, no source: 13C of CDCl3 is a 1:1:1 triplet, J(C,D) ≈ 32 Hz, at 77.16 ppm
+    ref = 100.0 * 25.145020 / 100  # ν(13C reference) at 100 MHz 1H (IUPAC 2001 Ξ)
+    lines = [{"position": 77.16 + k * 32.0 / ref, "intensity": 1.0} for k in (-1, 0, 1)]
+    r = run({"observe": "13C", "spectrometer": "100 MHz", "unit": "ppm", "lines": lines, "partners": ["2H", "H"]})
+    top = r["candidates"][0]
+    assert top["groups"] == [{"partner": "2H", "count": 1, "J_Hz": pytest.approx(32.0, abs=0.01)}]
+    assert math.isclose(r["center_ppm"], 77.16, abs_tol=1e-6)
+
+
+def test_borohydride_identified_as_boron():
+    # from memory: BH4- in 1H: 11B 1:1:1:1 quartet, J ≈ 81 Hz, with the 10B septet (J scaled by γ ratio)
+    m = handle({"op": "multiplet", "observe": "1H", "groups": [{"partner": "B", "count": 1, "J": "81 Hz"}]})
+    lines = [[l["Hz"], l["intensity"]] for l in m["result"]["lines"]]
+    r = run({"observe": "1H", "lines": lines, "partners": ["B", "H"]})
+    top = r["candidates"][0]
+    assert [(g["partner"], g["count"]) for g in top["groups"]] == [("B", 1)]
+    assert top["groups"][0]["J_Hz"] == pytest.approx(81.0, abs=0.5)
+
+
+def test_platinum_satellites_around_a_quartet_from_the_multiplet_csv():
+    # from memory: 195Pt (33.8 %, I = 1/2) satellites flank the line of the spin-0 Pt isotopologues
+    m = handle({"op": "multiplet", "observe": "1H", "spectrometer": "400 MHz", "center": 0.8,
+                "groups": [{"partner": "Pt", "count": 1, "J": "60 Hz"}, {"partner": "1H", "count": 3, "J": "7 Hz"}]})
+    csv = "ppm,Hz,intensity\n" + "\n".join(f"{l['ppm']},{l['Hz']},{l['intensity']}" for l in m["result"]["lines"])
+    r = run({"observe": "1H", "spectrometer": "400 MHz", "peaklist": csv, "partners": ["Pt", "H"]})
+    top = r["candidates"][0]
+    assert sorted((g["partner"], g["count"], round(g["J_Hz"])) for g in top["groups"]) == [("1H", 3, 7), ("Pt", 1, 60)]
+    assert r["unit"] == "Hz" and any("Hz column is used" in n for n in r["notes"])
+
+
+@pytest.mark.parametrize("text,unit,positions", [
+    ("100.0,1\n107.0,2\n114.0,1\n", None, [100.0, 107.0, 114.0]),
+    ("Hz\tintensity\n100.0\t1\n107.0\t2\n", "Hz", [100.0, 107.0]),
+    ("# peaks\n1  2.501  10\n2  2.518  20\n3  2.535  10\n", None, [2.501, 2.518, 2.535]),
+    ("No.;Shift (ppm);Height\n1;2.501;10\n2;2.518;20\n", "ppm", [2.501, 2.518]),
+    ("ppm,Hz,intensity\n,-7.0,0.25\n,0.0,0.5\n,7.0,0.25\n", "Hz", [-7.0, 0.0, 7.0]),
+    ("3.10\n3.12\n", None, [3.10, 3.12]),
+])
+def test_peaklist_parser_formats(text, unit, positions):
+    parsed = parse_peaklist(text)
+    assert parsed.unit == unit
+    assert [p for _, p, _ in parsed.peaks] == positions
+    assert parsed.intensities_given == ("\n3.12" not in text)
+
+
+def test_peaklist_unit_guess_is_reported():
+    text = "2.501 1\n2.518 2\n2.535 1\n"
+    r = run({"observe": "1H", "spectrometer": "400 MHz", "peaklist": text})
+    assert r["unit"] == "ppm" and any("a guess" in n for n in r["notes"])
+    assert r["candidates"][0]["label"] == "t"
+    r = run({"observe": "1H", "peaklist": "100 1\n107 2\n114 1\n"})
+    assert r["unit"] == "Hz" and any("read as Hz" in n for n in r["notes"])
+
+
+def test_peaklist_errors_give_line_numbers():
+    e = error({"peaklist": "Hz,intensity\n100,1\n107,abc\n"})
+    assert e["field"] == "peaklist" and "line 3" in e["message"]
+    with pytest.raises(InputError) as err:
+        parse_peaklist("")
+    assert err.value.field == "peaklist"
+
+
+@pytest.mark.parametrize("request_,field", [
+    ({"lines": [[100, 1], [107, 1], [114, 1], ["x", 1]]}, "lines.3.position"),
+    ({"lines": [{"position": 100, "intensity": 1}, {"position": 107}]}, "lines.1.intensity"),
+    ({"lines": [[100, 1], [107, 1]], "tolerance": "-1 Hz"}, "tolerance"),
+    ({"lines": [[100, 1], [107, 1]], "partners": ["2H", "Xq"]}, "partners.1"),
+    ({"lines": [[100, 1], [107, 1]], "partners": ["C12"]}, "partners.0"),
+    ({"lines": [[1.0, 1], [1.02, 1]], "unit": "ppm"}, "spectrometer"),
+    ({"lines": [[100, 1], [107, 1]], "max_groups": 9}, "max_groups"),
+    ({}, "lines"),
+])
+def test_errors_name_fields(request_, field):
+    assert error(request_)["field"] == field
+
+
+def test_one_line_is_a_singlet():
+    r = run({"lines": [[250.0, 3.0]]})
+    assert r["label"] == "s" and r["candidates"][0]["groups"] == []
