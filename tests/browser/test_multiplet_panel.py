@@ -79,5 +79,13 @@ def test_build_export_zoom_and_errors(dist, open_page):
     expect(page.locator("#mult-g0-J-error")).to_have_text(bad["message"])
     expect(page.locator("#mult-g0-J")).to_have_attribute("aria-invalid", "true")
 
+    # the partner groups and the fixed inputs survive a reload
+    page.reload()
+    rec.wait_ready()
+    expect(page.locator("#tab-multiplet")).to_have_attribute("aria-selected", "true")
+    expect(page.locator("#mult-g0-J")).to_have_value("abc")
+    expect(page.locator("#mult-g0-partner")).to_have_value("2H")
+    expect(page.locator("#mult-center")).to_have_value("77")
+
     assert set(rec.requests) == {url}, f"unexpected requests: {sorted(set(rec.requests) - {url})}"
     assert not rec.errors

@@ -342,7 +342,11 @@ const NMRPlot = (() => {
     const pointers = new Map();
     let gesture = null;
     svg.addEventListener("pointerdown", (event) => {
-      svg.setPointerCapture(event.pointerId);
+      try {
+        svg.setPointerCapture(event.pointerId);
+      } catch (err) {
+        // a pointer the browser no longer tracks: the gesture still works without capture
+      }
       pointers.set(event.pointerId, event.clientX);
       const xs = [...pointers.values()];
       gesture = { view: view.slice(), xs, anchor: xs.map(toData) };
