@@ -75,6 +75,19 @@ def build_parser() -> argparse.ArgumentParser:
     ss.add_argument("--spectrometer", help="1H frequency, e.g. '400 MHz'")
     ss.add_argument("--fields", help="several 1H frequencies, comma separated, e.g. 300,600,900")
     ss.add_argument("--json", action="store_true", help="print the raw JSON response")
+    ident = sub.add_parser("identify", help="find first-order coupling partners that explain measured lines",
+                           description="rank first-order explanations of measured lines; give --lines "
+                                       "'POS:INT,POS:INT,…' or --peaklist FILE ('-' for standard input)")
+    ident.add_argument("--lines", help="positions and intensities, e.g. '1224:1,1231:3,1238:3,1245:1'")
+    ident.add_argument("--peaklist", help="a peak-list file: one peak a line, position and intensity")
+    ident.add_argument("--unit", help="Hz or ppm, for positions without a unit")
+    ident.add_argument("--observe", help="observed nuclide (default 1H)")
+    ident.add_argument("--spectrometer", help="1H frequency, e.g. '400 MHz' (needed for ppm)")
+    ident.add_argument("--partners", help="allowed partners, comma separated, e.g. 'H,2H,B' or '1/2,1'")
+    ident.add_argument("--tolerance", help="position tolerance, e.g. '0.5 Hz'")
+    ident.add_argument("--max-groups", dest="max_groups", type=int, help="at most this many groups (1–3)")
+    ident.add_argument("--top", type=int, help="how many candidates to list (default 5)")
+    ident.add_argument("--json", action="store_true", help="print the raw JSON response")
     sub.add_parser("api", help="read one JSON request on stdin, print the JSON response")
     sub.add_parser("demo", help="a worked example from an invented lab")
     return parser
@@ -203,6 +216,43 @@ DEMO = [
 ]
 
 
+def identify_request(args) -> dict:
+    """Turn ``--lines POS:INT,…`` or ``--peaklist FILE`` and the options into an identify request."""
+    request = {"op": "identify"}
+    if args.lines:
+        lines = []
+        for item in args.lines.split(","):
+            pos, _, intensity = item.partition(":")
+            lines.append({"position": pos.strip(), "intensity": _number(intensity.strip()) if intensity.strip() else None})
+        request["lines"] = lines
+    if args.peaklist:
+        if args.peaklist == "-":
+            request["peaklist"] = sys.stdin.read()
+        else:
+            with open(args.peaklist, encoding="utf-8", errors="replace") as handle_:
+                request["peaklist"] = handle_.read()
+    if args.partners:
+        request["partners"] = [p.strip() for p in args.partners.split(",") if p.strip()]
+    for key in ("unit", "observe", "spectrometer", "tolerance", "max_groups", "top"):
+        if getattr(args, key) is not None:
+            request[key] = getattr(args, key)
+    return request
+
+
+def render_identify(response: dict) -> str:
+    if not response["ok"]:
+        return render(response)
+    r = response["result"]
+    ppm = f" ({r['center_ppm']:.5f} ppm)" if r["center_ppm"] is not None else ""
+    out = [f"centre: {r['center_Hz']:.3f} Hz{ppm}; tolerance {r['tolerance_Hz']:.3g} Hz; "
+           f"{len(r['observed'])} lines"]
+    for rank, cand in enumerate(r["candidates"], start=1):
+        parts = [f"{g['count']} × {g.get('partner') or 'I=' + g['spin']} J {g['J_Hz']:.2f} Hz" for g in cand["groups"]]
+        out.append(f"{rank}. {cand['label']}  (score {cand['score']:.3f})  " + ("; ".join(parts) or "no coupling"))
+    out += [f"note: {n}" for n in r["notes"] + response["warnings"]]
+    return "\n".join(out)
+
+
 def main(argv: list[str] | None = None) -> int:
     args = build_parser().parse_args(argv)
     if args.command == "api":
@@ -215,6 +265,15 @@ def main(argv: list[str] | None = None) -> int:
     if args.command == "multiplet":
         response = handle(multiplet_request(args))
         print(json.dumps(response, indent=2, ensure_ascii=False) if args.json else render_multiplet(response))
+        return 0 if response["ok"] else 2
+    if args.command == "identify":
+        try:
+            request = identify_request(args)
+        except OSError as e:
+            print(f"error [peaklist]: cannot read {args.peaklist}: {e.strerror}")
+            return 2
+        response = handle(request)
+        print(json.dumps(response, indent=2, ensure_ascii=False) if args.json else render_identify(response))
         return 0 if response["ok"] else 2
     if args.command == "spins":
         response = handle(spin_system_request(args))

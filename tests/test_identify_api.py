@@ -117,3 +117,20 @@ def test_errors_name_fields(request_, field):
 def test_one_line_is_a_singlet():
     r = run({"lines": [[250.0, 3.0]]})
     assert r["label"] == "s" and r["candidates"][0]["groups"] == []
+
+
+def test_cli_identify_readable_json_and_file(capsys, tmp_path):
+    from nmrcalc.cli import main
+    assert main(["identify", "--lines", "1224:1,1231:3,1238:3,1245:1", "--spectrometer", "400 MHz"]) == 0
+    text = capsys.readouterr().out
+    assert "1. q" in text and "3 × I=1/2 J 7.00 Hz" in text
+    path = tmp_path / "lines.csv"
+    path.write_text("ppm,Hz,intensity\n,-7,0.25\n,0,0.5\n,7,0.25\n")
+    assert main(["identify", "--peaklist", str(path), "--partners", "H,2H", "--json"]) == 0
+    import json
+    out = json.loads(capsys.readouterr().out)
+    assert out["result"]["candidates"][0]["groups"] == [{"partner": "1H", "count": 2, "J_Hz": pytest.approx(7.0)}]
+    assert main(["identify", "--lines", "1:1,x:2"]) == 2
+    assert "lines.1.position" in capsys.readouterr().out
+    assert main(["identify", "--peaklist", str(tmp_path / "missing.csv")]) == 2
+    assert "error [peaklist]" in capsys.readouterr().out
