@@ -101,10 +101,6 @@ def _time_until(bench: Bench, url: str, expression: str, timeout_s: float = 120)
         context.close()
 
 
-def _median_ms(bench: Bench, url: str, expression: str) -> float:
-    return statistics.median(_time_until(bench, url, expression) for _ in range(bench.runs))
-
-
 FIRST_RESULT = "window.nmrcalcStatus && window.nmrcalcStatus.timings.firstResult"
 
 
@@ -115,16 +111,19 @@ def page_section(bench: Bench) -> list[tuple[str, float, str]]:
     single = dist / "nmrcalc.html"
     tmp_root = ROOT / "bench_results" / "tmp"
     tmp_root.mkdir(parents=True, exist_ok=True)
+    timings: dict[str, list[float]] = {"bare": [], "single": [], "site": []}
     with tempfile.TemporaryDirectory(dir=tmp_root) as tmp:
         bare = Path(tmp)
         for name in build_web.CORE_FILES:
             shutil.copyfile(build_web.PYODIDE_DIR / name, bare / name)
         (bare / "index.html").write_text(BARE_PAGE)
-        with serve(bare) as url:
-            bare_ms = _median_ms(bench, url + "index.html", "window.bareBootMs")
-    single_ms = _median_ms(bench, single.resolve().as_uri(), FIRST_RESULT)
-    with serve(dist / "site") as url:
-        site_ms = _median_ms(bench, url + "index.html", FIRST_RESULT)
+        with serve(bare) as bare_url, serve(dist / "site") as site_url:
+            # interleaved, so a change in machine load affects all three alike
+            for _ in range(bench.runs):
+                timings["bare"].append(_time_until(bench, bare_url + "index.html", "window.bareBootMs"))
+                timings["single"].append(_time_until(bench, single.resolve().as_uri(), FIRST_RESULT))
+                timings["site"].append(_time_until(bench, site_url + "index.html", FIRST_RESULT))
+    bare_ms, single_ms, site_ms = (statistics.median(timings[k]) for k in ("bare", "single", "site"))
     core = build_web.core_size()
     size = single.stat().st_size
     return [
