@@ -54,7 +54,7 @@ def test_borohydride_identified_as_boron():
     r = run({"observe": "1H", "lines": lines, "partners": ["B", "H"]})
     top = r["candidates"][0]
     assert [(g["partner"], g["count"]) for g in top["groups"]] == [("B", 1)]
-    assert top["groups"][0]["J_Hz"] == pytest.approx(81.0, abs=0.5)
+    assert top["groups"][0]["J_Hz"] == pytest.approx(81.0, abs=0.5) and top["groups"][0]["J_isotope"] == "11B"
 
 
 def test_platinum_satellites_around_a_quartet_from_the_multiplet_csv():

@@ -36,7 +36,8 @@ from nmrcalc.api.peaklist import parse_peaklist
 from nmrcalc.errors import InputError
 from nmrcalc.nuclides import element_of, isotopes_of, lookup_magnetic
 from nmrcalc.physics import larmor
-from nmrcalc.physics.identify import MAX_COUNT, MAX_GROUPS, PartnerOption, identify, spin_option
+from nmrcalc.physics.identify import (
+    MAX_COUNT, MAX_GROUPS, PartnerOption, identify, reference_isotope, spin_option)
 from nmrcalc.physics.multiplet import parse_spin
 from nmrcalc.units import parse_quantity
 
@@ -225,6 +226,8 @@ def op_identify(req, warnings):
         groups = []
         for g in cand.groups:
             who = {"spin": g.option.label} if g.option.kind == "spin" else {"partner": g.option.label}
+            if g.option.kind == "element":
+                who["J_isotope"] = reference_isotope(g.option)
             groups.append({**who, "count": g.count, "J_Hz": g.J_Hz})
         predicted = []
         for x, w in cand.lines:

@@ -20,28 +20,40 @@ Search (bounded)
    that spacing); the best ``MAX_J_CANDIDATES`` are used for plain groups,
    ``MAX_J_CANDIDATES_ELEMENT`` (each divided by every isotope's γ ratio)
    for element groups.
-2. Plain models: for every set of up to ``max_groups`` distinct candidate J
-   and every step vector ``m`` with ``W_obs - 2 tol <= W <= 2 W_obs + 2 tol``
-   and at most ``3 N_obs + 6`` comb points, keep it if every observed line lies
-   within ``tol`` of a predicted position; then try every split of each
-   ``m_k`` into ``count × 2I`` with the allowed spins and counts.
-3. Element models: each element group (count 1 to ``MAX_ELEMENT_COUNT``,
-   J to its reference isotope from the candidates divided by each isotope's
-   γ ratio) alone, and with one plain group whose comb, added to the
-   element pattern's lines, puts a line within ``tol`` of every observed line.
-   J sets in which two J are near a simple ratio (coinciding lines) are tried only while no model fits better than
-   ``COMMENSURATE_GATE`` (its score without the complexity term), and a model is scored only if its complexity term
-   alone is below the best score so far (it could not win otherwise).
-   Models with one more group are tried only while no model fits better than
-   ``LEVEL_GATE``: a pattern already explained that well by fewer groups is
-   reported as the simpler explanation.  Finally the best model's couplings
-   and their doubles and triples are searched ungated (models up to
-   ``PROBE_SLACK`` worse are scored), to find look-alikes such as a dd with
-   ``J2 = 2 J1`` beside a spin-3/2 1:1:1:1 quartet; they only feed the notes
-   (a look-alike with the same predicted lines), never the ranking, so that
-   noise cannot promote a model with coinciding lines.
-4. The search stops after ``max_evals`` scored models or ``time_limit_s``
-   seconds, whichever comes first, and says so in ``notes``.
+2. Plain models, one group more at a time: for every set of distinct
+   candidate J and every step vector ``m`` with
+   ``W_obs - 2 tol <= W <= 2 W_obs + 2 tol`` and at most ``3 N_obs + 6`` comb
+   points, keep it if every observed line lies within ``tol`` of a predicted
+   position; then try every split of each ``m_k`` into ``count × 2I`` with the
+   allowed spins and counts.  Pruning: a model is scored only if its
+   complexity term alone is below the best score so far (it could not win);
+   J sets with two J near a simple ratio ``p/q`` (``q <= 2``: coinciding
+   lines) only while no model fits better than ``COMMENSURATE_GATE`` (score
+   without the complexity term); one group more only while no model fits
+   better than ``LEVEL_GATE`` (a pattern explained that well by fewer groups
+   is reported as the simpler explanation).
+3. Look-alikes: the best model's couplings and their doubles and triples are
+   searched ungated (models up to ``PROBE_SLACK`` worse are scored), to find
+   models with the same predicted lines, such as a dd with ``J2 = 2 J1``
+   beside a spin-3/2 1:1:1:1 quartet.  They only feed the notes, never the
+   ranking, so that noise cannot promote a model with coinciding lines.
+4. Element models: each element group (count 1 to ``MAX_ELEMENT_COUNT``, J
+   to its reference isotope from the candidates divided by each isotope's γ
+   ratio) alone, and with one plain group whose comb, added to the element
+   pattern's lines, puts a line within ``tol`` of every observed line.
+5. The search stops after ``max_evals`` scored models or ``time_limit_s``
+   seconds, whichever comes first, and says so in ``notes`` (the candidates
+   found so far are still returned).
+
+Notes also report: look-alikes (same lines), candidates with the same
+positions but other intensities (1:2:1 against 1:1:1), that ``n`` spin-1/2
+partners with one J may be ``n`` different partners with equal couplings (a
+dd with J1 = J2 reads as a t), near ties (scores within 0.1), a poor best fit
+(score without complexity above ``POOR_FIT``) and unexplained lines.
+
+Limits: ``MAX_GROUPS`` groups, counts 1 to ``MAX_COUNT`` (element positions
+1 to ``MAX_ELEMENT_COUNT``), at most ``MAX_INPUT_LINES`` lines; two plain
+groups never share one J (they would be one group).
 
 Score (lower is better)
 -----------------------
@@ -108,6 +120,7 @@ MISSING_SCALE_OUTER = 0.5
 COMMENSURATE_GATE = 0.45
 LEVEL_GATE = 0.3
 PROBE_SLACK = 1.0
+POOR_FIT = 1.0
 MIN_SHARE = 1e-4
 
 
@@ -352,12 +365,13 @@ def model_label(groups: Sequence[Group]) -> str:
     """Multiplicity text: the multiplet label for plain groups, partner names for element groups."""
     plain = [(g.option.spin, g.count, g.J_Hz) for g in groups if g.option.plain]
     text = multiplet_label(plain) if plain else ""
-    elements = [f"isotopologues of {g.count} × {g.option.label} (J {g.J_Hz:.4g} Hz to {_reference(g.option)})"
+    elements = [f"isotopologues of {g.count} × {g.option.label} (J {g.J_Hz:.4g} Hz to {reference_isotope(g.option)})"
                 for g in groups if not g.option.plain]
     return ", ".join(([text] if text and (text != "s" or not elements) else []) + elements)
 
 
-def _reference(option: PartnerOption) -> str:
+def reference_isotope(option: PartnerOption) -> str:
+    """Label of the isotope that a group's ``J`` belongs to (``J_ratio`` 1)."""
     return next((iso[0] for iso in option.isotopes if iso[3] == 1), option.label)
 
 
@@ -542,6 +556,9 @@ def identify(lines: Iterable, tol_Hz: float, options: Sequence[PartnerOption] | 
     if len(kept) > 1 and kept[1].score - kept[0].score < 0.1:
         notes.append(f"The two best explanations fit almost equally well ({kept[0].label}: {kept[0].score:.3f}; "
                      f"{kept[1].label}: {kept[1].score:.3f}).")
+    if lead.score - _complexity(lead.groups) > POOR_FIT:
+        notes.append(f"Even the best explanation fits poorly (score {lead.score:.2f}): the lines may not form one "
+                     "first-order multiplet, or a partner is missing from the allowed list.")
     if kept[0].unmatched_observed:
         notes.append(f"{kept[0].unmatched_observed} observed line(s) are not explained by the best candidate.")
     return Identification(kept, notes, evaluated, complete)
