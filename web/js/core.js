@@ -319,7 +319,7 @@ const NMR = (() => {
     for (const f of spec.shared || []) f.listeners.push(schedule);
     formNode.addEventListener("input", schedule);
     formNode.addEventListener("change", schedule);
-    ready.then(run);
+    whenShown(section, run);
     return { node: section, run, fields, out };
   }
 
@@ -382,6 +382,22 @@ const NMR = (() => {
     panels.push(panel);
   }
 
+  // Work for panels not on screen waits until their tab is first shown, so the
+  // visible panel's first results are not queued behind hidden ones.
+  const pendingByPanel = new Map();
+  /** Call fn once Python is ready and node's panel is (or becomes) visible. */
+  function whenShown(node, fn) {
+    ready.then(() => {
+      const panelNode = node.closest('[role="tabpanel"]');
+      if (!panelNode || !panelNode.hidden) {
+        fn();
+        return;
+      }
+      if (!pendingByPanel.has(panelNode.id)) pendingByPanel.set(panelNode.id, []);
+      pendingByPanel.get(panelNode.id).push(fn);
+    });
+  }
+
   function selectTab(id, focus) {
     for (const panel of panels) {
       const selected = panel.id === id;
@@ -389,6 +405,11 @@ const NMR = (() => {
       panel.tab.tabIndex = selected ? 0 : -1;
       panel.section.hidden = !selected;
       if (selected && focus) panel.tab.focus();
+      const queued = selected ? pendingByPanel.get(panel.section.id) : null;
+      if (queued) {
+        pendingByPanel.delete(panel.section.id);
+        queued.forEach((fn) => fn());
+      }
     }
     try {
       localStorage.setItem(TAB_KEY, id);
@@ -471,6 +492,6 @@ const NMR = (() => {
 
   return {
     api, ready, el, fmt, fixed, nuclideLabel, numberNode, form, sharedField, resultList, sortableTable,
-    registerPanel, start, timings, magnetRequest, MAGNET_UNITS, remember, recall, cancel,
+    registerPanel, whenShown, start, timings, magnetRequest, MAGNET_UNITS, remember, recall, cancel,
   };
 })();

@@ -64,6 +64,6 @@ NMR.registerPanel({
     } catch (err) {
       // default nuclide
     }
-    NMR.ready.then(() => show(last));
+    NMR.whenShown(details, () => show(last));
   },
 });
