@@ -60,9 +60,15 @@ NMR.registerPanel({
       errorTargets.set(key, { input: node, error });
       return el("div", { class: "field" }, el("label", { for: id }, label), node, error);
     }
+    const spinSelects = [];
+    const spinName = (k) => `spin ${k} · ${rows.spins[k].shift} ppm`;
+    function renameSpin(k) {
+      for (const select of spinSelects) select.options[k].textContent = spinName(k);
+    }
     function spinSelect(id, label, value, key, onChange) {
       const node = el("select", { id, "aria-describedby": `${id}-error` });
-      rows.spins.forEach((s, k) => node.append(el("option", { value: String(k) }, `spin ${k} · ${s.shift} ppm`)));
+      rows.spins.forEach((s, k) => node.append(el("option", { value: String(k) }, spinName(k))));
+      spinSelects.push(node);
       node.value = String(value);
       node.addEventListener("change", () => {
         onChange(Number(node.value));
@@ -155,13 +161,17 @@ NMR.registerPanel({
 
     function drawRows() {
       errorTargets.clear();
+      spinSelects.length = 0;
       spinBox.replaceChildren(...rows.spins.map((s, k) => {
         const base = `spins-s${k}`;
         const where = `spins.${k}`;
         return el("fieldset", { class: "row-card" },
           el("legend", { class: "row-title" }, `Spin ${k}`),
           input(`${base}-nucleus`, "Nucleus", s.nucleus, `${where}.nucleus`, (v) => { s.nucleus = v; }, { list: "nuclide-list" }),
-          input(`${base}-shift`, "Shift (ppm)", s.shift, `${where}.shift`, (v) => { s.shift = v; }, { inputmode: "decimal" }),
+          input(`${base}-shift`, "Shift (ppm)", s.shift, `${where}.shift`, (v) => {
+            s.shift = v;
+            renameSpin(k);
+          }, { inputmode: "decimal" }),
           input(`${base}-count`, "Equivalent nuclei", s.count, `${where}.count`, (v) => { s.count = v; }, { inputmode: "numeric" }),
           removeButton(`Remove spin ${k}`, () => {
             rows.spins.splice(k, 1);
