@@ -150,7 +150,6 @@ const NMRPlot = (() => {
       const item = document.createElement("li");
       const swatch = document.createElement("span");
       swatch.className = `plot-swatch${entry.dashed ? " dashed" : ""}${entry.kind === "sticks" ? " sticks" : ""}`;
-      swatch.dataset.color = String(entry.colorIndex);
       swatch.style.borderColor = colors(entry);
       item.append(swatch, document.createTextNode(entry.label));
       return item;
@@ -310,7 +309,7 @@ const NMRPlot = (() => {
       });
       svg.dataset.view = `${lo.toPrecision(8)},${hi.toPrecision(8)}`;
       setLegend(legend, data.traces.filter((t) => t.legend !== false).map((t) => ({
-        label: t.label, dashed: t.dashed, kind: t.kind, colorIndex: t.color || 0, color: colorOf(pal, t),
+        label: t.label, dashed: t.dashed, kind: t.kind, color: colorOf(pal, t),
       })), (entry) => entry.color);
     }
 
