@@ -82,35 +82,45 @@ def sha256_source(text: str) -> str:
 
 
 def png(size: int) -> bytes:
-    """A small app icon: a teal tile with a white doublet-of-peaks trace, as PNG bytes."""
-    def line_height(x: float) -> float:
-        peaks = ((0.36, 0.55), (0.46, 0.55), (0.64, 1.0))
-        width = 0.018
-        return sum(h * width**2 / ((x - c) ** 2 + width**2) for c, h in peaks)
+    """A small app icon: a teal rounded tile with a white three-line spectrum, as PNG bytes."""
+    peaks = ((0.36, 0.5), (0.46, 0.5), (0.64, 1.0))
 
-    rows = []
+    def trace_y(x: float) -> float:
+        width = 0.02
+        height = sum(h * width**2 / ((x - c) ** 2 + width**2) for c, h in peaks)
+        return 0.76 - 0.52 * height
+
+    teal, white = bytes((29, 90, 99, 255)), b"\xff\xff\xff\xff"
+    pixels = bytearray(size * size * 4)
+    corner = 0.18
     for py in range(size):
-        y = py / size
-        row = bytearray([0])
         for px in range(size):
-            x = px / size
-            corner = 0.18
+            x, y = (px + 0.5) / size, (py + 0.5) / size
             dx = max(corner - x, 0, x - (1 - corner))
             dy = max(corner - y, 0, y - (1 - corner))
-            if dx * dx + dy * dy > corner * corner:
-                row += b"\x00\x00\x00\x00"
-                continue
-            base = 0.78 - 0.56 * line_height(x)
-            on_trace = abs(y - base) < 0.022 and 0.12 < x < 0.88
-            on_axis = abs(y - 0.82) < 0.012 and 0.12 < x < 0.88
-            row += b"\xff\xff\xff\xff" if (on_trace or on_axis) else bytes((29, 90, 99, 255))
-        rows.append(bytes(row))
+            if dx * dx + dy * dy <= corner * corner:
+                pixels[(py * size + px) * 4:(py * size + px) * 4 + 4] = teal
+    radius = max(1.0, size * 0.014)
+
+    def stamp(cx: float, cy: float) -> None:
+        r = int(radius) + 1
+        for py in range(max(0, int(cy) - r), min(size, int(cy) + r + 1)):
+            for px in range(max(0, int(cx) - r), min(size, int(cx) + r + 1)):
+                if (px + 0.5 - cx) ** 2 + (py + 0.5 - cy) ** 2 <= radius * radius:
+                    pixels[(py * size + px) * 4:(py * size + px) * 4 + 4] = white
+
+    steps = size * 12
+    for i in range(steps + 1):
+        x = 0.14 + 0.72 * i / steps
+        stamp(x * size, trace_y(x) * size)
+        stamp(x * size, 0.82 * size)
+    rows = b"".join(b"\x00" + bytes(pixels[row * size * 4:(row + 1) * size * 4]) for row in range(size))
 
     def chunk(kind: bytes, data: bytes) -> bytes:
         return struct.pack(">I", len(data)) + kind + data + struct.pack(">I", zlib.crc32(kind + data))
 
     header = struct.pack(">IIBBBBB", size, size, 8, 6, 0, 0, 0)
-    return b"\x89PNG\r\n\x1a\n" + chunk(b"IHDR", header) + chunk(b"IDAT", zlib.compress(b"".join(rows), 9)) + chunk(b"IEND", b"")
+    return b"\x89PNG\r\n\x1a\n" + chunk(b"IHDR", header) + chunk(b"IDAT", zlib.compress(rows, 9)) + chunk(b"IEND", b"")
 
 
 def manifest() -> str:
