@@ -194,3 +194,9 @@ def test_seeded_round_trips_with_coinciding_lines(capsys):
             failures.append((groups, found))
     _report(capsys, "J2 = k J1", cases, failures)
     assert len(failures) <= 0.2 * cases
+
+
+def test_benchmark_cases_run():
+    from nmrcalc.physics.identify import benchmark_cases
+    for name, case in benchmark_cases():
+        assert case().candidates, name

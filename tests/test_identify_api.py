@@ -74,6 +74,7 @@ def test_platinum_satellites_around_a_quartet_from_the_multiplet_csv():
     ("# peaks\n1  2.501  10\n2  2.518  20\n3  2.535  10\n", None, [2.501, 2.518, 2.535]),
     ("No.;Shift (ppm);Height\n1;2.501;10\n2;2.518;20\n", "ppm", [2.501, 2.518]),
     ("ppm,Hz,intensity\n,-7.0,0.25\n,0.0,0.5\n,7.0,0.25\n", "Hz", [-7.0, 0.0, 7.0]),
+    ("ppm\tHz\tintensity\n\t-7.0\t0.25\n\t0.0\t0.5\n", "Hz", [-7.0, 0.0]),
     ("3.10\n3.12\n", None, [3.10, 3.12]),
 ])
 def test_peaklist_parser_formats(text, unit, positions):

@@ -78,7 +78,7 @@ def parse_peaklist(text: object, field: str = "peaklist") -> PeakList:
         line = raw.strip()
         if not line or line.startswith("#"):
             continue
-        cells = _cells(line)
+        cells = _cells(raw.rstrip("\r\n "))  # keep a leading empty cell (e.g. an empty ppm column)
         if header is None and not rows and any(c and _number(c) is None for c in cells):
             header = cells
             continue

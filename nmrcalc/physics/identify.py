@@ -27,7 +27,7 @@ Search (bounded)
    position; then try every split of each ``m_k`` into ``count × 2I`` with the
    allowed spins and counts.  Pruning: a model is scored only if its
    complexity term alone is below the best score so far (it could not win);
-   J sets with two J near a simple ratio ``p/q`` (``q <= 2``: coinciding
+   J sets with two J near a simple ratio ``p/q`` (``q <= 2``, ``p/q <= 4``: coinciding
    lines) only while no model fits better than ``COMMENSURATE_GATE`` (score
    without the complexity term); one group more only while no model fits
    better than ``LEVEL_GATE`` (a pattern explained that well by fewer groups
@@ -257,11 +257,11 @@ def _step_vectors(Js: Sequence[float], width: float, tol: float, n_obs: int, max
 
 
 def _commensurate(Js: Sequence[float], tol: float) -> bool:
-    """True if two J are within ``tol`` of a simple ratio ``p/q`` (``q <= 2``, ``p/q <= 12``): their lines coincide."""
+    """True if two J are within ``tol`` of a simple ratio ``p/q`` (``q <= 2``, ``p/q <= 4``): their lines coincide."""
     for a, b in itertools.combinations(sorted(Js), 2):
         for q in (1, 2):
             p = round(q * b / a)
-            if 1 <= p <= 12 * q and abs(q * b - p * a) <= tol:
+            if 1 <= p <= 4 * q and abs(q * b - p * a) <= tol:
                 return True
     return False
 
@@ -562,3 +562,20 @@ def identify(lines: Iterable, tol_Hz: float, options: Sequence[PartnerOption] | 
     if kept[0].unmatched_observed:
         notes.append(f"{kept[0].unmatched_observed} observed line(s) are not explained by the best candidate.")
     return Identification(kept, notes, evaluated, complete)
+
+
+def benchmark_cases() -> list[tuple[str, object]]:
+    """Named zero-argument callables for a benchmark script (no timing here)."""
+    half = Fraction(1, 2)
+
+    def lines_of(groups):
+        return [(100.0 + x, y) for x, y in normalized(multiplet(groups))]
+
+    septet = lines_of([(Fraction(1), 3, 19.5)])
+    three_groups = lines_of([(half, 1, 35.6), (half, 2, 11.7), (half, 3, 3.1)])
+    wide = [line for line in lines_of([(Fraction(3), 5, 6.4)]) if line[1] > 0.003]
+    return [
+        ("1:3:6:7:6:3:1 septet, bare spins", lambda: identify(septet, 0.5)),
+        ("d of t of q (24 lines), bare spins", lambda: identify(three_groups, 0.5)),
+        ("31-line 5 x I=3, outer lines lost", lambda: identify(wide, 0.5)),
+    ]
