@@ -401,6 +401,6 @@ NMR.registerPanel({
       presetBar.append(button);
     }
     drawRows();
-    NMR.ready.then(run);
+    NMR.whenShown(card, run);
   },
 });
