@@ -523,7 +523,7 @@ def identify(lines: Iterable, tol_Hz: float, options: Sequence[PartnerOption] | 
     if not complete:
         notes.append(f"The search stopped at its budget ({evaluated} models scored, limit {max_evals} models or "
                      f"{time_limit_s:g} s): the ranking may be incomplete; narrow the partners or the lines.")
-    ranked = sorted(results.values(), key=lambda c: (c.score, len(c.groups)))
+    ranked = sorted((c for c in results.values() if math.isfinite(c.score)), key=lambda c: (c.score, len(c.groups)))
     if ranked:
         ranked += sorted((c for c in look_alikes.values() if _same_pattern(ranked[0], c, tol_Hz)),
                          key=lambda c: c.score)
