@@ -110,6 +110,7 @@ def test_peaklist_errors_give_line_numbers():
     ({"lines": [[1.0, 1], [1.02, 1]], "unit": "ppm"}, "spectrometer"),
     ({"lines": [[100, 1], [107, 1]], "max_groups": 9}, "max_groups"),
     ({}, "lines"),
+    ({"peaklist": "\n".join(f"{k * 3.0} 1" for k in range(65))}, "peaklist"),
 ])
 def test_errors_name_fields(request_, field):
     assert error(request_)["field"] == field

@@ -37,7 +37,7 @@ from nmrcalc.errors import InputError
 from nmrcalc.nuclides import element_of, isotopes_of, lookup_magnetic
 from nmrcalc.physics import larmor
 from nmrcalc.physics.identify import (
-    MAX_COUNT, MAX_GROUPS, PartnerOption, identify, reference_isotope, spin_option)
+    MAX_COUNT, MAX_GROUPS, MAX_INPUT_LINES, PartnerOption, identify, reference_isotope, spin_option)
 from nmrcalc.physics.multiplet import parse_spin
 from nmrcalc.units import parse_quantity
 
@@ -110,8 +110,8 @@ def _read_lines(req: dict, unit: str) -> list[tuple[float, float, str]]:
     lines = req.get("lines")
     if not isinstance(lines, list) or not lines:
         raise InputError("'lines' must be a non-empty list of {position, intensity}.", "lines", "missing_field")
-    if len(lines) > 64:
-        raise InputError(f"At most 64 lines can be analysed, got {len(lines)}.", "lines", "too_large")
+    if len(lines) > MAX_INPUT_LINES:
+        raise InputError(f"At most {MAX_INPUT_LINES} lines can be analysed, got {len(lines)}.", "lines", "too_large")
     out = []
     for i, item in enumerate(lines):
         where = f"lines.{i}"
@@ -128,6 +128,9 @@ def _read_lines(req: dict, unit: str) -> list[tuple[float, float, str]]:
 
 def _read_peaklist(req: dict, unit_key: str | None, has_magnet: bool, notes: list[str]):
     parsed = parse_peaklist(req.get("peaklist"))
+    if len(parsed.peaks) > MAX_INPUT_LINES:
+        raise InputError(f"At most {MAX_INPUT_LINES} peaks can be analysed, the list has {len(parsed.peaks)}.",
+                         "peaklist", "too_large")
     values = [p for _, p, _ in parsed.peaks]
     if parsed.unit is not None:
         unit = parsed.unit
