@@ -164,7 +164,7 @@ const NMRPlot = (() => {
    * color: index into --plot-1..6; mark: draw in the marker colour (e.g. satellites).
    */
   function create(container, options) {
-    const opts = { height: 300, reversed: true, ...options };
+    const opts = { height: 300, reversed: true, caption: "Zoom: wheel, pinch or + / −. Pan: drag or ← →. 0 or Reset restores the view.", ...options };
     let data = { traces: [] };
     let full = [0, 1];
     let view = [0, 1];
