@@ -18,7 +18,7 @@ def test_bridge_passes_the_request_to_handle():
 
 def test_bridge_reports_bad_json_without_raising():
     reply = json.loads(bridge_module.bridge("{not json"))
-    assert reply["ok"] is False and reply["error"]["code"] == "bad_json"
+    assert reply["ok"] is False and reply["error"]["code"] == "bad_request"
 
 
 def test_bridge_passes_api_errors_through():
