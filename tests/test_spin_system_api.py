@@ -93,3 +93,18 @@ def test_too_large_is_refused_with_hint():
     couplings = [{"between": [i, j], "J": 3} for i in range(14) for j in range(i + 1, 14)]
     r = handle({"op": "spin_system", "observe": "1H", "spectrometer": 400, "spins": spins, "couplings": couplings})
     assert not r["ok"] and r["error"]["code"] == "too_large" and "multiplet" in r["error"]["message"]
+
+
+def test_factor_equivalence_off_gives_the_same_lines():
+    # A2B: a group of equivalent spins may be replaced by its total-spin states without
+    # changing the spectrum (composite particles, Pople, Schneider & Bernstein 1959)
+    req = {"op": "spin_system", "observe": "1H", "spectrometer": 300,
+           "spins": [{"nucleus": "1H", "shift": 7.00, "count": 2}, {"nucleus": "1H", "shift": 7.05}],
+           "couplings": [{"between": [0, 1], "J": 8}]}
+    factored, expanded = run(req)["lines"], run({**req, "factor_equivalence": False})["lines"]
+    assert len(factored) == len(expanded) > 4
+    for a, b in zip(factored, expanded):
+        assert math.isclose(a["Hz"], b["Hz"], abs_tol=1e-6)
+        assert math.isclose(a["intensity"], b["intensity"], rel_tol=1e-6, abs_tol=1e-9)
+    r = handle({**req, "factor_equivalence": "no"})
+    assert not r["ok"] and r["error"]["field"] == "factor_equivalence"

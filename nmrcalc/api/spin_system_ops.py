@@ -2,6 +2,10 @@
 the first-order check of every coupled pair, the first-order pattern for
 comparison, and the same system at several fields.
 
+``factor_equivalence`` (default true) lets the solver use groups of equivalent
+spins (total spin of each group); false expands every nucleus (same lines,
+larger matrices; for benchmarks and cross-checks).
+
 Each spin's offset at a field is δ × ν_ref of its nuclide (IUPAC 2001 unified
 scale, ``nmrcalc.physics.larmor``); couplings do not change with the field.
 """
@@ -114,7 +118,7 @@ def _line_dicts(lines, ref_MHz):
 def _block(spins, couplings, observe, field_T, proton_MHz, req, warnings) -> dict:
     sites = [Site(nuc.symbol, nuc.spin, shift * _ref_MHz(nuc, field_T, proton_MHz), count)
              for nuc, shift, count in spins]
-    lines = simulate(sites, couplings, observe.symbol)
+    lines = simulate(sites, couplings, observe.symbol, factor_equivalence=flag(req, "factor_equivalence", True))
     ref = _ref_MHz(observe, field_T, proton_MHz)
     checks = [{"pair": list(c["pair"]), "nucleus": c["nucleus"], "delta_nu_Hz": c["delta_nu_Hz"], "J_Hz": c["J_Hz"],
                "delta_nu_over_J": c["delta_nu_over_J"], "first_order": c["first_order"],
