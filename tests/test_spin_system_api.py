@@ -108,3 +108,12 @@ def test_factor_equivalence_off_gives_the_same_lines():
         assert math.isclose(a["intensity"], b["intensity"], rel_tol=1e-6, abs_tol=1e-9)
     r = handle({**req, "factor_equivalence": "no"})
     assert not r["ok"] and r["error"]["field"] == "factor_equivalence"
+
+
+def test_progress_is_reported_across_fields():
+    # the callback sees fractions rising to 1 over all fields (a front-end contract, no physics)
+    seen = []
+    req = {**AB, "fields": ["300 MHz", "600 MHz"]}
+    del req["spectrometer"]
+    assert handle(req, progress=seen.append)["ok"]
+    assert seen and seen == sorted(seen) and seen[-1] == 1.0 and 0 < seen[0] <= 0.5

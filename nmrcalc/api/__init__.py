@@ -12,6 +12,7 @@ from __future__ import annotations
 import json
 
 from nmrcalc.api.core_ops import OPS as CORE_OPS
+from nmrcalc.api.fields import PROGRESS
 from nmrcalc.api.identify_ops import OPS as IDENTIFY_OPS
 from nmrcalc.api.multiplet_ops import OPS as MULTIPLET_OPS
 from nmrcalc.api.spin_system_ops import OPS as SPIN_SYSTEM_OPS
@@ -25,8 +26,13 @@ def _error(code: str, message: str, field: str | None = None) -> dict:
     return {"ok": False, "error": {"code": code, "message": message, "field": field}}
 
 
-def handle(request) -> dict:
-    """Run one request; return a response dict (never raises)."""
+def handle(request, progress=None) -> dict:
+    """Run one request; return a response dict (never raises).
+
+    ``progress``, if given, is called with a fraction in [0, 1] during long
+    computations (spin systems), so a front end can show how far it got.
+    """
+    token = PROGRESS.set(progress)
     try:
         if not isinstance(request, dict):
             raise InputError("The request must be a JSON object with an 'op'.", None, "bad_request")
@@ -45,15 +51,17 @@ def handle(request) -> dict:
         return _error("too_large", "The request is too large or too deeply nested to compute.")
     except Exception as e:  # a bug: report it without a traceback
         return _error("internal", f"Internal error ({type(e).__name__}); the inputs are kept. Please report it.")
+    finally:
+        PROGRESS.reset(token)
 
 
-def handle_json(text: str) -> str:
+def handle_json(text: str, progress=None) -> str:
     """Text in, text out: the bridge used by the Web Worker and ``python -m nmrcalc api``."""
     try:
         if not isinstance(text, str) or len(text) > MAX_REQUEST_CHARS:
             response = _error("too_large", f"The request is longer than {MAX_REQUEST_CHARS} characters.")
         else:
-            response = handle(json.loads(text))
+            response = handle(json.loads(text), progress)
     except (ValueError, RecursionError):
         response = _error("bad_request", "The request is not valid JSON.")
     try:

@@ -5,12 +5,16 @@ Shared by every op so that each error names the request key it belongs to.
 
 from __future__ import annotations
 
+from contextvars import ContextVar
 from fractions import Fraction
 
 from nmrcalc.errors import InputError
 from nmrcalc.nuclides import Nuclide, lookup, lookup_magnetic
 from nmrcalc.physics.larmor import field_T_from_proton_MHz, proton_MHz_from_field_T
 from nmrcalc.units import parse_positive, parse_quantity
+
+# The progress callback of the request being handled (set by api.handle), or None.
+PROGRESS: ContextVar = ContextVar("progress", default=None)
 
 STRONGEST_MAGNET_T = 30.0   # common practice: high-resolution magnets reach about 28 T (1.2 GHz)
 WEAKEST_FIELD_T = 1e-5      # below Earth's field (about 5e-5 T)

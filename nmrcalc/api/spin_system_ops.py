@@ -14,7 +14,7 @@ from __future__ import annotations
 
 from fractions import Fraction
 
-from nmrcalc.api.fields import flag, magnet, nucleus, quantity
+from nmrcalc.api.fields import PROGRESS, flag, magnet, nucleus, quantity
 from nmrcalc.errors import InputError
 from nmrcalc.nuclides import Nuclide
 from nmrcalc.physics import larmor, lineshape
@@ -115,10 +115,11 @@ def _line_dicts(lines, ref_MHz):
     return [{"Hz": x, "ppm": x / ref_MHz, "intensity": y} for x, y in lines]
 
 
-def _block(spins, couplings, observe, field_T, proton_MHz, req, warnings) -> dict:
+def _block(spins, couplings, observe, field_T, proton_MHz, req, progress=None) -> dict:
     sites = [Site(nuc.symbol, nuc.spin, shift * _ref_MHz(nuc, field_T, proton_MHz), count)
              for nuc, shift, count in spins]
-    lines = simulate(sites, couplings, observe.symbol, factor_equivalence=flag(req, "factor_equivalence", True))
+    lines = simulate(sites, couplings, observe.symbol, factor_equivalence=flag(req, "factor_equivalence", True),
+                     progress=progress)
     ref = _ref_MHz(observe, field_T, proton_MHz)
     checks = [{"pair": list(c["pair"]), "nucleus": c["nucleus"], "delta_nu_Hz": c["delta_nu_Hz"], "J_Hz": c["J_Hz"],
                "delta_nu_over_J": c["delta_nu_over_J"], "first_order": c["first_order"],
@@ -151,7 +152,11 @@ def op_spin_system(req, warnings):
         raise InputError(f"No {observe.symbol} among the spins: nothing to observe.", "observe")
     couplings = _couplings(req, len(spins))
     magnets = _magnets(req, warnings)
-    blocks = [_block(spins, couplings, observe, f, p, req, warnings) for f, p in magnets]
+    report = PROGRESS.get()
+    blocks = []
+    for k, (f, p) in enumerate(magnets):
+        step = None if report is None else (lambda x, k=k: report((k + x) / len(magnets)))
+        blocks.append(_block(spins, couplings, observe, f, p, req, step))
     offsets0 = [Site(nuc.symbol, nuc.spin, shift, count) for nuc, shift, count in spins]
     warnings.extend(equivalence_caveats(offsets0, couplings))
     if any(nuc.quadrupolar and nuc.symbol != "2H" for nuc, _, _ in spins):
