@@ -9,7 +9,16 @@ Page section (needs `npm ci` and chromium):
   for the single file from file:// and for the folder build on localhost (fresh context each run);
 * single-file size against the Pyodide core files it embeds.
 
-Usage: python build_scripts/benchmark.py [--runs N] [--only page]
+Compute sections (one fresh folder build in bench_results/tmp/web, one page on localhost;
+page figures are timed in the page with performance.now around NMR.api, worker round trip included):
+* latency: median and max of a typical request per API op, page and CPython;
+* multiplets: large first-order patterns, CPython and page, beside numpy.convolve peers;
+* spins: 8 all-coupled spins-1/2 (page, CPython with and without numpy), the largest
+  all-coupled system within 5 s in the page, and chains with equivalence factoring on and off;
+* identify: the pattern finder on a 20-line multiplet, page and CPython;
+* summary: each speed target with PASS or MISS (a report: the script exits 0 either way).
+
+Usage: python build_scripts/benchmark.py [--runs N] [--only page|latency|multiplets|spins|identify|summary]
 """
 
 from __future__ import annotations
@@ -17,13 +26,18 @@ from __future__ import annotations
 import argparse
 import functools
 import http.server
+import io
+import os
+import platform
 import shutil
 import statistics
+import subprocess
 import sys
 import tempfile
 import threading
 import time
-from contextlib import contextmanager
+from contextlib import ExitStack, contextmanager, redirect_stdout
+from fractions import Fraction
 from pathlib import Path
 
 ROOT = Path(__file__).resolve().parent.parent
@@ -138,7 +152,333 @@ def page_section(bench: Bench) -> list[tuple[str, float, str]]:
     ]
 
 
-SECTIONS = {"page": page_section}
+# ---- compute sections: API latency, multiplets, spin systems, pattern finder ----
+# Page figures are timed inside the page (performance.now around NMR.api), so they
+# include the worker round trip and JSON both ways; CPython figures time
+# nmrcalc.api.handle (or the physics function) in this process.
+
+PAGE_CALL = """async ([request, n, limitMs]) => {
+  const times = [];
+  for (let i = 0; i < n; i++) {
+    let timer;
+    const late = new Promise((resolve) => { timer = setTimeout(() => resolve(null), limitMs); });
+    const t0 = performance.now();
+    const response = await Promise.race([NMR.api(request), late]);
+    const ms = performance.now() - t0;
+    clearTimeout(timer);
+    if (response === null) { NMR.cancel(); return { timeout: true, ms }; }
+    if (!response.ok) return { error: response.error, ms };
+    times.push(ms);
+  }
+  return { times };
+}"""
+TYPICAL_MULTIPLET = {"op": "multiplet", "observe": "1H", "spectrometer": "400 MHz", "spectrum": True,
+                     "linewidth": "0.8 Hz", "groups": [
+                         {"partner": "1H", "count": 1, "J": "15.9 Hz"}, {"partner": "1H", "count": 2, "J": "7.1 Hz"},
+                         {"partner": "1H", "count": 3, "J": "6.8 Hz"}, {"partner": "19F", "count": 1, "J": "2.4 Hz"},
+                         {"partner": "31P", "count": 1, "J": "1.1 Hz"}]}
+TYPICAL_SPINS = {"op": "spin_system", "observe": "1H", "spectrometer": "400 MHz", "spectrum": True,
+                 "spins": [{"nucleus": "1H", "shift": 7.10}, {"nucleus": "1H", "shift": 7.00},
+                           {"nucleus": "1H", "shift": 6.2}],
+                 "couplings": [{"between": [0, 1], "J": 8.0}, {"between": [0, 2], "J": 1.5},
+                               {"between": [1, 2], "J": 3.0}]}
+TYPICAL_OPS = [
+    ("nuclide", {"op": "nuclide", "query": "13C"}),
+    ("nuclides", {"op": "nuclides"}),
+    ("frequency", {"op": "frequency", "nucleus": "13C", "spectrometer": "500 MHz"}),
+    ("ppm_hz", {"op": "ppm_hz", "nucleus": "13C", "spectrometer": "500.13 MHz", "ppm": 77.16}),
+    ("scale_coupling", {"op": "scale_coupling", "J": "14.3 Hz", "from": "1H", "to": "2H"}),
+    ("energy", {"op": "energy", "nucleus": "1H", "spectrometer": "500 MHz", "temperature": "298 K"}),
+    ("sensitivity", {"op": "sensitivity", "nucleus": "15N", "relative_to": "13C"}),
+    ("multiplet (5 groups, spectrum)", TYPICAL_MULTIPLET),
+    ("multiplet (5 groups, lines only)", {**TYPICAL_MULTIPLET, "spectrum": False}),
+    ("spin_system (ABX, spectrum)", TYPICAL_SPINS),
+    ("identify (quartet)", {"op": "identify", "observe": "1H", "spectrometer": "400 MHz", "tolerance": "0.5 Hz",
+                            "lines": [{"position": f"{1234.5 + x} Hz", "intensity": y}
+                                      for x, y in [(-10.5, 1), (-3.5, 3), (3.5, 3), (10.5, 1)]]}),
+]
+SPIN_LIMIT_S = 5.0
+_STACK = ExitStack()  # the live page and its server, closed by main()
+if str(ROOT) not in sys.path:
+    sys.path.insert(1, str(ROOT))  # the nmrcalc package, for the CPython figures
+
+
+def machine_line() -> str:
+    """CPU model, cores, memory, Python and chromium versions, for the results header."""
+    info = Path("/proc/cpuinfo").read_text() if Path("/proc/cpuinfo").exists() else ""
+    cpu = next((l.split(":", 1)[1].strip() for l in info.splitlines() if l.startswith("model name")), "unknown CPU")
+    mem = next((int(l.split()[1]) / 2**20 for l in Path("/proc/meminfo").read_text().splitlines()
+                if l.startswith("MemTotal")), 0.0) if Path("/proc/meminfo").exists() else 0.0
+    chromium = shutil.which("chromium") or "/usr/bin/chromium"
+    try:
+        version = subprocess.run([chromium, "--version"], capture_output=True, text=True, timeout=30).stdout.strip()
+    except (OSError, subprocess.SubprocessError):
+        version = "chromium version unknown"
+    return (f"machine: {cpu}, {os.cpu_count()} cores, {mem:.1f} GiB memory; "
+            f"CPython {platform.python_version()}; {version or 'chromium version unknown'}")
+
+
+def _target(bench: Bench, text: str, value: float, limit: float, unit: str) -> None:
+    bench.__dict__.setdefault("targets", []).append((text, value, limit, unit))
+
+
+def _table(header: list[str], rows: list[list]) -> list[str]:
+    """Rows as aligned text: first column left, the others right-aligned; floats to 3 significant figures."""
+    cells = [header] + [[c if isinstance(c, str) else f"{c:.3g}" for c in row] for row in rows]
+    widths = [max(len(r[k]) for r in cells) for k in range(len(header))]
+    return ["  " + "  ".join(c.ljust(w) if k == 0 else c.rjust(w) for k, (c, w) in enumerate(zip(r, widths)))
+            for r in cells]
+
+
+def _live_page(bench: Bench):
+    """One page of a fresh folder build on localhost, booted and idle; reused by all compute sections."""
+    if "live_page" not in bench.__dict__:
+        out = ROOT / "bench_results" / "tmp" / "web"
+        with redirect_stdout(io.StringIO()):
+            if build_web.main(["--out", str(out)]) != 0:
+                raise SystemExit("build failed")
+        url = _STACK.enter_context(serve(out / "site"))
+        context = bench.browser().new_context()
+        _STACK.callback(context.close)
+        page = context.new_page()
+        page.goto(url + "index.html")
+        deadline = time.monotonic() + 180
+        while not isinstance(page.evaluate(FIRST_RESULT), (int, float)):  # polled: the page's CSP forbids eval
+            if time.monotonic() > deadline:
+                raise TimeoutError("page: no first result within 180 s")
+            time.sleep(0.1)
+        time.sleep(2)  # let the first panel's own calls finish
+        bench.live_page = page
+    return bench.live_page
+
+
+def page_times(bench: Bench, request: dict, n: int, limit_s: float = 60.0) -> list[float] | None:
+    """Milliseconds of n calls of ``request`` in the page; None when one passes limit_s (the worker is restarted)."""
+    out = _live_page(bench).evaluate(PAGE_CALL, [request, n, limit_s * 1000])
+    if out.get("timeout"):
+        return None
+    if "error" in out:
+        raise RuntimeError(f"page: {request['op']} failed: {out['error']}")
+    return out["times"]
+
+
+def page_call_or_refused(bench: Bench, request: dict, limit_s: float):
+    """(seconds, None) for one call; (None, "timeout") or (None, error code) otherwise."""
+    out = _live_page(bench).evaluate(PAGE_CALL, [request, 1, limit_s * 1000])
+    if out.get("timeout"):
+        return None, f"> {limit_s:g} s"
+    if "error" in out:
+        return None, out["error"].get("code") or "error"
+    return out["times"][0] / 1000, None
+
+
+def cpython_times(fn, n: int) -> list[float]:
+    """Milliseconds of n calls of fn() in this process."""
+    times = []
+    for _ in range(n):
+        t0 = time.perf_counter()
+        fn()
+        times.append((time.perf_counter() - t0) * 1000)
+    return times
+
+
+def _handled(request: dict):
+    from nmrcalc.api import handle
+
+    def call():
+        r = handle(request)
+        if not r["ok"]:
+            raise RuntimeError(f"CPython: {request['op']} failed: {r['error']}")
+        return r
+    return call
+
+
+def latency_section(bench: Bench) -> list:
+    """Median and max latency of a typical request per op, in the page and on CPython."""
+    n = 15
+    rows, worst = [], 0.0
+    for name, request in TYPICAL_OPS:
+        page = page_times(bench, request, n)
+        local = cpython_times(_handled(request), n)
+        med = statistics.median(page)
+        worst = max(worst, med)
+        rows.append([name, med, max(page), statistics.median(local), med / statistics.median(local)])
+        if request is TYPICAL_MULTIPLET:
+            _target(bench, "typical multiplet (5 groups) recompute in the page, median", med, 50, "ms")
+    _target(bench, "typical ops in the page, slowest median", worst, 50, "ms")
+    return [f"  {n} calls per op; page = NMR.api round trip timed in the page"] + _table(
+        ["op", "page median ms", "page max ms", "CPython median ms", "page/CPython"], rows)
+
+
+def _numpy_peer(groups, dtype):
+    """Lines of first-order groups by numpy.convolve: each group's coefficients by repeated
+    convolution with ones(2I + 1), then groups combined by outer sums of positions and outer
+    products of weights, coinciding positions (to 1e-9 Hz) summed."""
+    import numpy as np
+
+    pos, weight = np.zeros(1), np.ones(1, dtype=dtype)
+    for spin, count, J in groups:
+        m = int(2 * spin) + 1
+        coeff = np.ones(1, dtype=dtype)
+        for _ in range(count):
+            coeff = np.convolve(coeff, np.ones(m, dtype=dtype))
+        offsets = (np.arange(len(coeff)) - (len(coeff) - 1) / 2) * J
+        pos = np.add.outer(pos, offsets).ravel()
+        weight = np.multiply.outer(weight, coeff).ravel()
+    keys, where = np.unique(np.round(pos, 9), return_inverse=True)
+    summed = np.zeros(len(keys), dtype=dtype)
+    np.add.at(summed, where, weight)
+    return keys, summed
+
+
+def multiplet_section(bench: Bench) -> list:
+    """Large first-order patterns: CPython physics, API op on CPython and in the page, numpy.convolve peers."""
+    half, one, three_half, nine_half = Fraction(1, 2), Fraction(1), Fraction(3, 2), Fraction(9, 2)
+    cases = [
+        ("12 x I=1/2 + 6 x I=1 + 3 x I=3/2", [(half, 12, 7.1), (one, 6, 2.3), (three_half, 3, 0.9)]),
+        ("20 x I=9/2", [(nine_half, 20, 3.0)]),
+        ("50 x I=1/2", [(half, 50, 7.0)]),
+    ]
+    from nmrcalc.physics.multiplet import multiplet
+
+    n = max(3, bench.runs)
+    rows, ratio_rows = [], []
+    for name, groups in cases:
+        request = {"op": "multiplet", "observe": "1H", "spectrometer": "400 MHz",
+                   "groups": [{"spin": str(s), "count": c, "J": J} for s, c, J in groups]}
+        lines = len(multiplet(groups))
+        physics = statistics.median(cpython_times(lambda: multiplet(groups), n))
+        api = statistics.median(cpython_times(_handled(request), n))
+        page = statistics.median(page_times(bench, request, n))
+        f64 = statistics.median(cpython_times(lambda: _numpy_peer(groups, "float64"), n))
+        obj = statistics.median(cpython_times(lambda: _numpy_peer(groups, object), n))
+        rows.append([name, str(lines), physics, api, page, f64, obj])
+        ratio_rows.append([name, page / api, physics / f64, physics / obj])
+    return ([f"  median of {n}; times in ms; 'API' = the multiplet op (lines, tree, no spectrum)"]
+            + _table(["pattern", "lines", "CPython physics", "CPython API", "page API",
+                      "numpy f64", "numpy object"], rows)
+            + ["  ratios (same run):"]
+            + _table(["pattern", "page/CPython API", "physics/numpy f64", "physics/numpy object"], ratio_rows))
+
+
+def _all_coupled(n: int) -> tuple[list, list]:
+    """n distinct spins-1/2 between 1 and 3 ppm at 400 MHz, every pair coupled (2 to 9 Hz)."""
+    spins = [{"nucleus": "1H", "shift": round(1.0 + 2.0 * k / max(n - 1, 1), 4)} for k in range(n)]
+    couplings = [{"between": [i, j], "J": round(2.0 + 0.7 * ((7 * i + 3 * j) % 11), 2)}
+                 for i in range(n) for j in range(i + 1, n)]
+    return spins, couplings
+
+
+def _chain(k: int) -> tuple[list, list]:
+    """CH3-(CH2)k: a methyl and k methylene groups 0.05 ppm apart (second order at 400 MHz), vicinal J ≈ 7 Hz."""
+    spins = [{"nucleus": "1H", "shift": 0.90, "count": 3}]
+    spins += [{"nucleus": "1H", "shift": round(1.20 + 0.05 * g, 3), "count": 2} for g in range(k)]
+    couplings = [{"between": [g, g + 1], "J": round(7.0 + 0.2 * g, 2)} for g in range(k)]
+    return spins, couplings
+
+
+def spin_section(bench: Bench) -> list:
+    """Exact spectra of coupled spins: 8 all-coupled in the page and on CPython; largest within 5 s."""
+    from nmrcalc.physics.spin_system import Site, simulate
+
+    base = {"op": "spin_system", "observe": "1H", "spectrometer": "400 MHz"}
+    spins, couplings = _all_coupled(8)
+    request = {**base, "spins": spins, "couplings": couplings}
+    sites = [Site("1H", Fraction(1, 2), s["shift"] * 400.0, 1) for s in spins]
+    pairs = [(c["between"][0], c["between"][1], c["J"]) for c in couplings]
+    n = max(3, bench.runs)
+    page = statistics.median(page_times(bench, request, n)) / 1000
+    pure = statistics.median(cpython_times(lambda: simulate(sites, pairs, "1H", use_numpy=False), n)) / 1000
+    try:
+        fast = statistics.median(cpython_times(lambda: simulate(sites, pairs, "1H", use_numpy=True), n)) / 1000
+    except Exception:  # numpy missing: report the pure figure only
+        fast = float("nan")
+    _target(bench, "8 coupled spins-1/2 in the page, median", page, 1.0, "s")
+    out = [f"  8 spins-1/2, all 28 couplings non-zero (median of {n}; s)"]
+    out += _table(["where", "time s", "ratio"], [
+        ["page (spin_system op)", page, page / pure],
+        ["CPython, pure Python", pure, 1.0],
+        ["CPython, numpy.linalg.eigh", fast, fast / pure],
+    ])
+    out.append("  ratio = time / CPython pure Python")
+
+    out.append(f"  largest all-coupled system within {SPIN_LIMIT_S:g} s in the page (one call each; s)")
+    rows, best = [], None
+    for size in range(4, 13):
+        spins, couplings = _all_coupled(size)
+        seconds, why = page_call_or_refused(bench, {**base, "spins": spins, "couplings": couplings}, SPIN_LIMIT_S)
+        rows.append([f"n = {size}", seconds if why is None else why])
+        if why is not None or seconds > SPIN_LIMIT_S:
+            break
+        best = size
+    out += _table(["spins-1/2", "page s"], rows)
+    out.append(f"  largest within {SPIN_LIMIT_S:g} s: n = {best}")
+
+    out.append(f"  CH3-(CH2)k chains, equivalence factoring on vs off, page (one call each; s; stop past {SPIN_LIMIT_S:g} s)")
+    rows, best = [], {True: None, False: None}
+    going = {True: True, False: True}
+    for k in range(1, 9):
+        spins, couplings = _chain(k)
+        row = [f"k = {k} ({3 + 2 * k} nuclei)"]
+        for factor in (True, False):
+            if not going[factor]:
+                row.append("-")
+                continue
+            req = {**base, "spins": spins, "couplings": couplings, "factor_equivalence": factor}
+            seconds, why = page_call_or_refused(bench, req, SPIN_LIMIT_S)
+            row.append(seconds if why is None else why)
+            if why is None and seconds <= SPIN_LIMIT_S:
+                best[factor] = 3 + 2 * k
+            else:
+                going[factor] = False
+        rows.append(row)
+        if not any(going.values()):
+            break
+    out += _table(["chain", "factored s", "expanded s"], rows)
+    out.append(f"  largest chain within {SPIN_LIMIT_S:g} s: factored {best[True]} nuclei"
+               + (" (still under the limit at k = 8, the largest tried)" if going[True] else "")
+               + f", expanded {best[False]} nuclei")
+    return out
+
+
+def _twenty_lines() -> list[dict]:
+    """A doublet of doublets of quintets (J 12.0, 7.3, 2.1 Hz): 2 x 2 x 5 = 20 distinct lines at 1000 Hz."""
+    from nmrcalc.physics.multiplet import multiplet
+
+    half = Fraction(1, 2)
+    sticks = multiplet([(half, 1, 12.0), (half, 1, 7.3), (half, 4, 2.1)])
+    if len(sticks) != 20:
+        raise RuntimeError(f"expected 20 lines, got {len(sticks)}")
+    top = max(w for _, w in sticks)
+    return [{"position": f"{1000.0 + x:.4f} Hz", "intensity": round(w / top, 6)} for x, w in sticks]
+
+
+def identify_section(bench: Bench) -> list:
+    """The pattern finder (identify op) on a 20-line multiplet, in the page and on CPython."""
+    request = {"op": "identify", "observe": "1H", "spectrometer": "400 MHz", "tolerance": "0.3 Hz",
+               "lines": _twenty_lines()}
+    n = max(3, bench.runs)
+    page = statistics.median(page_times(bench, request, n)) / 1000
+    local = statistics.median(cpython_times(_handled(request), n)) / 1000
+    top = _handled(request)()["result"]["candidates"]
+    label = top[0]["label"] if top else "none"
+    _target(bench, "pattern finder, 20-line multiplet in the page, median", page, 0.5, "s")
+    return [f"  d of d of quintet (20 lines), median of {n}; top candidate: {label}"] + _table(
+        ["where", "time s", "ratio"], [["page (identify op)", page, page / local], ["CPython (identify op)", local, 1.0]])
+
+
+def summary_section(bench: Bench) -> list:
+    """Each speed target collected by the sections run before, with PASS or MISS (a report only)."""
+    targets = bench.__dict__.get("targets", [])
+    if not targets:
+        return ["  no targets measured (run the latency, multiplets, spins or identify sections)"]
+    return _table(["target", "measured", "limit", "result"],
+                  [[text, f"{value:.3g} {unit}", f"< {limit:g} {unit}", "PASS" if value < limit else "MISS"]
+                   for text, value, limit, unit in targets])
+
+
+SECTIONS = {"page": page_section, "latency": latency_section, "multiplets": multiplet_section,
+            "spins": spin_section, "identify": identify_section, "summary": summary_section}
 
 
 def main(argv: list[str] | None = None) -> int:
@@ -147,13 +487,15 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--only", choices=sorted(SECTIONS), action="append", help="run only these sections")
     args = parser.parse_args(argv)
     bench = Bench(args.runs)
-    lines = [f"nmrcalc benchmark, {time.strftime('%Y-%m-%d %H:%M:%S %Z')}, median of {args.runs} runs"]
+    lines = [f"nmrcalc benchmark, {time.strftime('%Y-%m-%d %H:%M:%S %Z')}, median of {args.runs} runs", machine_line()]
     try:
         for name in args.only or list(SECTIONS):
             lines.append(f"[{name}]")
-            for label, value, unit in SECTIONS[name](bench):
-                lines.append(f"  {label:<48} {value:10.3f} {unit}")
+            for row in SECTIONS[name](bench):  # (label, value, unit) or a preformatted line
+                lines.append(row if isinstance(row, str) else f"  {row[0]:<48} {row[1]:10.3f} {row[2]}")
+            print(f"benchmark: {name} done", file=sys.stderr, flush=True)
     finally:
+        _STACK.close()
         bench.close()
     text = "\n".join(lines)
     print(text)
