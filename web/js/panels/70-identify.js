@@ -1,0 +1,401 @@
+// Panel: pattern finder — measured lines of one multiplet in, ranked
+// first-order explanations out (which groups of equivalent partners, how many,
+// which J). Every candidate, score, predicted line and note comes from the API
+// op "identify"; this file only collects inputs and draws the answer.
+"use strict";
+
+NMR.registerPanel({
+  id: "identify",
+  title: "Pattern finder",
+  build(container) {
+    const { el } = NMR;
+    const MODE_KEY = "ident.mode";
+    const LIST_KEY = "ident.peaklist";
+    const ROWS_KEY = "ident.rows";
+    // display only: n significant digits without trailing zeros
+    const short = (value, digits) => String(Number(value.toPrecision(digits || 6)));
+    const DEMOS = [
+      {
+        name: "Made-up CD₃ ester carbon, ¹³C (ppm list)",
+        observe: "13C", magnet: "400", partners: "2H, H",
+        peaklist: "ppm\theight\n20.2616\t1.05\n20.4541\t2.90\n20.6471\t6.10\n20.8401\t7.00\n21.0327\t5.90\n21.2259\t3.10\n21.4186\t0.96\n",
+      },
+      {
+        name: "Made-up vinyl proton, ¹H (Hz list)",
+        observe: "1H", magnet: "400", partners: "",
+        peaklist: "Hz,intensity\n2400.65,1.00\n2404.10,2.00\n2407.55,1.00\n2416.45,1.00\n2419.90,2.00\n2423.35,1.00\n",
+      },
+    ];
+
+    const card = el("section", { class: "card card-wide", id: "card-ident", "aria-labelledby": "ident-title" });
+    card.append(
+      el("h2", { id: "ident-title" }, "Pattern finder"),
+      el("p", { class: "intro" }, "Give the measured lines of one multiplet. The finder ranks first-order explanations: groups of equivalent partners, how many of each, and their J."),
+    );
+    const demoBar = el("div", { class: "presets", role: "group", "aria-label": "Example peak lists (invented)" });
+    card.append(el("p", { class: "hint" }, "Examples (invented samples), one tap to load:"), demoBar);
+
+    const fixed = {
+      observe: NMR.sharedField("ident", { id: "observe", label: "Observed nucleus", value: "1H", list: "nuclide-list", keys: ["observe"] }),
+      magnet: NMR.sharedField("ident", {
+        id: "magnet", label: "Magnet", value: "400", inputmode: "decimal", units: NMR.MAGNET_UNITS, keys: ["spectrometer", "field"],
+        hint: "Needed for ppm positions; blank for Hz offsets only.",
+      }),
+      unit: NMR.sharedField("ident", {
+        id: "unit", label: "Positions are in", kind: "select", keys: ["unit"],
+        options: [["", "Auto (header or guess)"], ["Hz", "Hz"], ["ppm", "ppm"]],
+      }),
+      partners: NMR.sharedField("ident", {
+        id: "partners", label: "Allowed partners", value: "", placeholder: "e.g. H, 2H, B, Pt", keys: ["partners"],
+        hint: "Nuclides, elements or spins (1/2, spin=3/2), comma-separated. Blank: bare spins 1/2 to 3.",
+      }),
+      tolerance: NMR.sharedField("ident", {
+        id: "tolerance", label: "Position tolerance (Hz)", value: "", inputmode: "decimal", placeholder: "default", keys: ["tolerance"],
+      }),
+      maxGroups: NMR.sharedField("ident", {
+        id: "max_groups", label: "Most groups of partners", kind: "select", keys: ["max_groups"],
+        options: [["3", "3"], ["2", "2"], ["1", "1"]],
+      }),
+    };
+    const formNode = el("form", { class: "calc-form", id: "form-ident", novalidate: true });
+    formNode.append(el("div", { class: "fields" }, ...Object.values(fixed).map((f) => f.wrap)));
+
+    // ---------- the measured lines: a pasted list or typed rows ----------
+    let mode = NMR.recall(MODE_KEY) === "table" ? "table" : "paste";
+    const modeBox = el("fieldset", { class: "mode-switch", id: "ident-mode" }, el("legend", { class: "row-title" }, "Measured lines"));
+    const modeInputs = {};
+    for (const [value, text] of [["paste", "Paste a list"], ["table", "Type lines"]]) {
+      const input = el("input", { type: "radio", name: "ident-mode", id: `ident-mode-${value}`, value });
+      input.checked = mode === value;
+      input.addEventListener("change", () => {
+        mode = value;
+        NMR.remember(MODE_KEY, mode);
+        showMode();
+      });
+      modeInputs[value] = input;
+      modeBox.append(el("label", { class: "check", for: input.id }, input, el("span", {}, text)));
+    }
+
+    const pasteBox = el("div", { class: "field", id: "ident-paste" });
+    const peaklist = el("textarea", {
+      id: "ident-peaklist", rows: "8", spellcheck: "false", autocomplete: "off",
+      "aria-describedby": "ident-peaklist-hint ident-peaklist-error",
+      placeholder: "Hz\tintensity\n1230.5\t1\n1237.5\t2\n1244.5\t1",
+    });
+    peaklist.value = NMR.recall(LIST_KEY) || "";
+    peaklist.addEventListener("input", () => NMR.remember(LIST_KEY, peaklist.value));
+    const peaklistError = el("p", { class: "field-error", id: "ident-peaklist-error", "aria-live": "polite" });
+    pasteBox.append(
+      el("label", { for: "ident-peaklist" }, "Peak list (one peak a line: position, intensity)"),
+      peaklist,
+      el("p", { class: "hint", id: "ident-peaklist-hint" }, "Columns split by commas, tabs or spaces; a header line may name them (ppm, Hz, intensity). Copied tables and the multiplet builder's CSV work as they are."),
+      peaklistError,
+    );
+
+    const saved = NMR.recall(ROWS_KEY);
+    let rows = Array.isArray(saved) && saved.length ? saved : [{ position: "", intensity: "1" }];
+    const tableBox = el("div", { id: "ident-table-box" });
+    const rowsBody = el("tbody", { id: "ident-rows" });
+    const linesError = el("p", { class: "field-error", id: "ident-lines-error", "aria-live": "polite" });
+    const rowErrors = new Map();
+    const saveRows = () => NMR.remember(ROWS_KEY, rows);
+
+    function cellInput(i, key, label) {
+      const id = `ident-l${i}-${key}`;
+      const input = el("input", {
+        type: "text", id, autocomplete: "off", spellcheck: "false", inputmode: "decimal",
+        "aria-label": `Line ${i + 1} ${label}`, "aria-describedby": `${id}-error`,
+      });
+      input.value = rows[i][key];
+      input.addEventListener("input", () => {
+        rows[i][key] = input.value;
+        saveRows();
+      });
+      const error = el("p", { class: "field-error", id: `${id}-error`, "aria-live": "polite" });
+      const wrap = el("div", { class: "field" }, input, error);
+      rowErrors.set(`lines.${i}.${key}`, { wrap, input, error });
+      return el("td", {}, wrap);
+    }
+    function drawRows() {
+      rowErrors.clear();
+      rowsBody.replaceChildren(...rows.map((_, i) => {
+        const remove = el("button", { type: "button", class: "small-button", "aria-label": `Remove line ${i + 1}` }, "Remove");
+        remove.addEventListener("click", () => {
+          rows.splice(i, 1);
+          if (!rows.length) rows.push({ position: "", intensity: "1" });
+          saveRows();
+          drawRows();
+        });
+        return el("tr", {}, el("th", { scope: "row", class: "num" }, String(i + 1)), cellInput(i, "position", "position"), cellInput(i, "intensity", "intensity"), el("td", {}, remove));
+      }));
+    }
+    const addRow = el("button", { type: "button", class: "small-button", id: "ident-add-line" }, "+ Add line");
+    addRow.addEventListener("click", () => {
+      rows.push({ position: "", intensity: "1" });
+      saveRows();
+      drawRows();
+      document.getElementById(`ident-l${rows.length - 1}-position`).focus();
+    });
+    const linesTable = el("table", { class: "data compact lines-input" },
+      el("caption", {}, "Measured lines (position in the unit chosen above, or with its unit, e.g. 7.26 ppm)"),
+      el("thead", {}, el("tr", {}, el("th", { scope: "col" }, "#"), el("th", { scope: "col" }, "Position"), el("th", { scope: "col" }, "Intensity"), el("th", { scope: "col" }, el("span", { class: "hint" }, "Row")))),
+      rowsBody);
+    tableBox.append(el("div", { class: "table-wrap" }, linesTable), linesError, el("div", { class: "actions" }, addRow));
+
+    function showMode() {
+      pasteBox.hidden = mode !== "paste";
+      tableBox.hidden = mode !== "table";
+    }
+
+    const submit = el("button", { type: "submit", class: "primary", id: "ident-find" }, "Find patterns");
+    const formError = el("p", { class: "form-error", id: "ident-form-error", "aria-live": "polite" });
+    const cancel = el("button", { type: "button", class: "small-button", id: "ident-cancel" }, "Cancel");
+    const busy = el("div", { class: "busy", id: "ident-busy", hidden: true, role: "status" }, el("span", {}, "Searching…"), cancel);
+    formNode.append(modeBox, pasteBox, tableBox, el("div", { class: "actions" }, submit, busy, formError));
+    card.append(formNode);
+
+    // ---------- results ----------
+    const out = el("div", { class: "result", id: "ident-result", "aria-live": "polite", hidden: true });
+    const headline = el("p", { class: "headline", id: "ident-label" });
+    const centre = el("p", { class: "count", id: "ident-centre" });
+    const candidatesBox = el("div", { id: "ident-candidates" });
+    const plotTitle = el("h3", { class: "sub-title" }, "Measured lines and the chosen candidate");
+    const plotBox = el("div");
+    const plot = NMRPlot.create(plotBox, { label: "Measured lines overlaid with the chosen candidate's predicted lines", height: 260, fileName: "pattern-finder" });
+    plot.node.id = "ident-plot";
+    const STACK_KEY = "ident.stacked";
+    const stackBox = el("input", { type: "checkbox", id: "ident-stacked" });
+    stackBox.checked = Boolean(NMR.recall(STACK_KEY));
+    stackBox.addEventListener("change", () => {
+      NMR.remember(STACK_KEY, stackBox.checked);
+      if (result) drawPlot();
+    });
+    const stackLabel = el("label", { class: "check", for: "ident-stacked" }, stackBox, el("span", {}, "Draw measured and predicted in separate rows"));
+    const openBox = el("div", { class: "actions" });
+    const openButton = el("button", { type: "button", class: "small-button", id: "ident-open-multiplet" }, "Open in multiplet builder");
+    const openNote = el("span", { class: "hint", id: "ident-open-note" }, "Loads the chosen candidate's groups there (the page reloads once).");
+    openBox.append(openButton, openNote);
+    const notes = el("ul", { class: "notes", id: "ident-notes" });
+    const warn = el("ul", { class: "warnings", id: "ident-warnings" });
+    out.append(headline, centre, warn, candidatesBox, plotTitle, plotBox, stackLabel, openBox, el("h3", { class: "sub-title" }, "Notes"), notes);
+    card.append(out);
+    container.append(el("div", { class: "cards" }, card));
+
+    // spin of each nuclide, from the API, to describe a named partner group
+    const spinOf = NMR.api({ op: "nuclides" }).then((response) => {
+      const map = new Map();
+      if (response.ok) for (const n of response.result.nuclides) map.set(n.symbol, n.spin);
+      return map;
+    });
+
+    function partnerList(text) {
+      return text.split(/[,;]/).map((p) => p.trim()).filter(Boolean);
+    }
+    function request() {
+      const req = { op: "identify", observe: fixed.observe.read().value };
+      const magnet = fixed.magnet.read();
+      if (magnet.value !== "") Object.assign(req, NMR.magnetRequest(magnet));
+      const unit = fixed.unit.read().value;
+      if (unit) req.unit = unit;
+      const partners = partnerList(fixed.partners.read().value);
+      if (partners.length) req.partners = partners;
+      const tolerance = fixed.tolerance.read().value;
+      if (tolerance !== "") req.tolerance = /[a-z]/i.test(tolerance) ? tolerance : `${tolerance} Hz`;
+      req.max_groups = Number(fixed.maxGroups.read().value);
+      if (mode === "paste") {
+        req.peaklist = peaklist.value;
+      } else {
+        req.lines = rows.map((row) => {
+          const y = row.intensity.trim();
+          const number = Number(y);
+          return { position: row.position.trim(), intensity: y !== "" && Number.isFinite(number) ? number : y };
+        });
+      }
+      return req;
+    }
+
+    function clearErrors() {
+      for (const f of Object.values(fixed)) f.setError("");
+      for (const target of [{ input: peaklist, error: peaklistError, wrap: pasteBox }, { input: null, error: linesError, wrap: null }, ...rowErrors.values()]) {
+        target.error.textContent = "";
+        if (target.input) target.input.removeAttribute("aria-invalid");
+        if (target.wrap) target.wrap.classList.remove("has-error");
+      }
+      formError.textContent = "";
+    }
+    function showError(field, message) {
+      const key = field || "";
+      const owner = Object.values(fixed).find((f) => f.ownsKey(key));
+      if (owner) return owner.setError(message);
+      let target = null;
+      if (key === "peaklist" || (key === "lines" && mode === "paste")) target = { input: peaklist, error: peaklistError, wrap: pasteBox };
+      else if (key === "lines") target = { input: null, error: linesError, wrap: null };
+      else if (key.startsWith("lines.")) {
+        const [, i] = key.split(".");
+        target = rowErrors.get(key) || rowErrors.get(`lines.${i}.position`) || { input: null, error: linesError, wrap: null };
+      }
+      if (!target) {
+        formError.textContent = message;
+        return;
+      }
+      target.error.textContent = message;
+      if (target.input) target.input.setAttribute("aria-invalid", "true");
+      if (target.wrap) target.wrap.classList.add("has-error");
+    }
+
+    function groupText(g, spins) {
+      const J = `J ${short(g.J_Hz, 5)} Hz`;
+      if (g.spin !== undefined) return `${g.count} × spin (I=${g.spin}), ${J}`;
+      if (g.J_isotope) return `${g.count} × ${g.partner} (isotope mix), ${J} to ${g.J_isotope} (I=${spins.get(g.J_isotope) ?? "?"})`;
+      return `${g.count} × ${g.partner} (I=${spins.get(g.partner) ?? "?"}), ${J}`;
+    }
+
+    let result = null;
+    let chosen = 0;
+    let pickButtons = [];
+    function drawPlot() {
+      const r = result;
+      const key = r.unit !== "Hz" && r.center_ppm !== null ? "ppm" : "Hz";
+      const cand = r.candidates[chosen];
+      plot.update({
+        traces: [
+          { label: "measured", kind: "sticks", x: r.observed.map((l) => l[key]), y: r.observed.map((l) => l.intensity), color: 0 },
+          { label: `candidate ${chosen + 1}: ${cand.label}`, kind: "sticks", dashed: true, x: cand.lines.map((l) => l[key]), y: cand.lines.map((l) => l.intensity), color: 1 },
+        ],
+        stacked: stackBox.checked,
+        stackLabels: ["measured", `candidate ${chosen + 1}`],
+      }, false);
+      plot.setXLabel(key === "ppm" ? `δ(${r.observe}) / ppm` : "position / Hz");
+    }
+    function choose(i, focus) {
+      chosen = i;
+      pickButtons.forEach((b, j) => {
+        b.setAttribute("aria-pressed", String(j === i));
+        b.closest("tr").classList.toggle("is-chosen", j === i);
+      });
+      if (focus) pickButtons[i].focus();
+      drawPlot();
+    }
+
+    async function render(r, warnings) {
+      const spins = await spinOf;
+      result = r;
+      headline.textContent = `Best fit: ${r.label}`;
+      const where = r.center_ppm === null || r.center_ppm === undefined
+        ? `Centre at ${NMR.fixed(r.center_Hz, 2)} Hz`
+        : `Centre at δ ${NMR.fixed(r.center_ppm, 4)} ppm (${NMR.fixed(r.center_Hz, 2)} Hz)`;
+      centre.textContent = `${where} · ${r.observed.length} measured lines · ${r.searched} explanations tried${r.complete ? "" : " (search stopped early)"}`;
+      warn.replaceChildren(...warnings.map((text) => el("li", {}, text)));
+      notes.replaceChildren(...r.notes.map((text) => el("li", {}, text)));
+
+      pickButtons = [];
+      const body = el("tbody");
+      r.candidates.forEach((c, i) => {
+        const pick = el("button", { type: "button", class: "pick-row", id: `ident-pick-${i}`, "aria-pressed": "false", "aria-label": `Show candidate ${i + 1}, ${c.label}, in the plot` }, c.label);
+        pick.addEventListener("click", () => choose(i, false));
+        pick.addEventListener("keydown", (event) => {
+          const step = { ArrowDown: 1, ArrowUp: -1 }[event.key];
+          if (!step) return;
+          event.preventDefault();
+          choose((i + step + r.candidates.length) % r.candidates.length, true);
+        });
+        pickButtons.push(pick);
+        const tr = el("tr", {},
+          el("td", { class: "num" }, String(i + 1)),
+          el("td", {}, pick),
+          el("td", { class: "groups" }, c.groups.map((g) => groupText(g, spins)).join("; ")),
+          el("td", { class: "num" }, short(c.score, 3)),
+          el("td", { class: "num" }, short(c.position_rms, 3)),
+          el("td", { class: "num" }, String(c.unmatched_observed)));
+        tr.addEventListener("click", (event) => {
+          if (event.target !== pick) choose(i, false);
+        });
+        body.append(tr);
+      });
+      const head = el("tr", {}, ...[["Rank", true], ["Pattern", false], ["Groups of partners", false], ["Score", true], ["rms (Hz)", true], ["Unassigned", true]]
+        .map(([text, num]) => el("th", { scope: "col", class: num ? "num" : null }, text)));
+      const table = el("table", { class: "data compact candidates" }, el("caption", {}, "Candidates, best first (lower score is better; rms: position misfit; unassigned: measured lines no predicted line explains). Tap one to draw it."), el("thead", {}, head), body);
+      candidatesBox.replaceChildren(el("h3", { class: "sub-title" }, "Candidates"), el("div", { class: "table-wrap" }, table));
+      choose(0, false);
+    }
+
+    // Hand the chosen candidate to the multiplet builder: write that panel's
+    // stored inputs (its own format), select its tab, and reload so it reads them.
+    openButton.addEventListener("click", () => {
+      if (!result) return;
+      const cand = result.candidates[chosen];
+      const groups = cand.groups.map((g) => (g.spin !== undefined
+        ? { kind: "spin", spin: g.spin, count: String(g.count), J: short(g.J_Hz, 6), J_isotope: "", quadrupolar: "" }
+        : { kind: "partner", partner: g.partner, count: String(g.count), J: short(g.J_Hz, 6), J_isotope: g.J_isotope || "", quadrupolar: "" }));
+      NMR.remember("mult.rows", { groups, abundance: [] });
+      if (result.observe) NMR.remember("mult.observe", { value: result.observe, unit: null });
+      const magnet = fixed.magnet.read();
+      if (magnet.value !== "") NMR.remember("mult.magnet", { value: magnet.value, unit: magnet.unit });
+      if (result.center_ppm !== null && result.center_ppm !== undefined) NMR.remember("mult.center", { value: short(result.center_ppm, 7), unit: null });
+      const tab = document.getElementById("tab-multiplet");
+      if (!tab) {
+        openNote.textContent = "The multiplet builder is not part of this page.";
+        return;
+      }
+      tab.click();
+      openNote.textContent = "Opening the multiplet builder…";
+      location.reload();
+    });
+
+    let sequence = 0;
+    async function run() {
+      const mine = ++sequence;
+      const busyTimer = setTimeout(() => { busy.hidden = false; }, 250);
+      const response = await NMR.api(request());
+      clearTimeout(busyTimer);
+      if (mine !== sequence) return;
+      busy.hidden = true;
+      clearErrors();
+      card.classList.toggle("is-error", !response.ok);
+      if (!response.ok) {
+        showError(response.error.field, response.error.message);
+        out.classList.add("stale");
+        return;
+      }
+      out.classList.remove("stale");
+      out.hidden = false;
+      await render(response.result, response.warnings || []);
+    }
+    cancel.addEventListener("click", () => {
+      sequence += 1;
+      busy.hidden = true;
+      NMR.cancel();
+      formError.textContent = "Cancelled. Press Find patterns to try again.";
+    });
+    formNode.addEventListener("submit", (event) => {
+      event.preventDefault();
+      run();
+    });
+    formNode.addEventListener("input", () => out.classList.add("stale"));
+
+    for (const demo of DEMOS) {
+      const button = el("button", { type: "button", class: "preset" }, demo.name);
+      button.addEventListener("click", () => {
+        fixed.observe.input.value = demo.observe;
+        fixed.magnet.input.value = demo.magnet;
+        fixed.magnet.unitSelect.value = "MHz";
+        fixed.partners.input.value = demo.partners;
+        fixed.unit.input.value = "";
+        for (const f of [fixed.observe, fixed.magnet, fixed.partners, fixed.unit]) f.save();
+        peaklist.value = demo.peaklist;
+        NMR.remember(LIST_KEY, peaklist.value);
+        modeInputs.paste.checked = true;
+        mode = "paste";
+        NMR.remember(MODE_KEY, mode);
+        showMode();
+        run();
+      });
+      demoBar.append(button);
+    }
+    drawRows();
+    showMode();
+    NMR.whenShown(card, () => {
+      if (mode === "paste" ? peaklist.value.trim() : rows.some((row) => row.position.trim())) run();
+    });
+  },
+});
