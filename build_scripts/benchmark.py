@@ -500,12 +500,18 @@ def main(argv: list[str] | None = None) -> int:
     args = parser.parse_args(argv)
     bench = Bench(args.runs)
     lines = [f"nmrcalc benchmark, {time.strftime('%Y-%m-%d %H:%M:%S %Z')}, median of {args.runs} runs", machine_line()]
+    failed = []
     try:
         for name in args.only or list(SECTIONS):
             lines.append(f"[{name}]")
-            for row in SECTIONS[name](bench):  # (label, value, unit) or a preformatted line
+            try:
+                rows = SECTIONS[name](bench)
+            except Exception as exc:  # one broken section must not hide the others' figures
+                failed.append(name)
+                rows = [f"  FAILED: {type(exc).__name__}: {exc}"]
+            for row in rows:  # (label, value, unit) or a preformatted line
                 lines.append(row if isinstance(row, str) else f"  {row[0]:<48} {row[1]:10.3f} {row[2]}")
-            print(f"benchmark: {name} done", file=sys.stderr, flush=True)
+            print(f"benchmark: {name} {'FAILED' if name in failed else 'done'}", file=sys.stderr, flush=True)
     finally:
         _STACK.close()
         bench.close()
@@ -513,7 +519,7 @@ def main(argv: list[str] | None = None) -> int:
     print(text)
     RESULTS.parent.mkdir(parents=True, exist_ok=True)
     RESULTS.write_text(text + "\n")
-    return 0
+    return 1 if failed else 0
 
 
 if __name__ == "__main__":
