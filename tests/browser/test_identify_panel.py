@@ -82,15 +82,18 @@ def test_find_pick_errors_and_hand_over(dist, open_page):
     expect(page.locator("#ident-peaklist")).to_have_attribute("aria-invalid", "true")
     expect(page.locator("#ident-partners-error")).to_be_hidden()
 
-    # typed lines: an error lands beside its cell
+    # typed lines: a row with no position is skipped, an error lands beside its own cell
     page.check("#ident-mode-table")
-    page.fill("#ident-l0-position", "2000")
-    page.fill("#ident-l0-intensity", "x")
+    page.fill("#ident-l0-position", "")
+    page.click("#ident-add-line")
+    page.fill("#ident-l1-position", "2000")
+    page.fill("#ident-l1-intensity", "x")
     _find(page)
     bad = handle({**{k: v for k, v in BASE.items() if k != "peaklist"}, "partners": ["2H"],
                   "lines": [{"position": "2000", "intensity": "x"}]})["error"]
     assert bad["field"] == "lines.0.intensity"
-    expect(page.locator("#ident-l0-intensity-error")).to_have_text(bad["message"])
+    expect(page.locator("#ident-l1-intensity-error")).to_have_text(bad["message"])
+    expect(page.locator("#ident-l0-position-error")).to_be_hidden()
 
     # back to the pasted list; the chosen candidate opens in the multiplet builder
     page.check("#ident-mode-paste")

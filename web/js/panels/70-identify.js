@@ -137,10 +137,10 @@ NMR.registerPanel({
       document.getElementById(`ident-l${rows.length - 1}-position`).focus();
     });
     const linesTable = el("table", { class: "data compact lines-input" },
-      el("caption", {}, "Measured lines (position in the unit chosen above, or with its unit, e.g. 7.26 ppm)"),
+      el("caption", {}, "Measured lines"),
       el("thead", {}, el("tr", {}, el("th", { scope: "col" }, "#"), el("th", { scope: "col" }, "Position"), el("th", { scope: "col" }, "Intensity"), el("th", { scope: "col" }, el("span", { class: "hint" }, "Row")))),
       rowsBody);
-    tableBox.append(el("div", { class: "table-wrap" }, linesTable), linesError, el("div", { class: "actions" }, addRow));
+    tableBox.append(el("p", { class: "hint" }, "Positions in the unit chosen above, or with their own unit (2412.5 Hz, 6.03 ppm). Rows with no position are skipped."), el("div", { class: "table-wrap" }, linesTable), linesError, el("div", { class: "actions" }, addRow));
 
     function showMode() {
       pasteBox.hidden = mode !== "paste";
@@ -191,6 +191,7 @@ NMR.registerPanel({
     function partnerList(text) {
       return text.split(/[,;]/).map((p) => p.trim()).filter(Boolean);
     }
+    let sentRows = [];
     function request() {
       const req = { op: "identify", observe: fixed.observe.read().value };
       const magnet = fixed.magnet.read();
@@ -205,7 +206,9 @@ NMR.registerPanel({
       if (mode === "paste") {
         req.peaklist = peaklist.value;
       } else {
-        req.lines = rows.map((row) => {
+        // rows with no position are left out; sentRows maps a request index back to its row
+        sentRows = rows.map((row, i) => (row.position.trim() ? i : -1)).filter((i) => i >= 0);
+        req.lines = sentRows.map((i) => rows[i]).map((row) => {
           const y = row.intensity.trim();
           const number = Number(y);
           return { position: row.position.trim(), intensity: y !== "" && Number.isFinite(number) ? number : y };
@@ -231,14 +234,16 @@ NMR.registerPanel({
       if (key === "peaklist" || (key === "lines" && mode === "paste")) target = { input: peaklist, error: peaklistError, wrap: pasteBox };
       else if (key === "lines") target = { input: null, error: linesError, wrap: null };
       else if (key.startsWith("lines.")) {
-        const [, i] = key.split(".");
-        target = rowErrors.get(key) || rowErrors.get(`lines.${i}.position`) || { input: null, error: linesError, wrap: null };
+        const [, k, ...rest] = key.split(".");
+        const i = sentRows[Number(k)];
+        target = rowErrors.get(`lines.${i}.${rest.join(".")}`) || rowErrors.get(`lines.${i}.position`) || { input: null, error: linesError, wrap: null };
       }
       if (!target) {
         formError.textContent = message;
         return;
       }
-      target.error.textContent = message;
+      // beside its own cell, an API message's leading "lines.N.key:" path says nothing more
+      target.error.textContent = target.input && key.startsWith("lines.") ? message.replace(/^lines\.\d+\.\w+:\s*/, "") : message;
       if (target.input) target.input.setAttribute("aria-invalid", "true");
       if (target.wrap) target.wrap.classList.add("has-error");
     }
@@ -303,7 +308,7 @@ NMR.registerPanel({
         const tr = el("tr", {},
           el("td", { class: "num" }, String(i + 1)),
           el("td", {}, pick),
-          el("td", { class: "groups" }, c.groups.map((g) => groupText(g, spins)).join("; ")),
+          el("td", { class: "groups" }, ...c.groups.map((g, k) => el("span", { class: "group" }, `${groupText(g, spins)}${k < c.groups.length - 1 ? ";" : ""}`))),
           el("td", { class: "num" }, short(c.score, 3)),
           el("td", { class: "num" }, short(c.position_rms, 3)),
           el("td", { class: "num" }, String(c.unmatched_observed)));
@@ -314,8 +319,12 @@ NMR.registerPanel({
       });
       const head = el("tr", {}, ...[["Rank", true], ["Pattern", false], ["Groups of partners", false], ["Score", true], ["rms (Hz)", true], ["Unassigned", true]]
         .map(([text, num]) => el("th", { scope: "col", class: num ? "num" : null }, text)));
-      const table = el("table", { class: "data compact candidates" }, el("caption", {}, "Candidates, best first (lower score is better; rms: position misfit; unassigned: measured lines no predicted line explains). Tap one to draw it."), el("thead", {}, head), body);
-      candidatesBox.replaceChildren(el("h3", { class: "sub-title" }, "Candidates"), el("div", { class: "table-wrap" }, table));
+      const table = el("table", { class: "data compact candidates" }, el("caption", {}, "Candidates, best first"), el("thead", {}, head), body);
+      candidatesBox.replaceChildren(
+        el("h3", { class: "sub-title" }, "Candidates"),
+        el("p", { class: "hint" }, "Lower score is better. rms: how far the measured positions sit from the predicted ones; unassigned: measured lines no predicted line explains. Tap or press a pattern (arrow keys move) to draw it."),
+        el("div", { class: "table-wrap" }, table),
+      );
       choose(0, false);
     }
 
