@@ -112,6 +112,11 @@ function call(message) {
   try {
     text = bridge(message.text);
   } catch (err) {
+    if (err && err.pyodide_fatal_error) {
+      // Python itself is gone (e.g. out of memory): let the error escape so the
+      // page sees this worker fail and starts a fresh one.
+      throw err;
+    }
     text = JSON.stringify({
       ok: false,
       error: { code: "worker_error", message: String((err && err.message) || err), field: null },
@@ -134,5 +139,9 @@ self.onmessage = (event) => {
     } else {
       bootPromise.then(() => call(message));
     }
+  } else {
+    // A message this worker does not understand is a page bug: fail loudly
+    // (the page restarts the worker) rather than leave a caller waiting.
+    throw new Error(`nmrcalc worker: unknown message type ${String(message && message.type).slice(0, 40)}`);
   }
 };

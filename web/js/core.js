@@ -8,13 +8,16 @@ const NMR = (() => {
   const STORE_KEY = "nmrcalc.inputs.v1";
   const TAB_KEY = "nmrcalc.tab.v1";
   const panels = [];
+  const forms = new Map();
   const waiting = new Map();
   let worker = null;
+  let workerReady = false;
+  let restarts = 0;
   let nextId = 1;
   let markReady;
   const ready = new Promise((resolve) => { markReady = resolve; });
   const timings = { navigationStart: 0, workerStart: null, ready: null, firstResult: null };
-  window.nmrcalcStatus = { state: "starting", error: null, timings };
+  window.nmrcalcStatus = { state: "starting", error: null, timings, restarts: 0 };
 
   // ---------- storage ----------
   function loadStore() {
@@ -105,10 +108,12 @@ const NMR = (() => {
       const [fraction, text] = STAGES[message.stage] || [0.5, message.detail];
       setBoot(fraction, text, "loading");
     } else if (message.type === "ready") {
-      timings.ready = performance.now();
+      workerReady = true;
+      if (timings.ready === null) timings.ready = performance.now();
       window.nmrcalcStatus.state = "ready";
       window.nmrcalcStatus.python = message.python;
-      setBoot(1, `Ready — Python in this browser (${(message.ms / 1000).toFixed(1)} s)`, "ready");
+      if (restarts > 0) setBoot(1, `Python stopped unexpectedly and was restarted (${restarts}×); your inputs and results are kept. Ready again.`, "ready");
+      else setBoot(1, `Ready — Python in this browser (${(message.ms / 1000).toFixed(1)} s)`, "ready");
       document.body.classList.add("is-ready");
       markReady();
     } else if (message.type === "boot-error") {
@@ -119,6 +124,7 @@ const NMR = (() => {
     } else if (message.type === "reply") {
       const resolve = waiting.get(message.id);
       waiting.delete(message.id);
+      window.nmrcalcStatus.pending = waiting.size;
       if (resolve) resolve(JSON.parse(message.text));
     }
   }
@@ -135,8 +141,32 @@ const NMR = (() => {
     return { assets, modules };
   }
 
+  /** Answer every waiting call with an error response (the calls never reached a live worker). */
+  function failWaiting(code, message) {
+    for (const [id, resolve] of waiting) {
+      waiting.delete(id);
+      resolve({ ok: false, error: { code, message, field: null, retryable: true }, warnings: [] });
+    }
+    window.nmrcalcStatus.pending = 0;
+  }
+
+  // The worker died after it was ready (an uncaught error, out of memory, a
+  // fatal Pyodide error): start a new one, keep the page as it is, and give
+  // every pending call a retryable error instead of leaving it hanging.
+  function onWorkerCrash(detail) {
+    restarts += 1;
+    window.nmrcalcStatus.restarts = restarts;
+    window.nmrcalcStatus.lastCrash = detail;
+    console.error("nmrcalc worker stopped:", detail);
+    worker.terminate();
+    failWaiting("worker_restarted", "Python stopped unexpectedly during this calculation and has been restarted. Your inputs are kept; press the button to calculate again.");
+    setBoot(0.1, "Python stopped unexpectedly; restarting it… your inputs and results are kept.", "restarting");
+    startWorker();
+  }
+
   function startWorker() {
-    timings.workerStart = performance.now();
+    if (timings.workerStart === null) timings.workerStart = performance.now();
+    workerReady = false;
     const workerNode = document.getElementById("nmrcalc-worker");
     if (workerNode) {
       // Single file on file://: opaque origin, so the worker and the Pyodide
@@ -150,9 +180,16 @@ const NMR = (() => {
       worker.addEventListener("message", onWorkerMessage);
       worker.postMessage({ type: "boot", mode: "site" });
     }
-    worker.addEventListener("error", (event) => {
-      onWorkerMessage({ data: { type: "boot-error", message: event.message || "worker failed to start" } });
-    });
+    const mine = worker;
+    const failed = (event) => {
+      if (mine !== worker) return;
+      if (event.preventDefault) event.preventDefault();
+      const detail = event.message || (event.type === "messageerror" ? "a reply could not be read" : "worker error");
+      if (workerReady) onWorkerCrash(detail);
+      else onWorkerMessage({ data: { type: "boot-error", message: detail } });
+    };
+    worker.addEventListener("error", failed);
+    worker.addEventListener("messageerror", failed);
   }
 
   /** Send one request object to nmrcalc.api.handle; resolves with its response object. */
@@ -161,6 +198,7 @@ const NMR = (() => {
       const id = nextId;
       nextId += 1;
       waiting.set(id, resolve);
+      window.nmrcalcStatus.pending = waiting.size;
       worker.postMessage({ type: "call", id, text: JSON.stringify(request) });
     }));
   }
@@ -170,10 +208,7 @@ const NMR = (() => {
   function cancel() {
     if (!worker) return;
     worker.terminate();
-    for (const [id, resolve] of waiting) {
-      waiting.delete(id);
-      resolve({ ok: false, error: { code: "cancelled", message: "Calculation cancelled.", field: null }, warnings: [] });
-    }
+    failWaiting("cancelled", "Calculation cancelled.");
     setBoot(0.1, "Restarting Python after cancel…", "loading");
     startWorker();
   }
@@ -223,7 +258,7 @@ const NMR = (() => {
     const error = el("p", { class: "field-error", id: errorId, "aria-live": "polite" });
     wrap.append(error);
     const state = {
-      field, input, unitSelect, error, wrap,
+      field, input, unitSelect, error, wrap, storeKey,
       read() {
         if (field.kind === "checkbox") return { value: input.checked };
         return { value: input.value.trim(), unit: unitSelect ? unitSelect.value : null };
@@ -283,10 +318,12 @@ const NMR = (() => {
 
     let sequence = 0;
     let timer = null;
-    async function run() {
+    let pin = null;
+    /** Compute from the inputs shown, or exactly `override` (a request from a pin or share link). */
+    async function run(override) {
       const values = {};
       for (const f of fields) values[f.field.id] = f.read();
-      const request = spec.request(values);
+      const request = override || spec.request(values);
       const mine = ++sequence;
       const response = await api(request);
       if (mine !== sequence) return;
@@ -300,11 +337,13 @@ const NMR = (() => {
         if (owner) owner.setError(message);
         else formError.textContent = message;
         out.classList.add("stale");
+        if (pin) pin.update(null);
         return;
       }
       out.classList.remove("stale");
       spec.render(response.result, out, response);
       for (const text of response.warnings || []) warn.append(el("li", {}, text));
+      if (pin) pin.update({ request, result: response.result, inputs: snapshot() });
       if (timings.firstResult === null) timings.firstResult = performance.now();
     }
     formNode.addEventListener("submit", (event) => {
@@ -319,8 +358,38 @@ const NMR = (() => {
     for (const f of spec.shared || []) f.listeners.push(schedule);
     formNode.addEventListener("input", schedule);
     formNode.addEventListener("change", schedule);
+    // Inputs as the store keeps them ("form.field" -> saved value), for pins and share links.
+    function snapshot() {
+      const inputs = {};
+      for (const f of fields) {
+        f.save();
+        inputs[f.storeKey] = recall(f.storeKey);
+      }
+      return inputs;
+    }
+    /** Put saved inputs back into the fields (unknown keys ignored); shared fields tell their other forms. */
+    function setInputs(inputs) {
+      for (const f of fields) {
+        const saved = inputs[f.storeKey];
+        if (!saved || typeof saved !== "object") continue;
+        if (f.field.kind === "checkbox") f.input.checked = Boolean(saved.value);
+        else {
+          f.input.value = String(saved.value ?? "");
+          if (f.unitSelect && typeof saved.unit === "string" && f.field.units.some((u) => u.unit === saved.unit)) f.unitSelect.value = saved.unit;
+        }
+        f.save();
+        if ((spec.shared || []).includes(f)) f.input.dispatchEvent(new Event("change"));
+      }
+      clearTimeout(timer);
+    }
+    const handle = { id: spec.id, node: section, run, fields, out, setInputs, snapshot, storeKeys: () => fields.map((f) => f.storeKey) };
+    forms.set(spec.id, handle);
+    if (NMR.pinBar) {
+      pin = NMR.pinBar({ form: spec.id, title: spec.title, node: section });
+      section.append(pin.node);
+    }
     whenShown(section, run);
-    return { node: section, run, fields, out };
+    return handle;
   }
 
   // A definition list of results: rows = [[label, text or Node, unit?]]
@@ -482,9 +551,28 @@ const NMR = (() => {
     { unit: "G", label: "G" },
   ];
 
+  /** A visible message above the panels (text only); empty text hides it. */
+  function notice(text, kind) {
+    let node = document.getElementById("page-notice");
+    if (!node) {
+      node = el("p", { id: "page-notice", class: "page-notice", role: "status", "aria-live": "polite" });
+      document.getElementById("main").prepend(node);
+    }
+    node.textContent = text || "";
+    node.dataset.kind = kind || "info";
+    node.hidden = !text;
+  }
+
+  /** The panel id a node sits in, or null. */
+  function panelOf(node) {
+    const panelNode = node && node.closest('[role="tabpanel"]');
+    return panelNode ? panelNode.id.replace(/^panel-/, "") : null;
+  }
+
   function start() {
     fillNuclideList();
     buildShell();
+    if (NMR.openShareLink) NMR.openShareLink(location.hash);
     startWorker();
     // after boot, so caching the files for offline use does not compete with the first load
     ready.then(registerServiceWorker);
@@ -493,5 +581,8 @@ const NMR = (() => {
   return {
     api, ready, el, fmt, fixed, nuclideLabel, numberNode, form, sharedField, resultList, sortableTable,
     registerPanel, whenShown, start, timings, magnetRequest, MAGNET_UNITS, remember, recall, cancel,
+    forms, selectTab: (id) => selectTab(id, false), panelIds: () => panels.map((p) => p.id), panelOf, notice,
+    // test hook: the live worker, so a browser test can send it a message it fails on
+    debugWorker: () => worker,
   };
 })();
