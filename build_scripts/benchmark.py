@@ -214,7 +214,8 @@ def machine_line() -> str:
         version = subprocess.run([chromium, "--version"], capture_output=True, text=True, timeout=30).stdout.strip()
     except (OSError, subprocess.SubprocessError):
         version = "chromium version unknown"
-    return (f"machine: {cpu}, {os.cpu_count()} cores, {mem:.1f} GiB memory; "
+    load = "load average %.2f %.2f %.2f at start" % os.getloadavg() if hasattr(os, "getloadavg") else "load unknown"
+    return (f"machine: {cpu}, {os.cpu_count()} cores, {mem:.1f} GiB memory, {load}; "
             f"CPython {platform.python_version()}; {version or 'chromium version unknown'}")
 
 
