@@ -37,7 +37,7 @@ def test_find_pick_errors_and_hand_over(dist, open_page):
     page.fill("#ident-magnet", "400")
     page.select_option("#ident-magnet-unit", "MHz")
     page.select_option("#ident-unit", "")
-    page.check("#ident-mode-paste")
+    page.click("#ident-mode-paste")
     page.fill("#ident-peaklist", PEAKLIST)
 
     # bare spins: the best candidate is three spin-1 partners
@@ -83,7 +83,7 @@ def test_find_pick_errors_and_hand_over(dist, open_page):
     expect(page.locator("#ident-partners-error")).to_be_hidden()
 
     # typed lines: a row with no position is skipped, an error lands beside its own cell
-    page.check("#ident-mode-table")
+    page.click("#ident-mode-table")
     page.fill("#ident-l0-position", "")
     page.click("#ident-add-line")
     page.fill("#ident-l1-position", "2000")
@@ -96,7 +96,7 @@ def test_find_pick_errors_and_hand_over(dist, open_page):
     expect(page.locator("#ident-l0-position-error")).to_be_hidden()
 
     # back to the pasted list; the chosen candidate opens in the multiplet builder
-    page.check("#ident-mode-paste")
+    page.click("#ident-mode-paste")
     page.fill("#ident-peaklist", PEAKLIST)
     _find(page)
     expect(page.locator("#ident-pick-0")).to_have_attribute("aria-pressed", "true")

@@ -62,18 +62,19 @@ NMR.registerPanel({
 
     // ---------- the measured lines: a pasted list or typed rows ----------
     let mode = NMR.recall(MODE_KEY) === "table" ? "table" : "paste";
-    const modeBox = el("fieldset", { class: "mode-switch", id: "ident-mode" }, el("legend", { class: "row-title" }, "Measured lines"));
-    const modeInputs = {};
+    const modeBox = el("div", { class: "mode-switch", id: "ident-mode", role: "group", "aria-labelledby": "ident-mode-title" },
+      el("span", { class: "mode-title", id: "ident-mode-title" }, "Measured lines:"));
+    const modeButtons = {};
     for (const [value, text] of [["paste", "Paste a list"], ["table", "Type lines"]]) {
-      const input = el("input", { type: "radio", name: "ident-mode", id: `ident-mode-${value}`, value });
-      input.checked = mode === value;
-      input.addEventListener("change", () => {
-        mode = value;
-        NMR.remember(MODE_KEY, mode);
-        showMode();
-      });
-      modeInputs[value] = input;
-      modeBox.append(el("label", { class: "check", for: input.id }, input, el("span", {}, text)));
+      const button = el("button", { type: "button", class: "small-button mode-button", id: `ident-mode-${value}` }, text);
+      button.addEventListener("click", () => setMode(value));
+      modeButtons[value] = button;
+      modeBox.append(button);
+    }
+    function setMode(value) {
+      mode = value;
+      NMR.remember(MODE_KEY, mode);
+      showMode();
     }
 
     const pasteBox = el("div", { class: "field", id: "ident-paste" });
@@ -145,6 +146,7 @@ NMR.registerPanel({
     function showMode() {
       pasteBox.hidden = mode !== "paste";
       tableBox.hidden = mode !== "table";
+      for (const [value, button] of Object.entries(modeButtons)) button.setAttribute("aria-pressed", String(value === mode));
     }
 
     const submit = el("button", { type: "submit", class: "primary", id: "ident-find" }, "Find patterns");
@@ -393,10 +395,7 @@ NMR.registerPanel({
         for (const f of [fixed.observe, fixed.magnet, fixed.partners, fixed.unit]) f.save();
         peaklist.value = demo.peaklist;
         NMR.remember(LIST_KEY, peaklist.value);
-        modeInputs.paste.checked = true;
-        mode = "paste";
-        NMR.remember(MODE_KEY, mode);
-        showMode();
+        setMode("paste");
         run();
       });
       demoBar.append(button);
