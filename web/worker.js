@@ -109,8 +109,16 @@ async function boot(message) {
 
 function call(message) {
   let text;
+  let last = -1;
+  // Long calculations (spin systems) report a fraction done; pass it on at most every 2 %.
+  const report = (fraction) => {
+    if (fraction - last >= 0.02 || fraction >= 1) {
+      last = fraction;
+      post({ type: "call-progress", id: message.id, fraction });
+    }
+  };
   try {
-    text = bridge(message.text);
+    text = bridge(message.text, report);
   } catch (err) {
     if (err && err.pyodide_fatal_error) {
       // Python itself is gone (e.g. out of memory): let the error escape so the

@@ -102,6 +102,9 @@ const NMR = (() => {
 
   const STAGES = { decode: [0.15, "Unpacking embedded files…"], runtime: [0.35, "Starting Python…"], package: [0.8, "Loading nmrcalc…"], import: [0.92, "Importing nmrcalc…"] };
 
+  let progressShown = false;
+  let readyText = "Ready";
+
   function onWorkerMessage(event) {
     const message = event.data;
     if (message.type === "progress") {
@@ -112,8 +115,10 @@ const NMR = (() => {
       if (timings.ready === null) timings.ready = performance.now();
       window.nmrcalcStatus.state = "ready";
       window.nmrcalcStatus.python = message.python;
-      if (restarts > 0) setBoot(1, `Python stopped unexpectedly and was restarted (${restarts}×); your inputs and results are kept. Ready again.`, "ready");
-      else setBoot(1, `Ready — Python in this browser (${(message.ms / 1000).toFixed(1)} s)`, "ready");
+      readyText = restarts > 0
+        ? `Python stopped unexpectedly and was restarted (${restarts}×); your inputs and results are kept. Ready again.`
+        : `Ready — Python in this browser (${(message.ms / 1000).toFixed(1)} s)`;
+      setBoot(1, readyText, "ready");
       document.body.classList.add("is-ready");
       markReady();
     } else if (message.type === "boot-error") {
@@ -121,7 +126,14 @@ const NMR = (() => {
       window.nmrcalcStatus.error = message.message;
       setBoot(1, "Could not start Python in this browser. Reload the page; if it persists, try another browser.", "failed");
       console.error(message.message);
+    } else if (message.type === "call-progress") {
+      progressShown = true;
+      setBoot(message.fraction, `Calculating… ${Math.round(message.fraction * 100)} % (Cancel stops it)`, "loading");
     } else if (message.type === "reply") {
+      if (progressShown && waiting.size <= 1) {
+        progressShown = false;
+        setBoot(1, readyText, "ready");
+      }
       const resolve = waiting.get(message.id);
       waiting.delete(message.id);
       window.nmrcalcStatus.pending = waiting.size;
