@@ -110,6 +110,7 @@ def test_notebook_and_crash_recovery(dist, open_page, tmp_path):
 
     _bad_share_links(page)
     _worker_crash(rec, want)
+    _panel_with_rows(rec)
     assert not rec.errors, rec.errors
     assert set(rec.requests) == {url}, sorted(set(rec.requests) - {url})
 
@@ -129,6 +130,8 @@ def _bad_share_links(page):
         "#calc=" + _b64url({"panel": "coupling", "form": "scale", "request": [1]}): "request is not an object",
         "#calc=" + _b64url({"panel": "coupling", "form": "scale", "request": {"op": "scale_coupling"}, "inputs": {"x.y": {"value": "1"}}}): "input this page does not have",
         "#calc=" + _b64url({"panel": "coupling", "form": "scale", "request": {"op": "scale_coupling"}, "inputs": {"scale.J": None}}): "not a field value",
+        "#calc=" + _b64url({"panel": "multiplet", "form": "mult", "request": {"op": "multiplet"}, "inputs": {"mult.rows": {"groups": "x"}}}): "form this page expects",
+        "#calc=" + _b64url({"panel": "multiplet", "form": "mult", "request": {"op": "multiplet"}, "inputs": {"mult.rows": {"groups": [{"kind": 1}], "abundance": []}}}): "form this page expects",
     }
     for fragment, reason in cases.items():
         page.evaluate("(h) => NMR.openShareLink(h)", fragment)
@@ -158,3 +161,25 @@ def _worker_crash(rec, want):
     page.click("#form-scale button[type=submit]")
     expect(page.locator("#scale-result")).to_contain_text(f"{want['J_Hz']:#.5g}")
     expect(page.locator("#scale-form-error")).to_be_empty()
+
+
+def _panel_with_rows(rec):
+    """A panel with its own rows (multiplet builder): pinned, edited, re-opened -> the pinned rows come back."""
+    page = rec.page
+    page.click("#tab-multiplet")
+    page.fill("#mult-g0-J", "21.7")
+    page.click("#form-mult button[type=submit]")
+    page.wait_for_function("() => window.nmrcalcStatus.pending === 0")
+    expect(page.locator("#card-mult .pin-open")).to_be_enabled()
+    _pin(page, "mult", "rows pin")
+    link_state = page.evaluate("NMRNotebook.list()[0]")
+    assert link_state["form"] == "mult" and link_state["inputs"]["mult.rows"]["groups"][0]["J"] == "21.7"
+    assert link_state["request"]["op"] == "multiplet"
+    page.fill("#mult-g0-J", "3")
+    page.click("#tab-notebook")
+    with page.expect_event("load"):  # re-opening this panel reloads the page with the pinned inputs
+        page.locator("#notebook-pins > li").first.locator(".pin-reopen").click()
+    rec.wait_ready()
+    expect(page.locator("#tab-multiplet")).to_have_attribute("aria-selected", "true")
+    expect(page.locator("#mult-g0-J")).to_have_value("21.7")
+    expect(page.locator("#mult-result")).not_to_be_empty()

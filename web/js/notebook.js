@@ -11,6 +11,10 @@ const NMRNotebook = (() => {
   const MAX_NOTE = 2000;
   const MAX_LINK = 100_000;
   const listeners = [];
+  const customSources = new Map();
+  // A pin source: a form from NMR.form (restored in place) or a panel with its own
+  // rows registered by NMR.pinSource (restored by saving its inputs and reloading).
+  const source = (id) => NMR.forms.get(id) || customSources.get(id) || null;
 
   class NotebookError extends Error {}
   const fail = (message) => { throw new NotebookError(message); };
@@ -43,22 +47,46 @@ const NMRNotebook = (() => {
     return pins.slice().sort(newestFirst);
   }
 
-  // Key results: the result's top-level numbers, words and flags, and list lengths.
-  function summarise(result) {
+  // Key results: the result's top-level numbers, words and flags (not those that
+  // only repeat a request value), and list lengths.
+  function summarise(result, request) {
     const summary = {};
     for (const [key, value] of Object.entries(result || {})) {
       if (Object.keys(summary).length >= 16) break;
+      if (request[key] === value) continue;
       if (isScalar(value)) summary[key] = value;
       else if (Array.isArray(value)) summary[`${key} (count)`] = value.length;
     }
     return summary;
   }
 
-  function checkInputs(inputs, allowedKeys) {
+  // value has the JSON shape of template: same types, the same object keys, array
+  // entries shaped like the template's first entry (or flat objects of plain values).
+  function sameShape(value, template, depth) {
+    if (depth > 6) return false;
+    if (Array.isArray(template)) {
+      if (!Array.isArray(value) || value.length > 200) return false;
+      return value.every((v) => (template.length ? sameShape(v, template[0], depth + 1) : isPlain(v) && Object.values(v).every(isScalar)));
+    }
+    if (isPlain(template)) {
+      if (!isPlain(value)) return false;
+      const keys = Object.keys(template);
+      return Object.keys(value).every((k) => keys.includes(k)) && keys.every((k) => k in value && sameShape(value[k], template[k], depth + 1));
+    }
+    return value === null || template === null ? isScalar(value) : typeof value === typeof template;
+  }
+
+  function checkInputs(inputs, allowedKeys, templates) {
     if (!isPlain(inputs)) fail("its inputs are not a list of fields");
     for (const [key, value] of Object.entries(inputs)) {
       if (allowedKeys && !allowedKeys.includes(key)) fail(`it names an input this page does not have (${key.slice(0, 60)})`);
+      if (templates && key in templates) {
+        if (!sameShape(value, templates[key], 0)) fail(`input ${key.slice(0, 60)} does not have the form this page expects`);
+        continue;
+      }
+      if (!isPlain(value) && !allowedKeys) continue;  // a stored pin may hold a panel's row list
       if (!isPlain(value)) fail(`input ${key.slice(0, 60)} is not a field value`);
+      if (value.value === undefined && !allowedKeys) continue;
       if (!["string", "boolean"].includes(typeof value.value)) fail(`input ${key.slice(0, 60)} has no value`);
       if (value.unit !== undefined && value.unit !== null && typeof value.unit !== "string") fail(`input ${key.slice(0, 60)} has a bad unit`);
     }
@@ -91,7 +119,7 @@ const NMRNotebook = (() => {
 
   /** Pin a computed state {request, result, inputs} of form `form` with a note; returns the pin. */
   function add(formId, state, note) {
-    const handle = NMR.forms.get(formId);
+    const handle = source(formId);
     const time = new Date().toISOString();
     const pin = {
       id: `${time}-${Math.random().toString(36).slice(2, 8)}`,
@@ -103,7 +131,7 @@ const NMRNotebook = (() => {
       op: String(state.request.op),
       request: state.request,
       inputs: state.inputs,
-      summary: summarise(state.result),
+      summary: summarise(state.result, state.request),
       version: version(),
     };
     checkPin(pin);
@@ -205,22 +233,34 @@ const NMRNotebook = (() => {
     }
     if (!isPlain(data)) fail("it does not describe a calculation");
     if (typeof data.panel !== "string" || !NMR.panelIds().includes(data.panel)) fail("it names a panel this page does not have");
-    const handle = typeof data.form === "string" ? NMR.forms.get(data.form) : null;
+    const handle = typeof data.form === "string" ? source(data.form) : null;
     if (!handle || NMR.panelOf(handle.node) !== data.panel) fail("it names a calculation this panel does not have");
     checkRequest(data.request);
-    checkInputs(data.inputs === undefined ? {} : data.inputs, handle.storeKeys());
+    checkInputs(data.inputs === undefined ? {} : data.inputs, handle.storeKeys(), handle.templates && handle.templates());
     return { panel: data.panel, form: data.form, request: data.request, inputs: data.inputs || {} };
   }
 
   /** Show a pin (or a share-link payload) in its panel and compute exactly its request. */
   function reopen(entry) {
-    const handle = NMR.forms.get(entry.form);
+    const handle = source(entry.form);
     if (!handle || !NMR.panelIds().includes(entry.panel)) {
       NMR.notice(`This pin's calculation (${entry.form}) is not on this page version; its request and results are shown in the notebook.`, "error");
       return false;
     }
-    checkInputs(entry.inputs, handle.storeKeys());
+    try {
+      checkInputs(entry.inputs, handle.storeKeys(), handle.templates && handle.templates());
+    } catch (err) {
+      NMR.notice(`This pin could not be re-opened: ${err.message}.`, "error");
+      return false;
+    }
     NMR.selectTab(entry.panel);
+    if (handle.reloads) {
+      // the panel builds its rows from saved inputs: save them and load the page again
+      for (const [key, value] of Object.entries(entry.inputs)) NMR.remember(key, value);
+      history.replaceState(null, "", location.href.split("#")[0]);
+      location.reload();
+      return true;
+    }
     handle.setInputs(entry.inputs);
     // after the panel's own first calculation (queued on ready earlier), so this request is the one shown
     NMR.ready.then(() => handle.run(entry.request));
@@ -238,6 +278,24 @@ const NMRNotebook = (() => {
       const reason = err instanceof NotebookError ? err.message : "it could not be read";
       NMR.notice(`This link's calculation could not be opened: ${reason}. The page works as usual.`, "error");
     }
+  };
+
+  /** Pins for a panel with its own form: {id, node, fields: [sharedField states], rows: {storeKey: () => value}}.
+   * Returns the pin bar; append its node under the result and call update({request, result}) or update(null). */
+  NMR.pinSource = ({ id, node, fields, rows }) => {
+    const snapshot = () => {
+      const inputs = {};
+      for (const f of fields) {
+        f.save();
+        inputs[f.storeKey] = NMR.recall(f.storeKey);
+      }
+      for (const [key, get] of Object.entries(rows)) inputs[key] = JSON.parse(JSON.stringify(get()));
+      return inputs;
+    };
+    const templates = () => Object.fromEntries(Object.entries(rows).map(([key, get]) => [key, get()]));
+    customSources.set(id, { id, node, reloads: true, snapshot, templates, storeKeys: () => [...fields.map((f) => f.storeKey), ...Object.keys(rows)] });
+    const bar = NMR.pinBar({ form: id });
+    return { node: bar.node, update: (state) => bar.update(state ? { ...state, inputs: snapshot() } : null) };
   };
 
   // ---------- the Pin bar under each result ----------

@@ -203,6 +203,9 @@ NMR.registerPanel({
     const linesBox = el("div", { id: "mult-lines" });
     out.append(headline, ratio, warn, plots, spectrumTitle, spectrumBox, isoBox, linesBox);
     card.append(out);
+    // bench notebook: pin / share this result (web/js/notebook.js)
+    const pin = NMR.pinSource({ id: "mult", node: card, fields: Object.values(fixed), rows: { [ROWS_KEY]: () => rows } });
+    card.append(pin.node);
     container.append(el("div", { class: "cards" }, card));
 
     function groupRequest(g) {
@@ -348,7 +351,8 @@ NMR.registerPanel({
       clearTimeout(timer);
       const mine = ++sequence;
       const busyTimer = setTimeout(() => { busy.hidden = false; }, 250);
-      const response = await NMR.api(request());
+      const sent = request();
+      const response = await NMR.api(sent);
       clearTimeout(busyTimer);
       if (mine !== sequence) return;
       busy.hidden = true;
@@ -356,11 +360,13 @@ NMR.registerPanel({
       card.classList.toggle("is-error", !response.ok);
       if (!response.ok) {
         showError(response.error.field, response.error.message);
+        pin.update(null);
         out.classList.add("stale");
         return;
       }
       out.classList.remove("stale");
       render(response.result, response.warnings || []);
+      pin.update({ request: sent, result: response.result });
     }
     function schedule() {
       clearTimeout(timer);

@@ -220,6 +220,9 @@ NMR.registerPanel({
     const stackError = el("p", { class: "form-error", id: "spins-stack-error", "aria-live": "polite" });
     out.append(warn, spectrumTitle, spectrumBox, checkBox, el("h3", { class: "sub-title" }, "Several fields on one ppm axis"), stackError, stackBox);
     card.append(out);
+    // bench notebook: pin / share this result (web/js/notebook.js)
+    const pin = NMR.pinSource({ id: "spins", node: card, fields: Object.values(fixed), rows: { [ROWS_KEY]: () => rows } });
+    card.append(pin.node);
     container.append(el("div", { class: "cards" }, card));
 
     function baseRequest() {
@@ -315,11 +318,13 @@ NMR.registerPanel({
       card.classList.toggle("is-error", !one.ok);
       if (!one.ok) {
         showError(one.error.field, one.error.message);
+        pin.update(null);
         out.classList.add("stale");
         return;
       }
       out.classList.remove("stale");
       renderSingle(one.result, one.warnings || [], overlay);
+      pin.update({ request: single, result: one.result });
       if (many.ok) {
         renderFields(many.result);
         stack.node.hidden = false;
