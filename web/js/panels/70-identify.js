@@ -184,11 +184,15 @@ NMR.registerPanel({
     container.append(el("div", { class: "cards" }, card));
 
     // spin of each nuclide, from the API, to describe a named partner group
-    const spinOf = NMR.api({ op: "nuclides" }).then((response) => {
-      const map = new Map();
-      if (response.ok) for (const n of response.result.nuclides) map.set(n.symbol, n.spin);
-      return map;
-    });
+    // (asked for again if an earlier ask was cancelled)
+    let spinMap = null;
+    async function spinOf() {
+      if (spinMap) return spinMap;
+      const response = await NMR.api({ op: "nuclides" });
+      if (!response.ok) return new Map();
+      spinMap = new Map(response.result.nuclides.map((n) => [n.symbol, n.spin]));
+      return spinMap;
+    }
 
     function partnerList(text) {
       return text.split(/[,;]/).map((p) => p.trim()).filter(Boolean);
@@ -285,7 +289,7 @@ NMR.registerPanel({
     }
 
     async function render(r, warnings) {
-      const spins = await spinOf;
+      const spins = await spinOf();
       result = r;
       headline.textContent = `Best fit: ${r.label}`;
       const where = r.center_ppm === null || r.center_ppm === undefined
@@ -312,14 +316,14 @@ NMR.registerPanel({
           el("td", {}, pick),
           el("td", { class: "groups" }, ...c.groups.map((g, k) => el("span", { class: "group" }, `${groupText(g, spins)}${k < c.groups.length - 1 ? ";" : ""}`))),
           el("td", { class: "num" }, short(c.score, 3)),
-          el("td", { class: "num" }, short(c.position_rms, 3)),
+          el("td", { class: "num" }, NMR.fixed(c.position_rms, 3)),
           el("td", { class: "num" }, String(c.unmatched_observed)));
         tr.addEventListener("click", (event) => {
           if (event.target !== pick) choose(i, false);
         });
         body.append(tr);
       });
-      const head = el("tr", {}, ...[["Rank", true], ["Pattern", false], ["Groups of partners", false], ["Score", true], ["rms (Hz)", true], ["Unassigned", true]]
+      const head = el("tr", {}, ...[["#", true], ["Pattern", false], ["Groups of partners", false], ["Score", true], ["rms (Hz)", true], ["Unassigned", true]]
         .map(([text, num]) => el("th", { scope: "col", class: num ? "num" : null }, text)));
       const table = el("table", { class: "data compact candidates" }, el("caption", {}, "Candidates, best first"), el("thead", {}, head), body);
       candidatesBox.replaceChildren(
