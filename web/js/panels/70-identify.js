@@ -175,7 +175,7 @@ NMR.registerPanel({
     const stackLabel = el("label", { class: "check", for: "ident-stacked" }, stackBox, el("span", {}, "Draw measured and predicted in separate rows"));
     const openBox = el("div", { class: "actions" });
     const openButton = el("button", { type: "button", class: "small-button", id: "ident-open-multiplet" }, "Open in multiplet builder");
-    const openNote = el("span", { class: "hint", id: "ident-open-note" }, "Loads the chosen candidate's groups there (the page reloads once).");
+    const openNote = el("span", { class: "hint", id: "ident-open-note" }, "Loads the chosen candidate's groups there, and its centre if the list is in ppm (the page reloads once).");
     openBox.append(openButton, openNote);
     const notes = el("ul", { class: "notes", id: "ident-notes" });
     const warn = el("ul", { class: "warnings", id: "ident-warnings" });
@@ -346,7 +346,8 @@ NMR.registerPanel({
       if (result.observe) NMR.remember("mult.observe", { value: result.observe, unit: null });
       const magnet = fixed.magnet.read();
       if (magnet.value !== "") NMR.remember("mult.magnet", { value: magnet.value, unit: magnet.unit });
-      if (result.center_ppm !== null && result.center_ppm !== undefined) NMR.remember("mult.center", { value: short(result.center_ppm, 7), unit: null });
+      // a list in Hz may hold offsets from anywhere: only a ppm list fixes the builder's centre
+      if (result.unit !== "Hz" && result.center_ppm !== null && result.center_ppm !== undefined) NMR.remember("mult.center", { value: short(result.center_ppm, 7), unit: null });
       const tab = document.getElementById("tab-multiplet");
       if (!tab) {
         openNote.textContent = "The multiplet builder is not part of this page.";
