@@ -36,7 +36,7 @@ NMR.registerPanel({
     function pinItem(pin) {
       const when = new Date(pin.time);
       const results = Object.entries(pin.summary).map(([k, v]) => el("div", { class: "value" },
-        el("dt", {}, k), el("dd", {}, typeof v === "number" ? NMR.fmt(v, 7) : String(v))));
+        el("dt", {}, k), el("dd", {}, typeof v === "number" && !Number.isInteger(v) ? NMR.fmt(v, 7) : String(v))));
       const inputs = Object.entries(pin.request).filter(([k]) => k !== "op").map(([k, v]) => el("div", { class: "value" },
         el("dt", {}, k), el("dd", {}, typeof v === "string" ? v : JSON.stringify(v))));
       const reopen = el("button", { type: "button", class: "small-button pin-reopen" }, "Re-open");
