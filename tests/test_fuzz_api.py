@@ -222,6 +222,32 @@ def test_every_op_with_extreme_and_ill_typed_values(op, data):
     call_op(data.draw(mutated(op)))
 
 
+# Mostly values at the edges of what the API accepts (1e-12..1e12 in the default unit; line
+# intensities 1e-100..1e100), so that combinations of accepted values are tried; a few beyond.
+NUMBERS = [0, -0.0, 1, -1, 0.5, 2, 64, 1e12, -1e12, 1e-12, -1e-12, 2e-12, 1e100, 1e-100, "1e12 ppm", "-1e12 Hz",
+           "1e-12 T", "1e12 MHz", "1e12 K", "1e-12 nm", 1e308, -1e308, 5e-324, float("nan")]
+
+
+def numeric_paths(value, prefix=()):
+    """Key paths of a template whose value is a number (not a count of nuclei or a choice)."""
+    if isinstance(value, dict):
+        return [p for k, v in value.items() for p in numeric_paths(v, prefix + (k,))]
+    if isinstance(value, list):
+        return [p for i, v in enumerate(value) for p in numeric_paths(v, prefix + (i,))]
+    is_number = isinstance(value, (int, float)) and not isinstance(value, bool)
+    return [prefix] if is_number or isinstance(value, str) and value[:1].isdigit() and " " in value else []
+
+
+@pytest.mark.parametrize("op", [op for op in sorted(TEMPLATES) if op in OPS])
+@settings(FUZZ, max_examples=80)
+@given(data=st.data())
+def test_all_numbers_extreme_at_once(op, data):
+    """Every number of the template drawn from extremes together (two lines at ±1e308, ...)."""
+    base = template(op)
+    changes = {p: data.draw(st.sampled_from(NUMBERS), label=".".join(map(str, p))) for p in numeric_paths(base)}
+    call_op(mutate(base, changes))
+
+
 @pytest.mark.parametrize("op", sorted(OPS))
 @pytest.mark.parametrize("value", SINGLE_VALUES, ids=[f"{i}-{type(v).__name__}" for i, v in enumerate(SINGLE_VALUES)])
 def test_every_field_takes_every_extreme(op, value):
@@ -402,3 +428,25 @@ def test_bad_spin_and_shape_are_not_echoed_whole(value):
     for req in ({**MULT, "spectrum": True}, {**SPINS, "spectrum": True}):
         e = _err({**req, "shape": value})
         assert e["field"] == "shape" and len(e["message"]) < 200, e["message"][:300]
+
+
+IDENT = {"op": "identify", "observe": "1H", "spectrometer": 400, "partners": ["B", "1/2"]}
+
+
+@pytest.mark.parametrize("request_, field", [
+    ({**IDENT, "lines": [[1e308, 1], [-1e308, 1], [0, 2]]}, "lines.0.position"),     # was ValueError (NaN)
+    ({**IDENT, "lines": [["1e308 ppm", 1], [0, 1]]}, "lines.0.position"),
+    ({**IDENT, "peaklist": "1e308 1\n-1e308 1\n0 2"}, "peaklist"),
+    ({**IDENT, "lines": [[1e12, 1e300], [-1e12, 1], [0, 1e-300]]}, "lines.0"),      # was ZeroDivisionError
+    ({**IDENT, "lines": [[-7, 1], [0, 1], [7, 1e-20]]}, "lines.2"),                  # below 1e-12 of the strongest
+])
+def test_identify_refuses_unusable_numbers(request_, field):
+    e = _err(request_)
+    assert (e["code"], e["field"]) == ("invalid_value", field), e
+
+
+def test_identify_accepts_edge_values():
+    for lines in ([[1e12, 1e100], [-1e12, 1e100], [0, 1e100]], [[1e-12, 1], [0, 1], [7, 1e-12]]):
+        r = handle({**IDENT, "lines": lines})
+        assert r["ok"] or r["error"]["code"] != "internal", r
+        json.dumps(r, allow_nan=False)

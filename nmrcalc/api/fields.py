@@ -46,6 +46,11 @@ def bounded(value, kind: str, field: str, positive: bool = False) -> float:
         x = (parse_positive if positive else parse_quantity)(value, kind, field)
     except OverflowError:  # an integer too large for a float
         x = float("inf")
+    return in_range(x, field)
+
+
+def in_range(x: float, field: str) -> float:
+    """``x`` if it is 0 or its magnitude lies in [MIN_MAGNITUDE, MAX_MAGNITUDE]; else InputError."""
     if x != 0 and not MIN_MAGNITUDE <= abs(x) <= MAX_MAGNITUDE:
         raise InputError(f"{field}: {x:.3g} is out of range; the size must lie between "
                          f"{MIN_MAGNITUDE:g} and {MAX_MAGNITUDE:g} in the default unit (or be 0).", field)

@@ -31,7 +31,7 @@ import math
 import re
 from fractions import Fraction
 
-from nmrcalc.api.fields import magnet, nucleus, quantity
+from nmrcalc.api.fields import bounded, in_range, magnet, nucleus, quantity
 from nmrcalc.api.peaklist import parse_peaklist
 from nmrcalc.errors import InputError
 from nmrcalc.nuclides import element_of, isotopes_of, lookup_magnetic
@@ -39,7 +39,6 @@ from nmrcalc.physics import larmor
 from nmrcalc.physics.identify import (
     MAX_COUNT, MAX_GROUPS, MAX_INPUT_LINES, PartnerOption, identify, reference_isotope, spin_option)
 from nmrcalc.physics.multiplet import parse_spin
-from nmrcalc.units import parse_quantity
 
 PPM_GUESS_MAX = 20.0
 PPM_GUESS_SPREAD = 1.0
@@ -47,6 +46,8 @@ DEFAULT_TOLERANCE_HZ = 0.5
 TOLERANCE_FRACTION = 0.25
 PLAIN_ELEMENT_SHARE = 0.99
 MAX_PARTNERS = 8
+MIN_RELATIVE_INTENSITY = 1e-12  # weaker lines than this fraction of the strongest are refused
+INTENSITY_RANGE = (1e-100, 1e100)  # any unit, but squares and sums of intensities stay finite
 _SPIN_TEXT = re.compile(r"\s*(?:spin\s*=?|i\s*=)?\s*(\d+(?:/2)?)\s*", re.IGNORECASE)
 
 
@@ -88,10 +89,10 @@ def _partner_option(text, where: str, notes: list[str]) -> PartnerOption:
 def _position(value, unit: str, where: str) -> tuple[float, str]:
     """(number, 'Hz' or 'ppm'): a string with ppm is ppm, other units are Hz-like, bare numbers take ``unit``."""
     if isinstance(value, str) and value.strip().lower().endswith("ppm"):
-        return parse_quantity(value, "shift", where), "ppm"
+        return bounded(value, "shift", where), "ppm"
     if isinstance(value, str) and re.search(r"[a-zA-Z]", value):
-        return parse_quantity(value, "coupling", where), "Hz"
-    return parse_quantity(value, "coupling", where), unit
+        return bounded(value, "coupling", where), "Hz"
+    return bounded(value, "coupling", where), unit
 
 
 def _intensity(item: dict, where: str) -> float:
@@ -147,7 +148,7 @@ def _read_peaklist(req: dict, unit_key: str | None, has_magnet: bool, notes: lis
         notes.append("The peak list states no unit: read as Hz; set 'unit' to 'ppm' if it is in ppm.")
     if not parsed.intensities_given:
         notes.append("The peak list has one column: all intensities are taken as equal.")
-    return [(p, y, unit) for _, p, y in parsed.peaks]
+    return [(in_range(p, "peaklist"), y, unit) for _, p, y in parsed.peaks]
 
 
 def _column_has(header: list[str], word: str) -> bool:
@@ -179,6 +180,13 @@ def op_identify(req, warnings):
         raise InputError("Give the measured lines either as 'lines' or as a pasted 'peaklist' (one of them).",
                          "lines", "missing_field")
     raw = _read_lines(req, unit_key or "Hz") if has_lines else _read_peaklist(req, unit_key, has_magnet, notes)
+    strongest = max(y for _, y, _ in raw)
+    for i, (_, y, _) in enumerate(raw):
+        where = f"lines.{i}" if has_lines else "peaklist"
+        if not INTENSITY_RANGE[0] <= y <= INTENSITY_RANGE[1]:
+            raise InputError(f"An intensity must lie between {INTENSITY_RANGE[0]:g} and {INTENSITY_RANGE[1]:g}.", where)
+        if y < MIN_RELATIVE_INTENSITY * strongest:
+            raise InputError(f"A line is weaker than {MIN_RELATIVE_INTENSITY:g} of the strongest one; remove it.", where)
 
     ref_MHz = None
     if has_magnet:
