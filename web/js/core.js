@@ -126,6 +126,8 @@ const NMR = (() => {
       window.nmrcalcStatus.error = message.message;
       setBoot(1, "Could not start Python in this browser. Reload the page; if it persists, try another browser.", "failed");
       console.error(message.message);
+      // calls sent to this worker (e.g. after a restart) would never be answered
+      failWaiting("python_unavailable", "Python could not start in this browser, so nothing can be calculated. Reload the page to try again.");
     } else if (message.type === "call-progress") {
       progressShown = true;
       setBoot(message.fraction, `Calculating… ${Math.round(message.fraction * 100)} % (Cancel stops it)`, "loading");
