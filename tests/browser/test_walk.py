@@ -98,6 +98,7 @@ def _contrast_in_both_themes(page):
 
 @pytest.mark.parametrize("target", ["single", "site"])
 def test_every_panel_computes_with_own_files_only(target, dist, request, open_page):
+    """The single file also carries the keyboard, phone, contrast and share-link checks (one boot fewer)."""
     url = _url(target, dist, request)
     rec = open_page(url, offline=(target == "single"))
     page = rec.page
@@ -105,6 +106,7 @@ def test_every_panel_computes_with_own_files_only(target, dist, request, open_pa
     if target == "single":
         _fits_a_phone(page)
         _contrast_in_both_themes(page)
+        _keyboard_only_and_share_link(page, url, request.getfixturevalue("browser"))
     assert not rec.errors, rec.errors
     if target == "single":
         assert set(rec.requests) == {url}, sorted(set(rec.requests) - {url})
@@ -113,10 +115,7 @@ def test_every_panel_computes_with_own_files_only(target, dist, request, open_pa
         assert not foreign, foreign
 
 
-def test_keyboard_only_and_share_link(dist, open_page, browser):
-    url = (dist / "nmrcalc.html").resolve().as_uri()
-    rec = open_page(url, offline=True)
-    page = rec.page
+def _keyboard_only_and_share_link(page, url, browser):
     # from the tab list, by keyboard: choose the coupling tab, Tab into its fields, Enter computes
     page.focus("[role=tab][aria-selected=true]")
     for _ in range(8):
@@ -168,4 +167,3 @@ def test_keyboard_only_and_share_link(dist, open_page, browser):
         assert set(requests) == {url}, requests
     finally:
         context.close()
-    assert not rec.errors, rec.errors
