@@ -181,6 +181,9 @@ NMR.registerPanel({
     const warn = el("ul", { class: "warnings", id: "ident-warnings" });
     out.append(headline, centre, warn, candidatesBox, plotTitle, plotBox, stackLabel, openBox, el("h3", { class: "sub-title" }, "Notes"), notes);
     card.append(out);
+    const pin = NMR.pinSource({ id: "ident", node: card, fields: Object.values(fixed),
+      rows: { [ROWS_KEY]: () => rows, [LIST_KEY]: () => peaklist.value, [MODE_KEY]: () => mode } });
+    card.append(pin.node);
     container.append(el("div", { class: "cards" }, card));
 
     // spin of each nuclide, from the API, to describe a named partner group
@@ -362,7 +365,8 @@ NMR.registerPanel({
     async function run() {
       const mine = ++sequence;
       const busyTimer = setTimeout(() => { busy.hidden = false; }, 250);
-      const response = await NMR.api(request());
+      const sent = request();
+      const response = await NMR.api(sent);
       clearTimeout(busyTimer);
       if (mine !== sequence) return;
       busy.hidden = true;
@@ -371,11 +375,13 @@ NMR.registerPanel({
       if (!response.ok) {
         showError(response.error.field, response.error.message);
         out.classList.add("stale");
+        pin.update(null);
         return;
       }
       out.classList.remove("stale");
       out.hidden = false;
       await render(response.result, response.warnings || []);
+      pin.update({ request: sent, result: response.result });
     }
     cancel.addEventListener("click", () => {
       sequence += 1;
