@@ -122,7 +122,8 @@ WRONG_TYPES = [None, True, False, [], {}, [1, 2], ["13C"], {"a": 1}, [None] * 3,
 # the random tests and swept over the top-level keys): an unknown name of 10**6 characters costs
 # about 0.3 s in the close-match search of the nuclide lookup.
 SINGLE_VALUES = EXTREME_NUMBERS + EXTREME_STRINGS + WRONG_TYPES + DEEP + ["x" * 10**5]
-extreme = st.sampled_from(EXTREME_NUMBERS + EXTREME_STRINGS + WRONG_TYPES + DEEP + LONG)
+EXTREMES = EXTREME_NUMBERS + EXTREME_STRINGS + WRONG_TYPES + DEEP + LONG
+extreme = st.sampled_from(range(len(EXTREMES))).map(EXTREMES.__getitem__)  # keeps the strategy's repr short
 
 json_values = st.recursive(
     st.none() | st.booleans() | st.integers() | st.floats() | st.text(max_size=30),
@@ -159,7 +160,8 @@ TEMPLATES = {
 }
 EXTRA_KEYS = sorted({k for t in TEMPLATES.values() for k in t} | {
     "op", "field", "spectrometer", "Hz", "wavenumber", "partner", "fields", "include_spin_zero",
-    "nucleus", "observe", "query", "lines", "peaklist", "unit", "partners", "tolerance", "abundance"})
+    "nucleus", "observe", "query", "lines", "peaklist", "unit", "partners", "tolerance", "abundance",
+    "factor_equivalence"})
 # Kept out of the templates because they make every call slower (isotopologue mixtures,
 # element partners); swept here and drawn by the random tests.
 SLOW_VARIANTS = [("multiplet", ("abundance",), {"2H": 99.0}), ("identify", ("partners",), ["1H", "B", "1/2"])]
@@ -188,7 +190,10 @@ def mutate(request: dict, changes: dict) -> dict:
     """A copy of ``request`` with the value at each path replaced (or deleted).  A change
     inside a path that is itself changed is dropped, so no shared test value is written into."""
     req = copy.deepcopy(request)
-    for path, value in changes.items():
+    # replacements first, then deletions from the last list index down, so indices stay valid
+    order = sorted(changes.items(), key=lambda kv: (kv[1] is DELETE, [str(k).zfill(9) for k in kv[0]]))
+    order = [kv for kv in order if kv[1] is not DELETE] + [kv for kv in order if kv[1] is DELETE][::-1]
+    for path, value in order:
         if any(path[:n] in changes for n in range(1, len(path))):
             continue
         parent = req
