@@ -6,4 +6,6 @@ import sys
 def pytest_terminal_summary(terminalreporter):
     for name, module in list(sys.modules.items()):
         if name.rsplit(".", 1)[-1] == "test_fuzz_api" and hasattr(module, "fuzz_summary"):
-            terminalreporter.write_line(module.fuzz_summary())
+            summary = module.fuzz_summary()
+            if summary:
+                terminalreporter.write_line(summary)
