@@ -160,7 +160,7 @@ def lookup(query: str, field: str = "nucleus") -> Nuclide:
         known = ", ".join(n.symbol for n in isotopes_of(el)) or "none"
         what = f"{a}{el} is not in the table" if a is not None else f"{el} ({NAME_OF_SYMBOL.get(el, el)}) is an element, not one isotope"
         raise InputError(f"{what}; isotopes of {el} known here: {known}.", field, "unknown_nucleus")
-    close = difflib.get_close_matches(query.strip(), list(ALL) + list(NAME_OF_SYMBOL.values()), n=4, cutoff=0.5)
+    close = difflib.get_close_matches(query.strip()[:40], list(ALL) + list(NAME_OF_SYMBOL.values()), n=4, cutoff=0.5)
     hint = f" Did you mean {', '.join(close)}?" if close else " Write it like 13C, C-13 or carbon-13."
     raise InputError(f"Unknown nuclide '{query.strip()[:40]}'.{hint}", field, "unknown_nucleus")
 
