@@ -592,8 +592,47 @@ const NMR = (() => {
     ready.then(registerServiceWorker);
   }
 
+  /** The calculation loop of a panel with its own form. call() sends the request(s) and resolves
+   * with the replies; show(replies) draws them. Only the latest call is shown, a busy notice
+   * appears after 250 ms, Cancel ends the worker; submit (Enter) runs at once and, with delayMs,
+   * every input change runs after that pause. Returns {run, schedule}. */
+  function calculation({ form, fields = [], call, show, delayMs = null, busy, cancelButton, formError, cancelText }) {
+    let sequence = 0;
+    let timer = null;
+    async function run() {
+      clearTimeout(timer);
+      const mine = ++sequence;
+      const busyTimer = setTimeout(() => { busy.hidden = false; }, 250);
+      const replies = await call();
+      clearTimeout(busyTimer);
+      if (mine !== sequence) return;
+      busy.hidden = true;
+      await show(replies);
+    }
+    function schedule() {
+      clearTimeout(timer);
+      timer = setTimeout(run, delayMs);
+    }
+    cancelButton.addEventListener("click", () => {
+      sequence += 1;
+      busy.hidden = true;
+      cancel();
+      formError.textContent = cancelText;
+    });
+    form.addEventListener("submit", (event) => {
+      event.preventDefault();
+      run();
+    });
+    if (delayMs !== null) {
+      form.addEventListener("input", schedule);
+      form.addEventListener("change", schedule);
+      for (const f of fields) f.listeners.push(schedule);
+    }
+    return { run, schedule };
+  }
+
   return {
-    api, ready, el, fmt, fixed, nuclideLabel, numberNode, form, sharedField, resultList, sortableTable,
+    api, ready, el, fmt, fixed, calculation, nuclideLabel, numberNode, form, sharedField, resultList, sortableTable,
     registerPanel, whenShown, start, timings, magnetRequest, MAGNET_UNITS, remember, recall, cancel,
     forms, selectTab: (id) => selectTab(id, false), panelIds: () => panels.map((p) => p.id), panelOf, notice,
     // test hook: the live worker, so a browser test can send it a message it fails on

@@ -345,46 +345,27 @@ NMR.registerPanel({
       );
     }
 
-    let sequence = 0;
-    let timer = null;
-    async function run() {
-      clearTimeout(timer);
-      const mine = ++sequence;
-      const busyTimer = setTimeout(() => { busy.hidden = false; }, 250);
-      const sent = request();
-      const response = await NMR.api(sent);
-      clearTimeout(busyTimer);
-      if (mine !== sequence) return;
-      busy.hidden = true;
-      clearErrors();
-      card.classList.toggle("is-error", !response.ok);
-      if (!response.ok) {
-        showError(response.error.field, response.error.message);
-        pin.update(null);
-        out.classList.add("stale");
-        return;
-      }
-      out.classList.remove("stale");
-      render(response.result, response.warnings || []);
-      pin.update({ request: sent, result: response.result });
-    }
-    function schedule() {
-      clearTimeout(timer);
-      timer = setTimeout(run, 450);
-    }
-    cancel.addEventListener("click", () => {
-      sequence += 1;
-      busy.hidden = true;
-      NMR.cancel();
-      formError.textContent = "Cancelled. Change an input or press Build multiplet to try again.";
+    const { run, schedule } = NMR.calculation({
+      form: formNode, fields: Object.values(fixed), delayMs: 450, busy, cancelButton: cancel, formError,
+      cancelText: "Cancelled. Change an input or press Build multiplet to try again.",
+      call: async () => {
+        const sent = request();
+        return { sent, response: await NMR.api(sent) };
+      },
+      show: ({ sent, response }) => {
+        clearErrors();
+        card.classList.toggle("is-error", !response.ok);
+        if (!response.ok) {
+          showError(response.error.field, response.error.message);
+          pin.update(null);
+          out.classList.add("stale");
+          return;
+        }
+        out.classList.remove("stale");
+        render(response.result, response.warnings || []);
+        pin.update({ request: sent, result: response.result });
+      },
     });
-    formNode.addEventListener("submit", (event) => {
-      event.preventDefault();
-      run();
-    });
-    formNode.addEventListener("input", schedule);
-    formNode.addEventListener("change", schedule);
-    for (const f of Object.values(fixed)) f.listeners.push(schedule);
 
     for (const preset of PRESETS) {
       const button = el("button", { type: "button", class: "preset" }, preset.name);

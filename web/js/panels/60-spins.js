@@ -301,56 +301,38 @@ NMR.registerPanel({
       stack.setXLabel(`δ(${r.observe}) / ppm`);
     }
 
-    let sequence = 0;
-    let timer = null;
-    async function run() {
-      clearTimeout(timer);
-      const mine = ++sequence;
-      const busyTimer = setTimeout(() => { busy.hidden = false; }, 250);
-      const overlay = fixed.overlay.read().value;
-      const single = { ...baseRequest(), ...NMR.magnetRequest(fixed.magnet.read()), first_order: true };
-      const several = { ...baseRequest(), fields: fieldList() };
-      const [one, many] = await Promise.all([NMR.api(single), NMR.api(several)]);
-      clearTimeout(busyTimer);
-      if (mine !== sequence) return;
-      busy.hidden = true;
-      clearErrors();
-      card.classList.toggle("is-error", !one.ok);
-      if (!one.ok) {
-        showError(one.error.field, one.error.message);
-        pin.update(null);
-        out.classList.add("stale");
-        return;
-      }
-      out.classList.remove("stale");
-      renderSingle(one.result, one.warnings || [], overlay);
-      pin.update({ request: single, result: one.result });
-      if (many.ok) {
-        renderFields(many.result);
-        stack.node.hidden = false;
-      } else {
-        if (many.error.field && many.error.field.startsWith("fields")) fixed.fields.setError(many.error.message);
-        else stackError.textContent = many.error.message;
-        stack.node.hidden = true;
-      }
-    }
-    function schedule() {
-      clearTimeout(timer);
-      timer = setTimeout(run, 500);
-    }
-    cancel.addEventListener("click", () => {
-      sequence += 1;
-      busy.hidden = true;
-      NMR.cancel();
-      formError.textContent = "Cancelled. Change an input or press Simulate to try again.";
+    const { run, schedule } = NMR.calculation({
+      form: formNode, fields: Object.values(fixed), delayMs: 500, busy, cancelButton: cancel, formError,
+      cancelText: "Cancelled. Change an input or press Simulate to try again.",
+      call: async () => {
+        const overlay = fixed.overlay.read().value;
+        const single = { ...baseRequest(), ...NMR.magnetRequest(fixed.magnet.read()), first_order: true };
+        const several = { ...baseRequest(), fields: fieldList() };
+        const [one, many] = await Promise.all([NMR.api(single), NMR.api(several)]);
+        return { overlay, single, one, many };
+      },
+      show: ({ overlay, single, one, many }) => {
+        clearErrors();
+        card.classList.toggle("is-error", !one.ok);
+        if (!one.ok) {
+          showError(one.error.field, one.error.message);
+          pin.update(null);
+          out.classList.add("stale");
+          return;
+        }
+        out.classList.remove("stale");
+        renderSingle(one.result, one.warnings || [], overlay);
+        pin.update({ request: single, result: one.result });
+        if (many.ok) {
+          renderFields(many.result);
+          stack.node.hidden = false;
+        } else {
+          if (many.error.field && many.error.field.startsWith("fields")) fixed.fields.setError(many.error.message);
+          else stackError.textContent = many.error.message;
+          stack.node.hidden = true;
+        }
+      },
     });
-    formNode.addEventListener("submit", (event) => {
-      event.preventDefault();
-      run();
-    });
-    formNode.addEventListener("input", schedule);
-    formNode.addEventListener("change", schedule);
-    for (const f of Object.values(fixed)) f.listeners.push(schedule);
 
     for (const preset of PRESETS) {
       const button = el("button", { type: "button", class: "preset" }, preset.name);

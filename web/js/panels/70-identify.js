@@ -361,37 +361,27 @@ NMR.registerPanel({
       location.reload();
     });
 
-    let sequence = 0;
-    async function run() {
-      const mine = ++sequence;
-      const busyTimer = setTimeout(() => { busy.hidden = false; }, 250);
-      const sent = request();
-      const response = await NMR.api(sent);
-      clearTimeout(busyTimer);
-      if (mine !== sequence) return;
-      busy.hidden = true;
-      clearErrors();
-      card.classList.toggle("is-error", !response.ok);
-      if (!response.ok) {
-        showError(response.error.field, response.error.message);
-        out.classList.add("stale");
-        pin.update(null);
-        return;
-      }
-      out.classList.remove("stale");
-      out.hidden = false;
-      await render(response.result, response.warnings || []);
-      pin.update({ request: sent, result: response.result });
-    }
-    cancel.addEventListener("click", () => {
-      sequence += 1;
-      busy.hidden = true;
-      NMR.cancel();
-      formError.textContent = "Cancelled. Press Find patterns to try again.";
-    });
-    formNode.addEventListener("submit", (event) => {
-      event.preventDefault();
-      run();
+    const { run } = NMR.calculation({
+      form: formNode, busy, cancelButton: cancel, formError,
+      cancelText: "Cancelled. Press Find patterns to try again.",
+      call: async () => {
+        const sent = request();
+        return { sent, response: await NMR.api(sent) };
+      },
+      show: async ({ sent, response }) => {
+        clearErrors();
+        card.classList.toggle("is-error", !response.ok);
+        if (!response.ok) {
+          showError(response.error.field, response.error.message);
+          out.classList.add("stale");
+          pin.update(null);
+          return;
+        }
+        out.classList.remove("stale");
+        out.hidden = false;
+        await render(response.result, response.warnings || []);
+        pin.update({ request: sent, result: response.result });
+      },
     });
     formNode.addEventListener("input", () => out.classList.add("stale"));
 
