@@ -253,6 +253,11 @@ def render_identify(response: dict) -> str:
     return "\n".join(out)
 
 
+# commands with their own request builder and text form: command → (build(args), render(response))
+SPECIAL = {"multiplet": (multiplet_request, render_multiplet), "spins": (spin_system_request, render_spin_system),
+           "identify": (identify_request, render_identify)}
+
+
 def main(argv: list[str] | None = None) -> int:
     args = build_parser().parse_args(argv)
     if args.command == "api":
@@ -262,10 +267,24 @@ def main(argv: list[str] | None = None) -> int:
         for question, request in DEMO:
             print(f"# {question}\n{render(handle(request))}\n")
         return 0
-    if args.command == "multiplet":
-        response = handle(multiplet_request(args))
-        print(json.dumps(response, indent=2, ensure_ascii=False) if args.json else render_multiplet(response))
-        return 0 if response["ok"] else 2
+    if args.command in SPECIAL:
+        build, show = SPECIAL[args.command]
+        try:
+            request = build(args)
+        except OSError as e:  # identify --peaklist FILE that cannot be read
+            print(f"error [peaklist]: cannot read {args.peaklist}: {e.strerror}")
+            return 2
+    else:
+        op, arg_spec, _ = COMMANDS[args.command]
+        request = {"op": op}
+        for _, key, _ in arg_spec:
+            value = getattr(args, key)
+            if value is not None:
+                request[key] = value
+        show = render
+    response = handle(request)
+    print(json.dumps(response, indent=2, ensure_ascii=False) if args.json else show(response))
+    return 0 if response["ok"] else 2
     if args.command == "identify":
         try:
             request = identify_request(args)
