@@ -8,7 +8,7 @@ import pytest
 
 from nmrcalc.errors import InputError
 from nmrcalc.physics.identify import (
-    Group, PartnerOption, _fast_plain, identify, predict, spin_option)
+    Group, PartnerOption, _plain_lines, identify, predict, spin_option)
 from nmrcalc.physics.multiplet import merge_lines, multiplet, normalized
 
 HALF = F(1, 2)
@@ -91,7 +91,7 @@ def test_platinum_satellites_around_singlet():
 def test_fast_convolution_matches_engine():
     # the search loop's float convolution must equal the exact engine (nmrcalc.physics.multiplet)
     groups = [Group(spin_option(F(3, 2)), 2, 9.1), Group(spin_option(HALF), 3, 2.3)]
-    fast = _fast_plain(groups, 1e-6)
+    fast = _plain_lines(groups, 1e-6)
     exact = normalized(multiplet([(g.option.spin, g.count, g.J_Hz) for g in groups]))
     assert len(fast) == len(exact)
     assert all(math.isclose(a[0], b[0], abs_tol=1e-9) and math.isclose(a[1], b[1]) for a, b in zip(fast, exact))

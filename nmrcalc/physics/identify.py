@@ -25,15 +25,21 @@ Search (bounded)
    ``W_obs - 2 tol <= W <= 2 W_obs + 2 tol`` and at most ``3 N_obs + 6`` comb
    points, keep it if every observed line lies within ``tol`` of a predicted
    position; then try every split of each ``m_k`` into ``count × 2I`` with the
-   allowed spins and counts.  Pruning: a model is scored only if its
-   complexity term alone is below the best score so far (it could not win);
+   allowed spins and counts.  The comb's merged lines and, when no comb
+   points merge, its assignment to the observed lines are computed once
+   for all those splits.  Pruning: a model is scored only if its
+   complexity term alone is below the best score so far (it could not win)
+   and, with a shared assignment, if the score parts that the assignment
+   fixes (position, unassigned observed lines) plus complexity stay below
+   the best score plus ``KEEP_SLACK`` (near competitors are kept for the notes);
    J sets with two J near a simple ratio ``p/q`` (``q <= 2``, ``p/q <= 4``: coinciding
    lines) only while no model fits better than ``COMMENSURATE_GATE`` (score
    without the complexity term); one group more only while no model fits
    better than ``LEVEL_GATE`` (a pattern explained that well by fewer groups
    is reported as the simpler explanation).
 3. Look-alikes: the best model's couplings and their doubles and triples are
-   searched ungated (models up to ``PROBE_SLACK`` worse are scored), to find
+   searched ungated (models up to ``PROBE_SLACK`` worse are scored, and only
+   combs with as many merged lines as the best model's), to find
    models with the same predicted lines, such as a dd with ``J2 = 2 J1``
    beside a spin-3/2 1:1:1:1 quartet.  They only feed the notes, never the
    ranking, so that noise cannot promote a model with coinciding lines.
@@ -90,7 +96,6 @@ from __future__ import annotations
 import itertools
 import math
 import time
-from bisect import bisect_left
 from fractions import Fraction
 from functools import lru_cache
 from typing import Iterable, NamedTuple, Sequence
@@ -120,6 +125,7 @@ MISSING_SCALE_OUTER = 0.5
 COMMENSURATE_GATE = 0.25
 LEVEL_GATE = 0.3
 PROBE_SLACK = 1.0
+KEEP_SLACK = 1.0
 POOR_FIT = 1.0
 MIN_SHARE = 1e-4
 
@@ -228,11 +234,13 @@ def _comb_positions(Js: Sequence[float], ms: Sequence[int]) -> list[float]:
 
 
 def _explains_all(xs, left: float, points: list[float], tol: float) -> bool:
-    pos = [left + p for p in points]
+    """True if every observed position (ascending) lies within ``tol`` of some ``left + point`` (ascending)."""
+    j, n = 0, len(points)
     for x in xs:
-        k = bisect_left(pos, x)
-        near = min((abs(pos[j] - x) for j in (k - 1, k) if 0 <= j < len(pos)), default=math.inf)
-        if near > tol:
+        low = x - left - tol
+        while j < n and points[j] < low:
+            j += 1
+        if j == n or points[j] > low + 2 * tol:
             return False
     return True
 
@@ -266,12 +274,21 @@ def _commensurate(Js: Sequence[float], tol: float) -> bool:
     return False
 
 
-def _splits(m: int, options: Sequence[PartnerOption], max_count: int) -> list[tuple[PartnerOption, int]]:
+class Split(NamedTuple):
+    """``count`` partners of one option making ``m = count × 2I`` steps, with their complexity and comb."""
+
+    option: PartnerOption
+    count: int
+    cost: float
+    comb: tuple[float, ...]
+
+
+def _splits(m: int, options: Sequence[PartnerOption], max_count: int) -> list[Split]:
     out = []
     for opt in options:
         twice = int(2 * opt.spin)
         if m % twice == 0 and 1 <= m // twice <= max_count:
-            out.append((opt, m // twice))
+            out.append(Split(opt, m // twice, _group_cost(opt.spin, m // twice), _comb(opt.spin, m // twice)))
     return out
 
 
@@ -291,18 +308,51 @@ def _comb(spin: Fraction, count: int) -> tuple[float, ...]:
     return tuple(c / total for c in coeffs)
 
 
-def _fast_plain(groups: Sequence[Group], tol: float) -> list[tuple[float, float]]:
+def _plain_lines(groups: Sequence[Group], tol: float) -> list[tuple[float, float]]:
     """Plain groups only: the engine's per-group coefficients, convolved in floats and merged within ``tol``.
 
     The same successive splitting as ``multiplet`` (which keeps exact integers);
-    used in the search loop because it is several times faster.
+    used in the search because it is several times faster.
     """
-    sticks = [(0.0, 1.0)]
-    for g in groups:
-        comb = _comb(g.option.spin, g.count)
-        half = (len(comb) - 1) / 2
-        sticks = [(x + (k - half) * g.J_Hz, w * c) for x, w in sticks for k, c in enumerate(comb)]
-    return merge_lines(sticks, tol)
+    layout = _layout([g.J_Hz for g in groups], [int(2 * g.option.spin) * g.count for g in groups], tol)
+    return _layout_lines(layout, [_comb(g.option.spin, g.count) for g in groups])
+
+
+def _layout(Js: Sequence[float], ms: Sequence[int], tol: float) -> list[list[tuple[float, int]]]:
+    """Comb points of step vector ``ms`` (offset from the centre, index in splitting order), merged as ``merge_lines``.
+
+    The clusters depend on positions only, so one layout serves every split
+    of ``ms`` into spins and counts; ``_layout_lines`` adds the intensities.
+    """
+    points = [(-sum(m * J for m, J in zip(ms, Js)) / 2, 0)]
+    for J, m in zip(Js, ms):
+        points = [(x + k * J, i * (m + 1) + k) for x, i in points for k in range(m + 1)]
+    points.sort(key=lambda point: point[0])
+    clusters = []
+    start = 0
+    while start < len(points):
+        end = start + 1
+        while end < len(points) and points[end][0] - points[start][0] <= tol:
+            end += 1
+        clusters.append(points[start:end])
+        start = end
+    return clusters
+
+
+def _layout_lines(layout, combs: Sequence[Sequence[float]]) -> list[tuple[float, float]]:
+    """Lines on a ``_layout`` with the groups' normalized combs: successive splitting, then cluster sums."""
+    weights = [1.0]
+    for comb in combs:
+        weights = [w * c for w in weights for c in comb]
+    lines = []
+    for cluster in layout:
+        if len(cluster) == 1:
+            x, i = cluster[0]
+            lines.append((x, weights[i]))
+        else:
+            total = sum(weights[i] for _, i in cluster)
+            lines.append((sum(x * weights[i] for x, i in cluster) / total, total))
+    return lines
 
 
 def predict(groups: Sequence[Group]) -> list[tuple[float, float]]:
@@ -315,50 +365,94 @@ def predict(groups: Sequence[Group]) -> list[tuple[float, float]]:
     return normalized(multiplet(plain))
 
 
-def _match(obs, pred, center, tol):
-    """One-to-one nearest assignment: ``{obs_index: (pred_index, Δx)}``."""
-    xs = [x for x, _ in obs]
+def _match(xs: Sequence[float], offsets: Sequence[float], center: float, tol: float) -> dict[int, tuple[int, float]]:
+    """One-to-one nearest assignment of predicted offsets (ascending) to observed positions ``xs`` (ascending).
+
+    Each predicted line goes to its nearest observed line (the lower one on a
+    tie) if within ``tol``; an observed line keeps the nearest of those
+    claiming it.  Returns ``{obs_index: (pred_index, Δx)}``.
+    """
+    n = len(xs)
     best: dict[int, tuple[int, float]] = {}
-    for j, (p, _) in enumerate(pred):
+    k = 0
+    for j, p in enumerate(offsets):
         x = center + p
-        k = bisect_left(xs, x)
-        choices = [(abs(xs[i] - x), i) for i in (k - 1, k) if 0 <= i < len(xs)]
-        d, i = min(choices)
-        if d <= tol and (i not in best or d < abs(best[i][1])):
-            best[i] = (j, xs[i] - x)
+        while k < n and xs[k] < x:
+            k += 1
+        i = k - 1 if k == n or (k > 0 and x - xs[k - 1] <= xs[k] - x) else k
+        dx = xs[i] - x
+        if -tol <= dx <= tol and (i not in best or abs(dx) < abs(best[i][1])):
+            best[i] = (j, dx)
     return best
+
+
+class Assignment(NamedTuple):
+    """Observed-to-predicted pairs ``{obs_index: (pred_index, Δx)}`` and the parts of the score they fix."""
+
+    pairs: dict[int, tuple[int, float]]
+    center: float
+    position: float  # the position term
+    lost: float  # sum of (y / d)² over unassigned observed lines
+    unmatched: int
+
+    def floor(self, n_obs: int) -> float:
+        """Lowest score any intensities can give on this assignment, before the complexity term."""
+        return self.position + W_INTENSITY * math.sqrt(self.lost / n_obs) + UNMATCHED_PENALTY * self.unmatched
+
+
+def _assign(obs, offsets: Sequence[float], center0: float, tol: float) -> Assignment:
+    """Match, move the centre by the weighted mean Δx, match again; the position-only score parts."""
+    xs = [x for x, _ in obs]
+    pairs = _match(xs, offsets, center0, tol)
+    center = center0
+    if pairs:
+        total = sum(obs[i][1] for i in pairs)
+        center += sum(obs[i][1] * dx for i, (_, dx) in pairs.items()) / total
+        pairs = _match(xs, offsets, center, tol)
+    if not pairs:
+        return Assignment(pairs, center, math.inf, 0.0, len(obs))
+    position = math.sqrt(sum(obs[i][1] * (dx / tol) ** 2 for i, (_, dx) in pairs.items())
+                         / sum(obs[i][1] for i in pairs))
+    lost = sum((y / max(y, INTENSITY_FLOOR)) ** 2 for i, (_, y) in enumerate(obs) if i not in pairs)
+    return Assignment(pairs, center, position, lost, len(obs) - len(pairs))
+
+
+def _rate(obs, tol: float, groups: Sequence[Group], pred, fit: Assignment, complexity: float) -> Candidate:
+    """Score of predicted lines ``pred`` (offsets, intensities) on an assignment (see the module docstring)."""
+    pairs, center = fit.pairs, fit.center
+    if not pairs:
+        return Candidate(tuple(groups), math.inf, math.inf, 1.0, len(obs), "", pred, center, 0.0)
+    floor = INTENSITY_FLOOR
+    num = den = 0.0
+    for i, (j, _) in pairs.items():
+        y, w = obs[i][1], pred[j][1]
+        wt = 1.0 / max(y, floor) ** 2
+        num += wt * y * w
+        den += wt * w * w
+    s = num / den
+    resid = fit.lost + sum((obs[i][1] - s * pred[j][1]) ** 2 / max(obs[i][1], floor) ** 2
+                           for i, (j, _) in pairs.items())
+    used = {j for j, _ in pairs.values()}
+    lo, hi = obs[0][0] - tol, obs[-1][0] + tol
+    resid += sum((s * w / (MISSING_SCALE if lo <= center + x <= hi else MISSING_SCALE_OUTER)) ** 2
+                 for j, (x, w) in enumerate(pred) if j not in used)
+    intensity = math.sqrt(resid / len(obs))
+    score = fit.position + W_INTENSITY * intensity + UNMATCHED_PENALTY * fit.unmatched + complexity
+    return Candidate(tuple(groups), score, fit.position, intensity, fit.unmatched, "", pred, center, s)
 
 
 def score_model(obs, tol: float, groups: Sequence[Group], center0: float) -> Candidate:
     """Score one model against observed lines (see the module docstring)."""
     if all(g.option.plain for g in groups):
-        pred = _fast_plain(groups, tol)
+        pred = _plain_lines(groups, tol)
     else:
         pred = merge_lines(predict(groups), tol)
-    center = center0
-    pairs = _match(obs, pred, center, tol)
-    if pairs:
-        total = sum(obs[i][1] for i in pairs)
-        center += sum(obs[i][1] * dx for i, (_, dx) in pairs.items()) / total
-        pairs = _match(obs, pred, center, tol)
-    if not pairs:
-        return Candidate(tuple(groups), math.inf, math.inf, 1.0, len(obs), "", pred, center, 0.0)
-    floor = INTENSITY_FLOOR
-    weights = {i: 1.0 / max(obs[i][1], floor) ** 2 for i in pairs}
-    s = (sum(weights[i] * obs[i][1] * pred[j][1] for i, (j, _) in pairs.items())
-         / sum(weights[i] * pred[j][1] ** 2 for i, (j, _) in pairs.items()))
-    used = {j for j, _ in pairs.values()}
-    resid = sum(weights[i] * (obs[i][1] - s * pred[j][1]) ** 2 for i, (j, _) in pairs.items())
-    lo, hi = obs[0][0] - tol, obs[-1][0] + tol
-    resid += sum((s * w / (MISSING_SCALE if lo <= center + x <= hi else MISSING_SCALE_OUTER)) ** 2
-                 for j, (x, w) in enumerate(pred) if j not in used)
-    resid += sum((y / max(y, floor)) ** 2 for i, (_, y) in enumerate(obs) if i not in pairs)
-    wsum = sum(obs[i][1] for i in pairs)
-    position = math.sqrt(sum(obs[i][1] * (dx / tol) ** 2 for i, (_, dx) in pairs.items()) / wsum)
-    intensity = math.sqrt(resid / len(obs))
-    unmatched = len(obs) - len(pairs)
-    score = position + W_INTENSITY * intensity + UNMATCHED_PENALTY * unmatched + _complexity(groups)
-    return Candidate(tuple(groups), score, position, intensity, unmatched, "", pred, center, s)
+    return _rate(obs, tol, groups, pred, _assign(obs, [x for x, _ in pred], center0, tol), _complexity(groups))
+
+
+def _fit(cand: Candidate) -> float:
+    """A candidate's score without its complexity term."""
+    return cand.position_rms + W_INTENSITY * cand.intensity_residual + UNMATCHED_PENALTY * cand.unmatched_observed
 
 
 def model_label(groups: Sequence[Group]) -> str:
@@ -425,27 +519,29 @@ def identify(lines: Iterable, tol_Hz: float, options: Sequence[PartnerOption] | 
     look_alikes: dict[tuple, Candidate] = {}
     store = results
 
-    def evaluate(groups: tuple[Group, ...]) -> None:
+    def evaluate(groups: tuple[Group, ...], scorer=None) -> None:
+        """Score (``scorer()``, or ``score_model``) and store a model not seen before."""
         nonlocal evaluated
         key = tuple((g.option.label, g.count, round(g.J_Hz, 6)) for g in groups)
         if key in results or key in store:
             return
         evaluated += 1
         try:
-            cand = score_model(obs, tol_Hz, groups, center0)
+            cand = scorer() if scorer else score_model(obs, tol_Hz, groups, center0)
         except InputError:  # beyond the forward engines' size limits: not a usable model
             return
         store[key] = cand
         if store is not results:
             return
         best["score"] = min(best["score"], cand.score)
-        best["fit"] = min(best["fit"], cand.score - _complexity(groups))
+        best["fit"] = min(best["fit"], _fit(cand))
 
     plain_opts = [o for o in options if o.plain]
     element_opts = [o for o in options if not o.plain]
     js = j_candidates(xs, tol_Hz)
     width = xs[-1] - xs[0]
     max_steps = 2 * max_count * int(2 * max((o.spin for o in plain_opts), default=Fraction(1, 2)))
+    split_table = {m: _splits(m, plain_opts, max_count) for m in range(1, max_steps + 1)}
     top_js = sorted(J for J, _ in js[:MAX_J_CANDIDATES])
     best = {"score": math.inf, "fit": math.inf}
 
@@ -455,8 +551,8 @@ def identify(lines: Iterable, tol_Hz: float, options: Sequence[PartnerOption] | 
     def best_fit() -> float:
         return best["fit"]
 
-    def try_set(Js: tuple[float, ...], slack: float) -> bool:
-        """Score the models on one J set; False when the budget ran out."""
+    def try_set(Js: tuple[float, ...], slack: float, n_lines: int | None = None) -> bool:
+        """Score the models on one J set (only layouts of ``n_lines`` lines, if given); False when the budget ran out."""
         for ms in _step_vectors(Js, width, tol_Hz, len(obs), max_steps):
             if not budget_left():
                 return False
@@ -464,11 +560,25 @@ def identify(lines: Iterable, tol_Hz: float, options: Sequence[PartnerOption] | 
             if not _explains_all(xs, center0 - W / 2, _comb_positions(Js, ms), tol_Hz):
                 continue
             bound = best_score() + slack
-            for choice in itertools.product(*(_splits(m, plain_opts, max_count) for m in ms)):
-                groups = tuple(Group(opt, n, J) for (opt, n), J in zip(choice, Js))
-                if _complexity(groups) < bound:
-                    evaluate(groups)
+            layout = _layout(Js, ms, tol_Hz)
+            if n_lines is not None and len(layout) != n_lines:
+                continue
+            fixed = None  # without merged lines the offsets, so the assignment, are alike for every split
+            if all(len(c) == 1 for c in layout):
+                fixed = _assign(obs, [c[0][0] for c in layout], center0, tol_Hz)
+                if fixed.floor(len(obs)) >= bound + KEEP_SLACK:
+                    continue
+            for choice in itertools.product(*(split_table[m] for m in ms)):
+                cost = sum(sp.cost for sp in choice)
+                if cost < bound and (fixed is None or fixed.floor(len(obs)) + cost < bound + KEEP_SLACK):
+                    groups = tuple(Group(sp.option, sp.count, J) for sp, J in zip(choice, Js))
+                    evaluate(groups, lambda: score_on_layout(groups, [sp.comb for sp in choice], layout, fixed, cost))
         return True
+
+    def score_on_layout(groups, combs, layout, fixed: Assignment | None, cost: float) -> Candidate:
+        """``score_model`` for plain groups on a shared ``_layout`` (and its ``fixed`` assignment, if any)."""
+        pred = _layout_lines(layout, combs)
+        return _rate(obs, tol_Hz, groups, pred, fixed or _assign(obs, [x for x, _ in pred], center0, tol_Hz), cost)
 
     for k in range(1, max_groups + 1):
         if best_fit() < LEVEL_GATE or not complete:
@@ -482,13 +592,14 @@ def identify(lines: Iterable, tol_Hz: float, options: Sequence[PartnerOption] | 
 
     if results and complete:
         # Probe for look-alikes of the best model: its couplings and their multiples, ungated.
-        leader = min(results.values(), key=lambda c: c.score)
+        leader = min(results.values(), key=lambda c: (c.score, len(c.groups)))
         store = look_alikes
         base = sorted({g.J_Hz for g in leader.groups})
         probe = sorted({J * f for J in base for f in (1, 2, 3)}, reverse=True)
         for k in range(1, max_groups + 1):
             for Js in itertools.combinations(probe, k):
-                if all(b - a > tol_Hz for a, b in zip(sorted(Js), sorted(Js)[1:])) and not try_set(Js, PROBE_SLACK):
+                distinct = all(b - a > tol_Hz for a, b in zip(sorted(Js), sorted(Js)[1:]))
+                if distinct and not try_set(Js, PROBE_SLACK, len(leader.lines)):  # a look-alike has as many lines
                     complete = False
                     break
 
@@ -518,8 +629,8 @@ def identify(lines: Iterable, tol_Hz: float, options: Sequence[PartnerOption] | 
                                 break
                             points = sorted(a + (k - m / 2) * J for a in offsets for k in range(m + 1))
                             if _explains_all(xs, center0, points, tol_Hz):
-                                for popt, pn in _splits(m, plain_opts, max_count):
-                                    evaluate((base, Group(popt, pn, J)))
+                                for sp in split_table[m]:
+                                    evaluate((base, Group(sp.option, sp.count, J)))
     if not complete:
         notes.append(f"The search stopped at its budget ({evaluated} models scored, limit {max_evals} models or "
                      f"{time_limit_s:g} s): the ranking may be incomplete; narrow the partners or the lines.")
@@ -556,7 +667,7 @@ def identify(lines: Iterable, tol_Hz: float, options: Sequence[PartnerOption] | 
     if len(kept) > 1 and kept[1].score - kept[0].score < 0.1:
         notes.append(f"The two best explanations fit almost equally well ({kept[0].label}: {kept[0].score:.3f}; "
                      f"{kept[1].label}: {kept[1].score:.3f}).")
-    if lead.score - _complexity(lead.groups) > POOR_FIT:
+    if _fit(lead) > POOR_FIT:
         notes.append(f"Even the best explanation fits poorly (score {lead.score:.2f}): the lines may not form one "
                      "first-order multiplet, or a partner is missing from the allowed list.")
     if kept[0].unmatched_observed:
