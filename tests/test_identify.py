@@ -88,6 +88,26 @@ def test_platinum_satellites_around_singlet():
     assert [(g.option.label, g.count, round(g.J_Hz)) for g in r.candidates[0].groups] == [("Pt", 1, 1200)]
 
 
+def test_shared_J_spin_half_and_spin_one_give_one_two_two_one():
+    # common practice, no source: one spin-1/2 and one spin-1 partner with equal J give (1:1) * (1:1:1) = 1:2:2:1,
+    # which no single group makes; the finder must propose the pair with one J, not a 1:3:3:1 q
+    r = best(pattern([1, 2, 2, 1], 7.0))
+    assert sorted(groups_of(r.candidates[0])) == [(HALF, 1, 7.0), (F(1), 1, 7.0)]
+    # the same pair beside a larger doublet (three groups, two of them sharing J)
+    lines = [(500 + x, y) for x, y in normalized(multiplet([(HALF, 1, 15.0), (HALF, 1, 7.0), (F(1), 1, 7.0)]))]
+    assert sorted(groups_of(best(lines).candidates[0])) == [(HALF, 1, 7.0), (HALF, 1, 15.0), (F(1), 1, 7.0)]
+
+
+def test_two_element_partners_platinum_and_boron():
+    # from memory: 195Pt 33.8 % (I = 1/2); boron isotopes as in boron_option (IUPAC); common practice, no source:
+    # the 11B/10B multiplet appears at the centre and again in each 195Pt satellite (Pt x B isotopologues)
+    pt = PartnerOption("Pt", "element", (("195Pt", HALF, F(338, 1000), 1.0), ("spin-0 Pt", F(0), F(662, 1000), 0.0)))
+    lines = [(1000 + x, y) for x, y in predict([Group(pt, 1, 600.0), Group(boron_option(), 1, 80.0)]) if y > 0.002]
+    r = best(lines, options=[pt, boron_option(), spin_option(HALF)])
+    assert sorted((g.option.label, g.count, round(g.J_Hz)) for g in r.candidates[0].groups) == [
+        ("B", 1, 80), ("Pt", 1, 600)]
+
+
 def test_fast_convolution_matches_engine():
     # the search loop's float convolution must equal the exact engine (nmrcalc.physics.multiplet)
     groups = [Group(spin_option(F(3, 2)), 2, 9.1), Group(spin_option(HALF), 3, 2.3)]

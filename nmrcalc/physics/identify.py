@@ -19,9 +19,12 @@ Search (bounded)
    within the tolerance and ranked by *support* (the number of line pairs at
    that spacing); the best ``MAX_J_CANDIDATES`` are used for plain groups,
    ``MAX_J_CANDIDATES_ELEMENT`` (each divided by every isotope's γ ratio)
-   for element groups.
+   for element groups, together with the spacings of mirror pairs (lines
+   symmetric about the centre with heights within ``MIRROR_HEIGHT``:
+   satellites, whose wide spacing has little support).
 2. Plain models, one group more at a time: for every set of distinct
-   candidate J and every step vector ``m`` with
+   candidate J (sets with the best-supported J first: the lowest sum of
+   support ranks) and every step vector ``m`` with
    ``W_obs - 2 tol <= W <= 2 W_obs + 2 tol`` and at most ``3 N_obs + 6`` comb
    points, keep it if every observed line lies within ``tol`` of a predicted
    position; then try every split of each ``m_k`` into ``count × 2I`` with the
@@ -36,7 +39,10 @@ Search (bounded)
    lines) only while no model fits better than ``COMMENSURATE_GATE`` (score
    without the complexity term); one group more only while no model fits
    better than ``LEVEL_GATE`` (a pattern explained that well by fewer groups
-   is reported as the simpler explanation).
+   is reported as the simpler explanation).  Only if no model then fits
+   better than ``LEVEL_GATE``, the levels are searched again with one J shared
+   by two groups of different spin (``m_k = n_a 2I_a + n_b 2I_b``; one
+   spin-1/2 and one spin-1 partner with equal J give 1:2:2:1).
 3. Look-alikes: the best model's couplings and their doubles and triples are
    searched ungated (models up to ``PROBE_SLACK`` worse are scored, and only
    combs with as many merged lines as the best model's), to find
@@ -46,7 +52,10 @@ Search (bounded)
 4. Element models: each element group (count 1 to ``MAX_ELEMENT_COUNT``, J
    to its reference isotope from the candidates divided by each isotope's γ
    ratio) alone, and with one plain group whose comb, added to the element
-   pattern's lines, puts a line within ``tol`` of every observed line.
+   pattern's lines, puts a line within ``tol`` of every observed line; if
+   no model then fits better than ``LEVEL_GATE``, two element groups (two
+   elements, or one element at two different J) whose combined lines pass
+   the same test.
 5. The search stops after ``max_evals`` scored models or ``time_limit_s``
    seconds, whichever comes first, and says so in ``notes`` (the candidates
    found so far are still returned).
@@ -59,7 +68,8 @@ dd with J1 = J2 reads as a t), near ties (scores within 0.1), a poor best fit
 
 Limits: ``MAX_GROUPS`` groups, counts 1 to ``MAX_COUNT`` (element positions
 1 to ``MAX_ELEMENT_COUNT``), at most ``MAX_INPUT_LINES`` lines; two plain
-groups never share one J (they would be one group).
+groups of the same spin never share one J (they would be one group), and a
+shared J is searched for one pair of groups only.
 
 Score (lower is better)
 -----------------------
@@ -110,6 +120,7 @@ MAX_ELEMENT_COUNT = 4
 MAX_INPUT_LINES = 64
 MAX_J_CANDIDATES = 10
 MAX_J_CANDIDATES_ELEMENT = 12
+MIRROR_HEIGHT = 0.25
 DEFAULT_SPINS = tuple(Fraction(k, 2) for k in range(1, 7))
 DEFAULT_MAX_EVALS = 8000
 DEFAULT_TIME_LIMIT_S = 5.0
@@ -122,7 +133,7 @@ SAME_PATTERN_REL = 0.02
 INTENSITY_FLOOR = 0.05
 MISSING_SCALE = 0.25
 MISSING_SCALE_OUTER = 0.5
-COMMENSURATE_GATE = 0.25
+COMMENSURATE_GATE = 0.15
 LEVEL_GATE = 0.3
 PROBE_SLACK = 1.0
 KEEP_SLACK = 1.0
@@ -226,6 +237,21 @@ def j_candidates(xs: Sequence[float], tol_Hz: float) -> list[tuple[float, int]]:
     return out
 
 
+def mirror_spacings(obs: Sequence[tuple[float, float]], tol_Hz: float) -> list[float]:
+    """Spacings of line pairs placed symmetrically about the pattern's centre with heights within ``MIRROR_HEIGHT``.
+
+    A satellite pair (an element's magnetic isotope beside its spin-0 isotopes)
+    is such a pair, but its wide spacing has little support among all pairwise
+    spacings; these join the element search's candidate couplings.
+    """
+    center2 = obs[0][0] + obs[-1][0]
+    out = []
+    for (x1, y1), (x2, y2) in itertools.combinations(obs, 2):
+        if x2 - x1 > tol_Hz and abs(x1 + x2 - center2) <= tol_Hz and abs(y1 - y2) <= MIRROR_HEIGHT * max(y1, y2):
+            out.append(x2 - x1)
+    return out
+
+
 def _comb_positions(Js: Sequence[float], ms: Sequence[int]) -> list[float]:
     points = [0.0]
     for J, m in zip(Js, ms):
@@ -275,20 +301,34 @@ def _commensurate(Js: Sequence[float], tol: float) -> bool:
 
 
 class Split(NamedTuple):
-    """``count`` partners of one option making ``m = count × 2I`` steps, with their complexity and comb."""
+    """Groups ``(option, count)`` sharing one J and making ``m = sum count × 2I`` steps; complexity; joint comb."""
 
-    option: PartnerOption
-    count: int
+    parts: tuple[tuple[PartnerOption, int], ...]
     cost: float
     comb: tuple[float, ...]
 
 
-def _splits(m: int, options: Sequence[PartnerOption], max_count: int) -> list[Split]:
-    out = []
-    for opt in options:
+def _splits(m: int, options: Sequence[PartnerOption], max_count: int, pairs: bool) -> list[Split]:
+    """Ways to make ``m`` steps of one J: one group, and with ``pairs`` two groups of different spin
+    (1:2:2:1 from I = 1/2 and I = 1 with one J)."""
+    def ways(opt):
         twice = int(2 * opt.spin)
-        if m % twice == 0 and 1 <= m // twice <= max_count:
-            out.append(Split(opt, m // twice, _group_cost(opt.spin, m // twice), _comb(opt.spin, m // twice)))
+        return [(n, n * twice) for n in range(1, max_count + 1) if n * twice <= m]
+
+    out = [Split(((opt, n),), _group_cost(opt.spin, n), _comb(opt.spin, n))
+           for opt in options for n, steps in ways(opt) if steps == m]
+    if not pairs:
+        return out
+    for a, b in itertools.combinations(sorted(options, key=lambda o: o.spin), 2):
+        if a.spin == b.spin:
+            continue  # same spin and J: one group
+        for na, steps_a in ways(a):
+            for nb, steps_b in ways(b):
+                if steps_a + steps_b == m:
+                    ca, cb = _comb(a.spin, na), _comb(b.spin, nb)
+                    comb = tuple(sum(ca[i] * cb[k - i] for i in range(max(0, k - len(cb) + 1), min(k, len(ca) - 1) + 1))
+                                 for k in range(m + 1))
+                    out.append(Split(((a, na), (b, nb)), _group_cost(a.spin, na) + _group_cost(b.spin, nb), comb))
     return out
 
 
@@ -541,8 +581,9 @@ def identify(lines: Iterable, tol_Hz: float, options: Sequence[PartnerOption] | 
     js = j_candidates(xs, tol_Hz)
     width = xs[-1] - xs[0]
     max_steps = 2 * max_count * int(2 * max((o.spin for o in plain_opts), default=Fraction(1, 2)))
-    split_table = {m: _splits(m, plain_opts, max_count) for m in range(1, max_steps + 1)}
-    top_js = sorted(J for J, _ in js[:MAX_J_CANDIDATES])
+    one_group = {m: _splits(m, plain_opts, max_count, pairs=False) for m in range(1, max_steps + 1)}
+    by_support = [J for J, _ in js[:MAX_J_CANDIDATES]]
+    top_js = sorted(by_support)
     best = {"score": math.inf, "fit": math.inf}
 
     def best_score() -> float:
@@ -551,8 +592,9 @@ def identify(lines: Iterable, tol_Hz: float, options: Sequence[PartnerOption] | 
     def best_fit() -> float:
         return best["fit"]
 
-    def try_set(Js: tuple[float, ...], slack: float, n_lines: int | None = None) -> bool:
-        """Score the models on one J set (only layouts of ``n_lines`` lines, if given); False when the budget ran out."""
+    def try_set(Js: tuple[float, ...], slack: float, n_lines: int | None = None, table=one_group) -> bool:
+        """Score the models on one J set with the splits in ``table`` (with ``one_group`` only, otherwise
+        only models with a shared-J pair; only layouts of ``n_lines`` lines, if given); False when out of budget."""
         for ms in _step_vectors(Js, width, tol_Hz, len(obs), max_steps):
             if not budget_left():
                 return False
@@ -568,10 +610,12 @@ def identify(lines: Iterable, tol_Hz: float, options: Sequence[PartnerOption] | 
                 fixed = _assign(obs, [c[0][0] for c in layout], center0, tol_Hz)
                 if fixed.floor(len(obs)) >= bound + KEEP_SLACK:
                     continue
-            for choice in itertools.product(*(split_table[m] for m in ms)):
+            for choice in itertools.product(*(table[m] for m in ms)):
                 cost = sum(sp.cost for sp in choice)
                 if cost < bound and (fixed is None or fixed.floor(len(obs)) + cost < bound + KEEP_SLACK):
-                    groups = tuple(Group(sp.option, sp.count, J) for sp, J in zip(choice, Js))
+                    groups = tuple(Group(opt, n, J) for sp, J in zip(choice, Js) for opt, n in sp.parts)
+                    if len(groups) > max_groups or (table is not one_group and len(groups) == len(Js)):
+                        continue
                     evaluate(groups, lambda: score_on_layout(groups, [sp.comb for sp in choice], layout, fixed, cost))
         return True
 
@@ -580,15 +624,23 @@ def identify(lines: Iterable, tol_Hz: float, options: Sequence[PartnerOption] | 
         pred = _layout_lines(layout, combs)
         return _rate(obs, tol_Hz, groups, pred, fixed or _assign(obs, [x for x, _ in pred], center0, tol_Hz), cost)
 
-    for k in range(1, max_groups + 1):
-        if best_fit() < LEVEL_GATE or not complete:
-            break
-        for Js in itertools.combinations(sorted(top_js, reverse=True), k):
-            if _commensurate(Js, tol_Hz) and best_fit() < COMMENSURATE_GATE:
-                continue
-            if not try_set(Js, 0.0):
-                complete = False
+    def search_levels(max_sets: int, table) -> bool:
+        """One J more at a time (see step 2 of the search); False when the budget ran out."""
+        for k in range(1, max_sets + 1):
+            if best_fit() < LEVEL_GATE:
                 break
+            for ranks in sorted(itertools.combinations(range(len(by_support)), k), key=sum):
+                Js = tuple(sorted((by_support[r] for r in ranks), reverse=True))
+                if _commensurate(Js, tol_Hz) and best_fit() < COMMENSURATE_GATE:
+                    continue
+                if not try_set(Js, 0.0, table=table):
+                    return False
+        return True
+
+    complete = search_levels(max_groups, one_group)
+    if complete and max_groups > 1 and best_fit() >= LEVEL_GATE:
+        shared = {m: _splits(m, plain_opts, max_count, pairs=True) for m in range(1, max_steps + 1)}
+        complete = search_levels(max_groups - 1, shared)  # shared-J pairs, when nothing simpler fits
 
     if results and complete:
         # Probe for look-alikes of the best model: its couplings and their multiples, ungated.
@@ -605,16 +657,17 @@ def identify(lines: Iterable, tol_Hz: float, options: Sequence[PartnerOption] | 
 
         store = results
 
-    if element_opts and complete:
-        element_js = [J for J, _ in js[:MAX_J_CANDIDATES_ELEMENT]]
+    def element_search() -> bool:
+        """Step 4: element groups alone, with one plain group, and (when nothing fits yet) two of them."""
+        element_js = [J for J, _ in js[:MAX_J_CANDIDATES_ELEMENT]] + mirror_spacings(obs, tol_Hz)
         max_points = 3 * len(obs) + 6
+        bases: list[tuple[Group, list[float]]] = []
         for opt in element_opts:
             refs = sorted({round(J / iso[3], 9) for J in element_js for iso in opt.isotopes if iso[3] > 0})
             for n in range(1, min(max_count, MAX_ELEMENT_COUNT) + 1):
                 for J_ref in refs:
                     if not budget_left():
-                        complete = False
-                        break
+                        return False
                     base = Group(opt, n, J_ref)
                     evaluate((base,))
                     if max_groups < 2:
@@ -623,14 +676,30 @@ def identify(lines: Iterable, tol_Hz: float, options: Sequence[PartnerOption] | 
                         offsets = [x for x, _ in merge_lines(predict((base,)), tol_Hz)]
                     except InputError:
                         continue
+                    bases.append((base, offsets))
                     for J in top_js:
                         for m in range(1, max_steps + 1):
                             if len(offsets) * (m + 1) > max_points or not budget_left():
                                 break
                             points = sorted(a + (k - m / 2) * J for a in offsets for k in range(m + 1))
                             if _explains_all(xs, center0, points, tol_Hz):
-                                for sp in split_table[m]:
-                                    evaluate((base, Group(sp.option, sp.count, J)))
+                                for sp in one_group[m]:
+                                    evaluate((base,) + tuple(Group(o, c, J) for o, c in sp.parts))
+        if best_fit() < LEVEL_GATE:
+            return True
+        for (g1, off1), (g2, off2) in itertools.combinations(bases, 2):
+            if g1.option == g2.option and abs(g1.J_Hz - g2.J_Hz) <= tol_Hz:
+                continue  # one element with one J is one group
+            if len(off1) * len(off2) > max_points:
+                continue
+            if not budget_left():
+                return False
+            if _explains_all(xs, center0, sorted(a + b for a in off1 for b in off2), tol_Hz):
+                evaluate((g1, g2))
+        return True
+
+    if element_opts and complete:
+        complete = element_search()
     if not complete:
         notes.append(f"The search stopped at its budget ({evaluated} models scored, limit {max_evals} models or "
                      f"{time_limit_s:g} s): the ranking may be incomplete; narrow the partners or the lines.")
