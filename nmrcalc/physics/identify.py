@@ -581,6 +581,7 @@ def identify(lines: Iterable, tol_Hz: float, options: Sequence[PartnerOption] | 
     js = j_candidates(xs, tol_Hz)
     width = xs[-1] - xs[0]
     max_steps = 2 * max_count * int(2 * max((o.spin for o in plain_opts), default=Fraction(1, 2)))
+    max_steps = min(max_steps, 3 * len(obs) + 5)  # a comb of more steps has more points than any search keeps
     one_group = {m: _splits(m, plain_opts, max_count, pairs=False) for m in range(1, max_steps + 1)}
     by_support = [J for J, _ in js[:MAX_J_CANDIDATES]]
     top_js = sorted(by_support)

@@ -280,6 +280,16 @@ const NMR = (() => {
       save() {
         remember(storeKey, field.kind === "checkbox" ? { value: input.checked } : { value: input.value, unit: unitSelect ? unitSelect.value : null });
       },
+      /** Put a saved value ({value, unit}) back and store it; anything else is ignored. */
+      load(saved) {
+        if (!saved || typeof saved !== "object") return;
+        if (field.kind === "checkbox") input.checked = Boolean(saved.value);
+        else {
+          input.value = String(saved.value ?? "");
+          if (unitSelect && typeof saved.unit === "string" && field.units.some((u) => u.unit === saved.unit)) unitSelect.value = saved.unit;
+        }
+        state.save();
+      },
       setError(message) {
         error.textContent = message || "";
         wrap.classList.toggle("has-error", Boolean(message));
@@ -384,14 +394,8 @@ const NMR = (() => {
     /** Put saved inputs back into the fields (unknown keys ignored); shared fields tell their other forms. */
     function setInputs(inputs) {
       for (const f of fields) {
-        const saved = inputs[f.storeKey];
-        if (!saved || typeof saved !== "object") continue;
-        if (f.field.kind === "checkbox") f.input.checked = Boolean(saved.value);
-        else {
-          f.input.value = String(saved.value ?? "");
-          if (f.unitSelect && typeof saved.unit === "string" && f.field.units.some((u) => u.unit === saved.unit)) f.unitSelect.value = saved.unit;
-        }
-        f.save();
+        if (!(f.storeKey in inputs)) continue;
+        f.load(inputs[f.storeKey]);
         if ((spec.shared || []).includes(f)) f.input.dispatchEvent(new Event("change"));
       }
       clearTimeout(timer);

@@ -12,8 +12,8 @@ const NMRNotebook = (() => {
   const MAX_LINK = 100_000;
   const listeners = [];
   const customSources = new Map();
-  // A pin source: a form from NMR.form (restored in place) or a panel with its own
-  // rows registered by NMR.pinSource (restored by saving its inputs and reloading).
+  // A pin source: a form from NMR.form or a panel with its own rows registered by
+  // NMR.pinSource; both are restored in place (setInputs, then run).
   const source = (id) => NMR.forms.get(id) || customSources.get(id) || null;
 
   class NotebookError extends Error {}
@@ -253,20 +253,26 @@ const NMRNotebook = (() => {
       NMR.notice(`This pin could not be re-opened: ${err.message}.`, "error");
       return false;
     }
-    NMR.selectTab(entry.panel);
-    if (handle.reloads) {
-      // the panel builds its rows from saved inputs: save them and load the page again
-      for (const [key, value] of Object.entries(entry.inputs)) NMR.remember(key, value);
-      history.replaceState(null, "", location.href.split("#")[0]);
-      location.reload();
-      return true;
-    }
-    handle.setInputs(entry.inputs);
-    // after the panel's own first calculation (queued on ready earlier), so this request is the one shown
-    NMR.ready.then(() => handle.run(entry.request));
-    handle.node.scrollIntoView({ block: "start" });
+    show(entry.panel, handle, entry.inputs, entry.request);
     return true;
   }
+
+  function show(panel, handle, inputs, request) {
+    NMR.selectTab(panel);
+    handle.setInputs(inputs);
+    // after the panel's own first calculation (queued on ready earlier), so this request is the one shown
+    NMR.ready.then(() => handle.run(request));
+    handle.node.scrollIntoView({ block: "start" });
+  }
+
+  /** Hand inputs (store key → saved value, the panel's own format) to another panel's form and compute there.
+   * False if that panel or form is not on this page. */
+  NMR.openInputs = (panel, form, inputs) => {
+    const handle = source(form);
+    if (!handle || !NMR.panelIds().includes(panel)) return false;
+    show(panel, handle, inputs);
+    return true;
+  };
 
   NMR.openShareLink = (hash) => {
     if (!hash || !hash.startsWith("#calc=")) return;
@@ -280,20 +286,25 @@ const NMRNotebook = (() => {
     }
   };
 
-  /** Pins for a panel with its own form: {id, node, fields: [sharedField states], rows: {storeKey: () => value}}.
+  /** Pins for a panel with its own form: {id, node, fields: [sharedField states],
+   * rows: {storeKey: {get: () => value, set(value)}}, run: () => compute again}.
    * Returns the pin bar; append its node under the result and call update({request, result}) or update(null). */
-  NMR.pinSource = ({ id, node, fields, rows }) => {
+  NMR.pinSource = ({ id, node, fields, rows, run }) => {
     const snapshot = () => {
       const inputs = {};
       for (const f of fields) {
         f.save();
         inputs[f.storeKey] = NMR.recall(f.storeKey);
       }
-      for (const [key, get] of Object.entries(rows)) inputs[key] = JSON.parse(JSON.stringify(get()));
+      for (const [key, row] of Object.entries(rows)) inputs[key] = JSON.parse(JSON.stringify(row.get()));
       return inputs;
     };
-    const templates = () => Object.fromEntries(Object.entries(rows).map(([key, get]) => [key, get()]));
-    customSources.set(id, { id, node, reloads: true, snapshot, templates, storeKeys: () => [...fields.map((f) => f.storeKey), ...Object.keys(rows)] });
+    const templates = () => Object.fromEntries(Object.entries(rows).map(([key, row]) => [key, row.get()]));
+    const setInputs = (inputs) => {
+      for (const f of fields) if (f.storeKey in inputs) f.load(inputs[f.storeKey]);
+      for (const [key, row] of Object.entries(rows)) if (key in inputs) row.set(JSON.parse(JSON.stringify(inputs[key])));
+    };
+    customSources.set(id, { id, node, snapshot, templates, setInputs, run: () => run(), storeKeys: () => [...fields.map((f) => f.storeKey), ...Object.keys(rows)] });
     const bar = NMR.pinBar({ form: id });
     return { node: bar.node, update: (state) => bar.update(state ? { ...state, inputs: snapshot() } : null) };
   };

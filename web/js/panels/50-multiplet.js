@@ -204,7 +204,10 @@ NMR.registerPanel({
     out.append(headline, ratio, warn, plots, spectrumTitle, spectrumBox, isoBox, linesBox);
     card.append(out);
     // bench notebook: pin / share this result (web/js/notebook.js)
-    const pin = NMR.pinSource({ id: "mult", node: card, fields: Object.values(fixed), rows: { [ROWS_KEY]: () => rows } });
+    const pin = NMR.pinSource({
+      id: "mult", node: card, fields: Object.values(fixed), run: () => run(),
+      rows: { [ROWS_KEY]: { get: () => rows, set: (value) => { rows = value; save(); drawRows(); } } },
+    });
     card.append(pin.node);
     container.append(el("div", { class: "cards" }, card));
 

@@ -221,7 +221,10 @@ NMR.registerPanel({
     out.append(warn, spectrumTitle, spectrumBox, checkBox, el("h3", { class: "sub-title" }, "Several fields on one ppm axis"), stackError, stackBox);
     card.append(out);
     // bench notebook: pin / share this result (web/js/notebook.js)
-    const pin = NMR.pinSource({ id: "spins", node: card, fields: Object.values(fixed), rows: { [ROWS_KEY]: () => rows } });
+    const pin = NMR.pinSource({
+      id: "spins", node: card, fields: Object.values(fixed), run: () => run(),
+      rows: { [ROWS_KEY]: { get: () => rows, set: (value) => { rows = value; save(); drawRows(); } } },
+    });
     card.append(pin.node);
     container.append(el("div", { class: "cards" }, card));
 

@@ -175,14 +175,20 @@ NMR.registerPanel({
     const stackLabel = el("label", { class: "check", for: "ident-stacked" }, stackBox, el("span", {}, "Draw measured and predicted in separate rows"));
     const openBox = el("div", { class: "actions" });
     const openButton = el("button", { type: "button", class: "small-button", id: "ident-open-multiplet" }, "Open in multiplet builder");
-    const openNote = el("span", { class: "hint", id: "ident-open-note" }, "Loads the chosen candidate's groups there, and its centre if the list is in ppm (the page reloads once).");
+    const openNote = el("span", { class: "hint", id: "ident-open-note" }, "Loads the chosen candidate's groups there, and its centre if the list is in ppm.");
     openBox.append(openButton, openNote);
     const notes = el("ul", { class: "notes", id: "ident-notes" });
     const warn = el("ul", { class: "warnings", id: "ident-warnings" });
     out.append(headline, centre, warn, candidatesBox, plotTitle, plotBox, stackLabel, openBox, el("h3", { class: "sub-title" }, "Notes"), notes);
     card.append(out);
-    const pin = NMR.pinSource({ id: "ident", node: card, fields: Object.values(fixed),
-      rows: { [ROWS_KEY]: () => rows, [LIST_KEY]: () => peaklist.value, [MODE_KEY]: () => mode } });
+    const pin = NMR.pinSource({
+      id: "ident", node: card, fields: Object.values(fixed), run: () => run(),
+      rows: {
+        [ROWS_KEY]: { get: () => rows, set: (value) => { rows = value.length ? value : [{ position: "", intensity: "1" }]; saveRows(); drawRows(); } },
+        [LIST_KEY]: { get: () => peaklist.value, set: (value) => { peaklist.value = String(value); NMR.remember(LIST_KEY, peaklist.value); } },
+        [MODE_KEY]: { get: () => mode, set: (value) => setMode(value === "table" ? "table" : "paste") },
+      },
+    });
     card.append(pin.node);
     container.append(el("div", { class: "cards" }, card));
 
@@ -337,28 +343,21 @@ NMR.registerPanel({
       choose(0, false);
     }
 
-    // Hand the chosen candidate to the multiplet builder: write that panel's
-    // stored inputs (its own format), select its tab, and reload so it reads them.
+    // Hand the chosen candidate to the multiplet builder in that panel's own
+    // input format; it shows them and computes.
     openButton.addEventListener("click", () => {
       if (!result) return;
       const cand = result.candidates[chosen];
       const groups = cand.groups.map((g) => (g.spin !== undefined
         ? { kind: "spin", spin: g.spin, count: String(g.count), J: short(g.J_Hz, 6), J_isotope: "", quadrupolar: "" }
         : { kind: "partner", partner: g.partner, count: String(g.count), J: short(g.J_Hz, 6), J_isotope: g.J_isotope || "", quadrupolar: "" }));
-      NMR.remember("mult.rows", { groups, abundance: [] });
-      if (result.observe) NMR.remember("mult.observe", { value: result.observe, unit: null });
+      const inputs = { "mult.rows": { groups, abundance: [] } };
+      if (result.observe) inputs["mult.observe"] = { value: result.observe, unit: null };
       const magnet = fixed.magnet.read();
-      if (magnet.value !== "") NMR.remember("mult.magnet", { value: magnet.value, unit: magnet.unit });
+      if (magnet.value !== "") inputs["mult.magnet"] = { value: magnet.value, unit: magnet.unit };
       // a list in Hz may hold offsets from anywhere: only a ppm list fixes the builder's centre
-      if (result.unit !== "Hz" && result.center_ppm !== null && result.center_ppm !== undefined) NMR.remember("mult.center", { value: short(result.center_ppm, 7), unit: null });
-      const tab = document.getElementById("tab-multiplet");
-      if (!tab) {
-        openNote.textContent = "The multiplet builder is not part of this page.";
-        return;
-      }
-      tab.click();
-      openNote.textContent = "Opening the multiplet builder…";
-      location.reload();
+      if (result.unit !== "Hz" && result.center_ppm !== null && result.center_ppm !== undefined) inputs["mult.center"] = { value: short(result.center_ppm, 7), unit: null };
+      if (!NMR.openInputs("multiplet", "mult", inputs)) openNote.textContent = "The multiplet builder is not part of this page.";
     });
 
     const { run } = NMR.calculation({
