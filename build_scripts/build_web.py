@@ -22,7 +22,9 @@ import io
 import json
 import shutil
 import struct
+import subprocess
 import sys
+import tempfile
 import zipfile
 import zlib
 from pathlib import Path
@@ -32,6 +34,7 @@ WEB = ROOT / "web"
 PYODIDE_DIR = ROOT / "node_modules" / "pyodide"
 CORE_FILES = ["pyodide.mjs", "pyodide.asm.mjs", "pyodide.asm.wasm", "python_stdlib.zip", "pyodide-lock.json"]
 ZIP_DATE = (2020, 1, 1, 0, 0, 0)
+APP_DIR = "/home/pyodide/nmrcalc_app"  # where web/worker.js unpacks nmrcalc.zip
 
 # Content-Security-Policy, set by <meta> (a static host or file:// gives no headers).
 # Site: only the site's own files; 'wasm-unsafe-eval' is needed to compile Pyodide's wasm.
@@ -57,6 +60,25 @@ def page_scripts() -> list[Path]:
 
 
 def package_zip(package_dir: Path) -> bytes:
+    """Every .py file of the package (as ``nmrcalc/...``) plus the worker bridge module, with bytecode."""
+    return with_bytecode(source_zip(package_dir))
+
+
+def with_bytecode(zip_bytes: bytes) -> bytes:
+    """The zip plus ``__pycache__`` bytecode from Pyodide's own Python (build_scripts/bytecode.mjs, in Node)."""
+    if f'"{APP_DIR}"' not in (WEB / "worker.js").read_text():
+        raise SystemExit(f"web/worker.js no longer unpacks the package to {APP_DIR}: update APP_DIR here")
+    with tempfile.TemporaryDirectory() as tmp:
+        source, compiled = Path(tmp) / "source.zip", Path(tmp) / "compiled.zip"
+        source.write_bytes(zip_bytes)
+        run = subprocess.run(["node", str(ROOT / "build_scripts" / "bytecode.mjs"), str(source), str(compiled), APP_DIR],
+                             capture_output=True, text=True)
+        if run.returncode != 0:
+            raise SystemExit(f"bytecode compilation in Pyodide failed:\n{run.stderr[-2000:]}")
+        return compiled.read_bytes()
+
+
+def source_zip(package_dir: Path) -> bytes:
     """Zip every .py file of the package (as ``nmrcalc/...``) plus the worker bridge module."""
     buffer = io.BytesIO()
     files = sorted(p for p in package_dir.rglob("*.py") if "__pycache__" not in p.parts)
@@ -159,6 +181,7 @@ def build_site(out: Path, package_bytes: bytes, version: str) -> None:
         shutil.copyfile(PYODIDE_DIR / name, out / name)
     (out / "nmrcalc.zip").write_bytes(package_bytes)
     shutil.copyfile(WEB / "worker.js", out / "worker.js")
+    shutil.copyfile(WEB / "boot.js", out / "boot.js")
     shutil.copyfile(WEB / "css" / "app.css", out / "app.css")
     scripts = page_scripts()
     (out / "js").mkdir()
@@ -173,6 +196,7 @@ def build_site(out: Path, package_bytes: bytes, version: str) -> None:
         '<link rel="icon" href="icons/icon-192.png" type="image/png">',
         '<link rel="apple-touch-icon" href="icons/icon-192.png">',
         '<link rel="stylesheet" href="app.css">',
+        '<script src="boot.js"></script>',  # starts the worker before the page is parsed
     ])
     body = "\n".join(f'<script defer src="js/{p.name}"></script>' for p in scripts)
     (out / "index.html").write_text(fill((WEB / "index.html").read_text(), head, body, SITE_CSP, version))
@@ -191,18 +215,21 @@ def data_block(name: str, payload: bytes, kind: str, gzip_it: bool) -> str:
 def build_single(out_file: Path, package_bytes: bytes, version: str) -> None:
     css = (WEB / "css" / "app.css").read_text()
     script = "\n".join(p.read_text() for p in page_scripts())
+    # in the order the worker needs them; each is posted to it as soon as it is parsed
+    files = [("pyodide-lock.json", "asset", True), ("pyodide.mjs", "module", False), ("pyodide.asm.mjs", "module", False),
+             ("pyodide.asm.wasm", "asset", True), ("python_stdlib.zip", "asset", True), ("nmrcalc.zip", "asset", False)]
+    payload = {name: (PYODIDE_DIR / name).read_bytes() for name, _, _ in files if name != "nmrcalc.zip"}
+    payload["nmrcalc.zip"] = package_bytes
+    boot, send = (WEB / "boot.js").read_text(), "NMRBoot.sendPrevious()"
     blocks = [
-        '<script type="application/octet-stream" id="nmrcalc-worker">'
+        f'<script type="application/octet-stream" id="nmrcalc-worker" data-assets="{" ".join(n for n, _, _ in files)}">'
         + base64.b64encode((WEB / "worker.js").read_bytes()).decode() + "</script>",
-        data_block("pyodide.mjs", (PYODIDE_DIR / "pyodide.mjs").read_bytes(), "module", False),
-        data_block("pyodide.asm.mjs", (PYODIDE_DIR / "pyodide.asm.mjs").read_bytes(), "module", False),
-        data_block("pyodide.asm.wasm", (PYODIDE_DIR / "pyodide.asm.wasm").read_bytes(), "asset", True),
-        data_block("python_stdlib.zip", (PYODIDE_DIR / "python_stdlib.zip").read_bytes(), "asset", True),
-        data_block("pyodide-lock.json", (PYODIDE_DIR / "pyodide-lock.json").read_bytes(), "asset", True),
-        data_block("nmrcalc.zip", package_bytes, "asset", False),
+        f"<script>{boot}</script>",
+        *(data_block(name, payload[name], kind, gz) + f"<script>{send}</script>" for name, kind, gz in files),
     ]
+    hashes = " ".join(sha256_source(text) for text in (boot, send, script))
     csp = (
-        f"default-src 'none'; script-src {sha256_source(script)} data: 'wasm-unsafe-eval'; worker-src data:; "
+        f"default-src 'none'; script-src {hashes} data: 'wasm-unsafe-eval'; worker-src data:; "
         f"style-src {sha256_source(css)}; img-src data:; connect-src 'none'; object-src 'none'; "
         "base-uri 'none'; form-action 'none'"
     )

@@ -73,3 +73,14 @@ def test_never_raises_on_requests(request):
 def test_never_raises_on_any_json(value):
     r = handle(value)
     assert r["ok"] is False or isinstance(r["result"], dict)
+
+
+def test_op_table_names_each_modules_ops():
+    # the lazily imported op table must list exactly the ops each module defines
+    import importlib
+
+    from nmrcalc.api import OP_MODULES
+    modules = sorted(set(OP_MODULES.values()))
+    defined = {op: m for m in modules for op in importlib.import_module(f"nmrcalc.api.{m}").OPS}
+    assert defined == OP_MODULES
+    assert all(callable(OPS[op]) for op in OPS)

@@ -5,9 +5,11 @@
 //   "site":   the worker was loaded from a web server; Pyodide and the package
 //             zip are fetched from the same folder.
 //   "inline": the worker was created from a data: URL by the single-file page
-//             (file://, opaque origin). The two JS modules arrive as data: URLs,
-//             every other asset arrives as base64 text (gzip-compressed where
-//             marked) and is served to Pyodide from memory by a fetch shim.
+//             (file://, opaque origin). The boot message names the embedded
+//             files; each then arrives in its own "asset" message as base64 text
+//             (gzip-compressed where marked), as soon as the page has parsed it.
+//             The two JS modules are imported as data: URLs; the other files are
+//             served to Pyodide from memory by a fetch shim that waits for them.
 // No Python source is ever built here: requests are passed as a string argument.
 
 const APP_DIR = "/home/pyodide/nmrcalc_app";
@@ -32,14 +34,15 @@ function base64ToBytes(text) {
   return bytes;
 }
 
-async function gunzip(bytes) {
-  const stream = new Blob([bytes]).stream().pipeThrough(new DecompressionStream("gzip"));
-  return new Uint8Array(await new Response(stream).arrayBuffer());
+// The file's bytes as a stream (gzip undone on the way), so Pyodide can compile
+// the wasm while it is still being unpacked.
+function assetBody(asset) {
+  const raw = base64ToBytes(asset.data);
+  return asset.gzip ? new Blob([raw]).stream().pipeThrough(new DecompressionStream("gzip")) : raw;
 }
 
-async function decodeAsset(asset) {
-  const raw = base64ToBytes(asset.data);
-  return asset.gzip ? gunzip(raw) : raw;
+async function assetBytes(asset) {
+  return new Uint8Array(await new Response(assetBody(asset)).arrayBuffer());
 }
 
 const MIME = {
@@ -53,47 +56,59 @@ function mimeFor(name) {
   return MIME[name.slice(dot)] || "application/octet-stream";
 }
 
-// Serve the named assets from memory; refuse everything else, so the
-// single-file page can never reach the network from here.
-function installMemoryFetch(files) {
+// Embedded files by name: a promise of each "asset" message, whenever it comes.
+const arrivals = new Map();
+function arrival(name) {
+  if (!arrivals.has(name)) {
+    let resolve;
+    const promise = new Promise((done) => { resolve = done; });
+    arrivals.set(name, { promise, resolve });
+  }
+  return arrivals.get(name);
+}
+
+// Serve the named files from memory (waiting for any still on its way); refuse
+// everything else, so the single-file page can never reach the network from here.
+function installMemoryFetch(names) {
   self.fetch = async (input) => {
     const url = input instanceof Request ? input.url : String(input);
     const name = url.slice(url.lastIndexOf("/") + 1).split("?")[0];
-    const bytes = files.get(name);
-    if (!bytes) throw new TypeError(`offline page: no embedded asset named ${name}`);
-    return new Response(bytes, { status: 200, headers: { "Content-Type": mimeFor(name) } });
+    if (!names.has(name)) throw new TypeError(`offline page: no embedded asset named ${name}`);
+    const body = assetBody(await arrival(name).promise);
+    return new Response(body, { status: 200, headers: { "Content-Type": mimeFor(name) } });
   };
 }
 
 async function bootInline(message) {
   progress("decode", "Unpacking embedded files");
-  const files = new Map();
-  for (const [name, asset] of Object.entries(message.assets)) {
-    files.set(name, await decodeAsset(asset));
-  }
-  installMemoryFetch(files);
+  installMemoryFetch(new Set(message.names));
+  const bytesOf = async (name) => assetBytes(await arrival(name).promise);
+  const moduleOf = (name) => arrival(name).promise.then((asset) => import(`data:text/javascript;base64,${asset.data}`));
+  const lock = bytesOf("pyodide-lock.json");
+  const [{ loadPyodide }, asm] = await Promise.all([moduleOf("pyodide.mjs"), moduleOf("pyodide.asm.mjs")]);
+  const lockFileContents = new TextDecoder().decode(await lock);
   progress("runtime", "Starting the Python runtime");
-  const { loadPyodide } = await import(message.modules["pyodide.mjs"]);
-  const asm = await import(message.modules["pyodide.asm.mjs"]);
-  const createPyodideModule = asm.default || asm.createPyodideModule;
   const pyodide = await loadPyodide({
     indexURL: message.indexURL,
     packageBaseUrl: message.indexURL,
-    lockFileContents: new TextDecoder().decode(files.get("pyodide-lock.json")),
-    createPyodideModule,
+    lockFileContents,
+    createPyodideModule: asm.default || asm.createPyodideModule,
   });
-  return { pyodide, packageZip: files.get("nmrcalc.zip") };
+  return { pyodide, packageZip: await bytesOf("nmrcalc.zip") };
 }
 
 async function bootSite() {
   const base = new URL("./", self.location.href).href;
   progress("runtime", "Starting the Python runtime");
+  // the package is fetched while the runtime starts
+  const packageZip = fetch(new URL("nmrcalc.zip", base).href).then(async (response) => {
+    if (!response.ok) throw new Error(`nmrcalc.zip: HTTP ${response.status}`);
+    return new Uint8Array(await response.arrayBuffer());
+  });
+  packageZip.catch(() => {});  // reported when awaited below
   const { loadPyodide } = await import(new URL("pyodide.mjs", base).href);
   const pyodide = await loadPyodide({ indexURL: base });
-  progress("package", "Loading the nmrcalc package");
-  const response = await fetch(new URL("nmrcalc.zip", base).href);
-  if (!response.ok) throw new Error(`nmrcalc.zip: HTTP ${response.status}`);
-  return { pyodide, packageZip: new Uint8Array(await response.arrayBuffer()) };
+  return { pyodide, packageZip: await packageZip };
 }
 
 async function boot(message) {
@@ -141,6 +156,8 @@ self.onmessage = (event) => {
         post({ type: "boot-error", message: String((err && err.stack) || err) });
       });
     }
+  } else if (message.type === "asset") {
+    arrival(message.name).resolve(message);
   } else if (message.type === "call") {
     if (bridge) {
       call(message);

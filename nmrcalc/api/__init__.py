@@ -9,17 +9,40 @@ names the request key (dotted for nested keys) that caused the error.
 
 from __future__ import annotations
 
+import importlib
 import json
+from collections.abc import Mapping
 
-from nmrcalc.api.core_ops import OPS as CORE_OPS
 from nmrcalc.api.fields import PROGRESS
-from nmrcalc.api.identify_ops import OPS as IDENTIFY_OPS
-from nmrcalc.api.multiplet_ops import OPS as MULTIPLET_OPS
-from nmrcalc.api.spin_system_ops import OPS as SPIN_SYSTEM_OPS
 from nmrcalc.errors import InputError
 
-OPS = {**CORE_OPS, **MULTIPLET_OPS, **SPIN_SYSTEM_OPS, **IDENTIFY_OPS}
+# Each op and the module of this package that defines it (in that module's OPS).
+# A module is imported when one of its ops is first asked for, so a front end's
+# first result does not wait for the spin-system and pattern-finder code.
+OP_MODULES = {
+    **dict.fromkeys(["nuclide", "nuclides", "frequency", "ppm_hz", "scale_coupling", "energy", "sensitivity"],
+                    "core_ops"),
+    "multiplet": "multiplet_ops",
+    "spin_system": "spin_system_ops",
+    "identify": "identify_ops",
+}
 MAX_REQUEST_CHARS = 1_000_000
+
+
+class _Ops(Mapping):
+    """``OPS[name]``: the function ``(request, warnings) -> result`` of an op, imported on first use."""
+
+    def __getitem__(self, name: str):
+        return importlib.import_module(f"nmrcalc.api.{OP_MODULES[name]}").OPS[name]
+
+    def __iter__(self):
+        return iter(OP_MODULES)
+
+    def __len__(self) -> int:
+        return len(OP_MODULES)
+
+
+OPS = _Ops()
 
 
 def _error(code: str, message: str, field: str | None = None) -> dict:

@@ -143,18 +143,6 @@ const NMR = (() => {
     }
   }
 
-  function inlineAssets() {
-    const assets = {};
-    const modules = {};
-    for (const node of document.querySelectorAll("script.nmrcalc-asset")) {
-      const name = node.dataset.name;
-      const data = node.textContent.trim();
-      if (node.dataset.kind === "module") modules[name] = `data:text/javascript;base64,${data}`;
-      else assets[name] = { data, gzip: node.dataset.gzip === "1" };
-    }
-    return { assets, modules };
-  }
-
   /** Answer every waiting call with an error response (the calls never reached a live worker). */
   function failWaiting(code, message) {
     for (const [id, resolve] of waiting) {
@@ -178,32 +166,29 @@ const NMR = (() => {
     startWorker();
   }
 
+  // The worker was started by boot.js (NMRBoot) before this script ran; it is
+  // adopted on the first start and replaced by a fresh one on every later start.
   function startWorker() {
-    if (timings.workerStart === null) timings.workerStart = performance.now();
     workerReady = false;
-    const workerNode = document.getElementById("nmrcalc-worker");
-    if (workerNode) {
-      // Single file on file://: opaque origin, so the worker and the Pyodide
-      // modules come from data: URLs and the rest is passed by message.
-      const { assets, modules } = inlineAssets();
-      worker = new Worker(`data:text/javascript;base64,${workerNode.textContent.trim()}`, { type: "module" });
-      worker.addEventListener("message", onWorkerMessage);
-      worker.postMessage({ type: "boot", mode: "inline", indexURL: "https://nmrcalc.invalid/", assets, modules });
-    } else {
-      worker = new Worker("worker.js", { type: "module" });
-      worker.addEventListener("message", onWorkerMessage);
-      worker.postMessage({ type: "boot", mode: "site" });
-    }
-    const mine = worker;
-    const failed = (event) => {
-      if (mine !== worker) return;
+    const listen = (event, from) => {
+      if (from !== worker) return;  // a worker already replaced
+      if (event.type === "message") {
+        onWorkerMessage(event);
+        return;
+      }
       if (event.preventDefault) event.preventDefault();
       const detail = event.message || (event.type === "messageerror" ? "a reply could not be read" : "worker error");
       if (workerReady) onWorkerCrash(detail);
       else onWorkerMessage({ data: { type: "boot-error", message: detail } });
     };
-    worker.addEventListener("error", failed);
-    worker.addEventListener("messageerror", failed);
+    const first = timings.workerStart === null;
+    if (first) {
+      worker = NMRBoot.worker();
+      timings.workerStart = NMRBoot.startedAt();
+      NMRBoot.adopt(listen);  // also hands over what the worker said so far
+    } else {
+      worker = NMRBoot.restart(listen);
+    }
   }
 
   /** Send one request object to nmrcalc.api.handle; resolves with its response object. */
@@ -588,10 +573,10 @@ const NMR = (() => {
   }
 
   function start() {
+    startWorker();  // first: Python boots while the panels are built
     fillNuclideList();
     buildShell();
     if (NMR.openShareLink) NMR.openShareLink(location.hash);
-    startWorker();
     // after boot, so caching the files for offline use does not compete with the first load
     ready.then(registerServiceWorker);
   }
