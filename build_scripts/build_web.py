@@ -216,7 +216,7 @@ def build_single(out_file: Path, package_bytes: bytes, version: str) -> None:
     css = (WEB / "css" / "app.css").read_text()
     script = "\n".join(p.read_text() for p in page_scripts())
     # in the order the worker needs them; each is posted to it as soon as it is parsed
-    files = [("pyodide-lock.json", "asset", True), ("pyodide.mjs", "module", False), ("pyodide.asm.mjs", "module", False),
+    files = [("pyodide-lock.json", "asset", True), ("pyodide.mjs", "module", False), ("pyodide.asm.mjs", "module", True),
              ("pyodide.asm.wasm", "asset", True), ("python_stdlib.zip", "asset", True), ("nmrcalc.zip", "asset", False)]
     payload = {name: (PYODIDE_DIR / name).read_bytes() for name, _, _ in files if name != "nmrcalc.zip"}
     payload["nmrcalc.zip"] = package_bytes

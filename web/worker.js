@@ -45,6 +45,19 @@ async function assetBytes(asset) {
   return new Uint8Array(await new Response(assetBody(asset)).arrayBuffer());
 }
 
+function bytesToBase64(bytes) {
+  if (typeof bytes.toBase64 === "function") return bytes.toBase64();
+  let binary = "";
+  for (let i = 0; i < bytes.length; i += 0x8000) binary += String.fromCharCode(...bytes.subarray(i, i + 0x8000));
+  return btoa(binary);
+}
+
+// A JS module file as a data: URL (re-encoded when it came gzip-compressed).
+async function moduleUrl(asset) {
+  const base64 = asset.gzip ? bytesToBase64(await assetBytes(asset)) : asset.data;
+  return `data:text/javascript;base64,${base64}`;
+}
+
 const MIME = {
   ".wasm": "application/wasm",
   ".zip": "application/zip",
@@ -83,7 +96,7 @@ async function bootInline(message) {
   progress("decode", "Unpacking embedded files");
   installMemoryFetch(new Set(message.names));
   const bytesOf = async (name) => assetBytes(await arrival(name).promise);
-  const moduleOf = (name) => arrival(name).promise.then((asset) => import(`data:text/javascript;base64,${asset.data}`));
+  const moduleOf = async (name) => import(await moduleUrl(await arrival(name).promise));
   const lock = bytesOf("pyodide-lock.json");
   const [{ loadPyodide }, asm] = await Promise.all([moduleOf("pyodide.mjs"), moduleOf("pyodide.asm.mjs")]);
   const lockFileContents = new TextDecoder().decode(await lock);

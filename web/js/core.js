@@ -535,10 +535,11 @@ const NMR = (() => {
   function fillNuclideList() {
     const list = el("datalist", { id: "nuclide-list" });
     document.body.append(list);
-    api({ op: "nuclides" }).then((response) => {
+    // after the calculations queued for the shown panel: the first result does not wait for the list
+    ready.then(() => setTimeout(() => api({ op: "nuclides" }).then((response) => {
       if (!response.ok) return;
       list.replaceChildren(...response.result.nuclides.map((n) => el("option", { value: n.symbol }, `${n.element_name || n.element} · I = ${n.spin}`)));
-    });
+    }), 0));
   }
 
   /** Request keys for a magnet field with units MHz (1H frequency) or T / kG / G. */
