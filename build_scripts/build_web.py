@@ -37,7 +37,8 @@ ZIP_DATE = (2020, 1, 1, 0, 0, 0)
 APP_DIR = "/home/pyodide/nmrcalc_app"  # where web/worker.js unpacks nmrcalc.zip
 
 # Content-Security-Policy, set by <meta> (a static host or file:// gives no headers).
-# Site: only the site's own files; 'wasm-unsafe-eval' is needed to compile Pyodide's wasm.
+# Site: only the site's own files, plus the inline worker starter (web/boot.js) by its sha256 hash;
+# 'wasm-unsafe-eval' is needed to compile Pyodide's wasm.
 # Single file: inline style and script allowed by sha256 hash only; the worker and the two
 # Pyodide JS modules must be data: URLs (a file:// page has an opaque origin, so blob: module
 # workers do not start), hence script-src/worker-src data:; the worker fetches nothing
@@ -181,9 +182,9 @@ def build_site(out: Path, package_bytes: bytes, version: str) -> None:
         shutil.copyfile(PYODIDE_DIR / name, out / name)
     (out / "nmrcalc.zip").write_bytes(package_bytes)
     shutil.copyfile(WEB / "worker.js", out / "worker.js")
-    shutil.copyfile(WEB / "boot.js", out / "boot.js")
     shutil.copyfile(WEB / "css" / "app.css", out / "app.css")
     scripts = page_scripts()
+    boot = (WEB / "boot.js").read_text()
     (out / "js").mkdir()
     for path in scripts:
         target = out / "js" / path.name
@@ -192,14 +193,16 @@ def build_site(out: Path, package_bytes: bytes, version: str) -> None:
     (out / "icons" / "icon-512.png").write_bytes(png(512))
     (out / "manifest.webmanifest").write_text(manifest())
     head = "\n".join([
+        # first, and inline: a script after a stylesheet or behind a fetch would wait; this one starts the worker
+        f"<script>{boot}</script>",
         '<link rel="manifest" href="manifest.webmanifest">',
         '<link rel="icon" href="icons/icon-192.png" type="image/png">',
         '<link rel="apple-touch-icon" href="icons/icon-192.png">',
         '<link rel="stylesheet" href="app.css">',
-        '<script src="boot.js"></script>',  # starts the worker before the page is parsed
     ])
     body = "\n".join(f'<script defer src="js/{p.name}"></script>' for p in scripts)
-    (out / "index.html").write_text(fill((WEB / "index.html").read_text(), head, body, SITE_CSP, version))
+    csp = SITE_CSP.replace("script-src 'self'", f"script-src 'self' {sha256_source(boot)}")
+    (out / "index.html").write_text(fill((WEB / "index.html").read_text(), head, body, csp, version))
     files = sorted(p.relative_to(out).as_posix() for p in out.rglob("*") if p.is_file())
     content = hashlib.sha256(b"".join((out / f).read_bytes() for f in files)).hexdigest()[:12]
     (out / "sw.js").write_text(service_worker(files, content))

@@ -578,8 +578,8 @@ const NMR = (() => {
     fillNuclideList();
     buildShell();
     if (NMR.openShareLink) NMR.openShareLink(location.hash);
-    // after boot, so caching the files for offline use does not compete with the first load
-    ready.then(registerServiceWorker);
+    // caching the files for offline use waits until the first calculations are done
+    ready.then(() => setTimeout(registerServiceWorker, 2000));
   }
 
   /** The calculation loop of a panel with its own form. call() sends the request(s) and resolves
