@@ -8,10 +8,9 @@ IUPAC 2001, eq. for D^p), given relative to 1H (D_H) and to 13C (D_C).
 
 from __future__ import annotations
 
-import difflib
 import re
-from dataclasses import dataclass
 from fractions import Fraction
+from typing import NamedTuple
 
 from nmrcalc.data.elements import NAME_OF_SYMBOL, SYMBOL_OF_NAME, Z_OF_SYMBOL
 from nmrcalc.data.nuclide_table import (
@@ -19,8 +18,7 @@ from nmrcalc.data.nuclide_table import (
 from nmrcalc.errors import InputError
 
 
-@dataclass(frozen=True)
-class Nuclide:
+class Nuclide(NamedTuple):
     """One isotope. ``gamma_rad_per_s_per_T`` is signed and 0 for I = 0."""
 
     symbol: str                      # "13C"
@@ -160,6 +158,8 @@ def lookup(query: str, field: str = "nucleus") -> Nuclide:
         known = ", ".join(n.symbol for n in isotopes_of(el)) or "none"
         what = f"{a}{el} is not in the table" if a is not None else f"{el} ({NAME_OF_SYMBOL.get(el, el)}) is an element, not one isotope"
         raise InputError(f"{what}; isotopes of {el} known here: {known}.", field, "unknown_nucleus")
+    import difflib  # only when a name is not found (costly to import, rarely needed)
+
     close = difflib.get_close_matches(query.strip()[:40], list(ALL) + list(NAME_OF_SYMBOL.values()), n=4, cutoff=0.5)
     hint = f" Did you mean {', '.join(close)}?" if close else " Write it like 13C, C-13 or carbon-13."
     raise InputError(f"Unknown nuclide '{query.strip()[:40]}'.{hint}", field, "unknown_nucleus")
