@@ -60,6 +60,11 @@ def page_scripts() -> list[Path]:
     return [js / "core.js", *shared, *panels, js / "main.js"]
 
 
+def page_script() -> str:
+    """The page scripts joined in load order (each file starts with "use strict" and keeps to itself)."""
+    return "\n".join(p.read_text() for p in page_scripts())
+
+
 def package_zip(package_dir: Path) -> bytes:
     """Every .py file of the package (as ``nmrcalc/...``) plus the worker bridge module, with bytecode."""
     return with_bytecode(source_zip(package_dir))
@@ -183,12 +188,8 @@ def build_site(out: Path, package_bytes: bytes, version: str) -> None:
     (out / "nmrcalc.zip").write_bytes(package_bytes)
     shutil.copyfile(WEB / "worker.js", out / "worker.js")
     shutil.copyfile(WEB / "css" / "app.css", out / "app.css")
-    scripts = page_scripts()
     boot = (WEB / "boot.js").read_text()
-    (out / "js").mkdir()
-    for path in scripts:
-        target = out / "js" / path.name
-        shutil.copyfile(path, target)
+    (out / "app.js").write_text(page_script())  # one file: one request, one parse
     (out / "icons" / "icon-192.png").write_bytes(png(192))
     (out / "icons" / "icon-512.png").write_bytes(png(512))
     (out / "manifest.webmanifest").write_text(manifest())
@@ -200,7 +201,7 @@ def build_site(out: Path, package_bytes: bytes, version: str) -> None:
         '<link rel="apple-touch-icon" href="icons/icon-192.png">',
         '<link rel="stylesheet" href="app.css">',
     ])
-    body = "\n".join(f'<script defer src="js/{p.name}"></script>' for p in scripts)
+    body = '<script defer src="app.js"></script>'
     csp = SITE_CSP.replace("script-src 'self'", f"script-src 'self' {sha256_source(boot)}")
     (out / "index.html").write_text(fill((WEB / "index.html").read_text(), head, body, csp, version))
     files = sorted(p.relative_to(out).as_posix() for p in out.rglob("*") if p.is_file())
@@ -217,7 +218,7 @@ def data_block(name: str, payload: bytes, kind: str, gzip_it: bool) -> str:
 
 def build_single(out_file: Path, package_bytes: bytes, version: str) -> None:
     css = (WEB / "css" / "app.css").read_text()
-    script = "\n".join(p.read_text() for p in page_scripts())
+    script = page_script()
     # in the order the worker needs them; each is posted to it as soon as it is parsed
     files = [("pyodide-lock.json", "asset", True), ("pyodide.mjs", "module", False), ("pyodide.asm.mjs", "module", True),
              ("pyodide.asm.wasm", "asset", True), ("python_stdlib.zip", "asset", True), ("nmrcalc.zip", "asset", False)]
