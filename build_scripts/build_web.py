@@ -34,7 +34,7 @@ WEB = ROOT / "web"
 PYODIDE_DIR = ROOT / "node_modules" / "pyodide"
 CORE_FILES = ["pyodide.mjs", "pyodide.asm.mjs", "pyodide.asm.wasm", "python_stdlib.zip", "pyodide-lock.json"]
 ZIP_DATE = (2020, 1, 1, 0, 0, 0)
-APP_DIR = "/home/pyodide/nmrcalc_app"  # where web/worker.js unpacks nmrcalc.zip
+APP_ZIP = "/home/pyodide/nmrcalc.zip"  # where web/worker.js puts nmrcalc.zip (imported from in place)
 
 # Content-Security-Policy, set by <meta> (a static host or file:// gives no headers).
 # Site: only the site's own files, plus the inline worker starter (web/boot.js) by its sha256 hash;
@@ -71,13 +71,13 @@ def package_zip(package_dir: Path) -> bytes:
 
 
 def with_bytecode(zip_bytes: bytes) -> bytes:
-    """The zip plus ``__pycache__`` bytecode from Pyodide's own Python (build_scripts/bytecode.mjs, in Node)."""
-    if f'"{APP_DIR}"' not in (WEB / "worker.js").read_text():
-        raise SystemExit(f"web/worker.js no longer unpacks the package to {APP_DIR}: update APP_DIR here")
+    """The zip plus bytecode beside each module, from Pyodide's own Python (build_scripts/bytecode.mjs, in Node)."""
+    if f'"{APP_ZIP}"' not in (WEB / "worker.js").read_text():
+        raise SystemExit(f"web/worker.js no longer imports the package from {APP_ZIP}: update APP_ZIP here")
     with tempfile.TemporaryDirectory() as tmp:
         source, compiled = Path(tmp) / "source.zip", Path(tmp) / "compiled.zip"
         source.write_bytes(zip_bytes)
-        run = subprocess.run(["node", str(ROOT / "build_scripts" / "bytecode.mjs"), str(source), str(compiled), APP_DIR],
+        run = subprocess.run(["node", str(ROOT / "build_scripts" / "bytecode.mjs"), str(source), str(compiled), APP_ZIP],
                              capture_output=True, text=True)
         if run.returncode != 0:
             raise SystemExit(f"bytecode compilation in Pyodide failed:\n{run.stderr[-2000:]}")

@@ -1,7 +1,7 @@
 // nmrcalc Web Worker: boots Pyodide, unpacks the nmrcalc package and answers
 // JSON requests through one fixed Python function, nmrcalc_bridge.bridge(text).
 //
-// Two boot modes, chosen by the page:
+// Two boot modes, chosen by the page (web/boot.js):
 //   "site":   the worker was loaded from a web server; Pyodide and the package
 //             zip are fetched from the same folder.
 //   "inline": the worker was created from a data: URL by the single-file page
@@ -12,7 +12,7 @@
 //             served to Pyodide from memory by a fetch shim that waits for them.
 // No Python source is ever built here: requests are passed as a string argument.
 
-const APP_DIR = "/home/pyodide/nmrcalc_app";
+const APP_ZIP = "/home/pyodide/nmrcalc.zip";  // imported from in place (zipimport), not unpacked
 let bridge = null;
 let bootPromise = null;
 
@@ -128,8 +128,8 @@ async function boot(message) {
   const started = performance.now();
   const { pyodide, packageZip } = message.mode === "inline" ? await bootInline(message) : await bootSite();
   progress("package", "Installing the nmrcalc package");
-  pyodide.unpackArchive(packageZip, "zip", { extractDir: APP_DIR });
-  pyodide.pyimport("sys").path.insert(0, APP_DIR);
+  pyodide.FS.writeFile(APP_ZIP, packageZip);
+  pyodide.pyimport("sys").path.insert(0, APP_ZIP);
   progress("import", "Importing nmrcalc");
   bridge = pyodide.pyimport("nmrcalc_bridge").bridge;
   post({ type: "ready", ms: performance.now() - started, python: pyodide.version });
