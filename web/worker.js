@@ -1,4 +1,4 @@
-// nmrcalc Web Worker: boots Pyodide, unpacks the nmrcalc package and answers
+// nmrcalc Web Worker: boots Pyodide, imports the nmrcalc package from its zip and answers
 // JSON requests through one fixed Python function, nmrcalc_bridge.bridge(text).
 //
 // Two boot modes, chosen by the page (web/boot.js):
