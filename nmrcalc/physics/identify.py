@@ -324,10 +324,8 @@ def _splits(m: int, options: Sequence[PartnerOption], max_count: int, pairs: boo
             continue  # same spin and J: one group
         for na, steps_a in ways(a):
             for nb, steps_b in ways(b):
-                if steps_a + steps_b == m:
-                    ca, cb = _comb(a.spin, na), _comb(b.spin, nb)
-                    comb = tuple(sum(ca[i] * cb[k - i] for i in range(max(0, k - len(cb) + 1), min(k, len(ca) - 1) + 1))
-                                 for k in range(m + 1))
+                if steps_a + steps_b == m:  # the joint comb from the multiplet engine, both groups at J = 1
+                    comb = tuple(float(w) for _, w in normalized(multiplet([(a.spin, na, 1.0), (b.spin, nb, 1.0)])))
                     out.append(Split(((a, na), (b, nb)), _group_cost(a.spin, na) + _group_cost(b.spin, nb), comb))
     return out
 
@@ -606,14 +604,15 @@ def identify(lines: Iterable, tol_Hz: float, options: Sequence[PartnerOption] | 
             layout = _layout(Js, ms, tol_Hz)
             if n_lines is not None and len(layout) != n_lines:
                 continue
-            fixed = None  # without merged lines the offsets, so the assignment, are alike for every split
+            fixed, floor = None, 0.0  # without merged lines the offsets, so the assignment, are alike for every split
             if all(len(c) == 1 for c in layout):
                 fixed = _assign(obs, [c[0][0] for c in layout], center0, tol_Hz)
-                if fixed.floor(len(obs)) >= bound + KEEP_SLACK:
+                floor = fixed.floor(len(obs))
+                if floor >= bound + KEEP_SLACK:
                     continue
             for choice in itertools.product(*(table[m] for m in ms)):
                 cost = sum(sp.cost for sp in choice)
-                if cost < bound and (fixed is None or fixed.floor(len(obs)) + cost < bound + KEEP_SLACK):
+                if cost < bound and floor + cost < bound + KEEP_SLACK:
                     groups = tuple(Group(opt, n, J) for sp, J in zip(choice, Js) for opt, n in sp.parts)
                     if len(groups) > max_groups or (table is not one_group and len(groups) == len(Js)):
                         continue
