@@ -25,6 +25,7 @@ OP_MODULES = {
     "multiplet": "multiplet_ops",
     "spin_system": "spin_system_ops",
     "identify": "identify_ops",
+    **dict.fromkeys(["read_spectrum", "pick_peaks", "fit_spin_system"], "spectrum_ops"),
 }
 MAX_REQUEST_CHARS = 1_000_000
 
