@@ -18,7 +18,8 @@ ASDF characters (one digit each, the rest of the number follows in plain digits)
 ``(X++(Y..Y))`` lines: an abscissa (in units of XFACTOR) then ordinates at
 successive points.  X check: each line's abscissa must be that of its first
 point, x_k = FIRSTX + k (LASTX − FIRSTX)/(NPOINTS − 1), within half a point
-spacing plus the rounding of the written abscissa.  Y check: when a line ends
+spacing (or the rounding of the written abscissa, if that is coarser), so one
+point missing or extra fails.  Y check: when a line ends
 in DIF form, the next line starts by repeating that last ordinate (it is
 compared, then dropped).  Scaled values: x = X · XFACTOR, y = Y · YFACTOR.
 """
@@ -183,7 +184,7 @@ def decode_xy_table(lines, first_x: float, last_x: float, npoints: int, x_factor
             n_y += 1
         k = len(ys) - (1 if carry else 0)
         expected = first_x + k * dx
-        tol = 0.5 * abs(dx) + 0.5 * abs(x_factor) * 10.0 ** -decimals + 1e-9 * abs(expected)
+        tol = max(0.5 * abs(dx), 0.5 * abs(x_factor) * 10.0 ** -decimals) + 1e-9 * abs(expected)
         if abs(x_written * x_factor - expected) > tol:
             raise InputError(f"Line {n}: the X check failed: the line starts at {x_written * x_factor:.6g}, "
                              f"but point {k + 1} lies at {expected:.6g} (points missing or extra).", "text")
@@ -229,7 +230,8 @@ def _unit(text: str) -> str:
 
 
 def _header_check(name: str, text: str | None, actual: float, factor: float, checks: list[str]) -> None:
-    """A stated header value must match the data to its written precision (plus one raw unit, 1e-5 relative)."""
+    """A stated header value must match the data to its written precision, plus one raw unit
+    and 1e-4 relative (exporters round the header; a decoding error is far larger)."""
     if text is None or not text.strip():
         return
     stated = _num(text, name, 0)
@@ -237,7 +239,7 @@ def _header_check(name: str, text: str | None, actual: float, factor: float, che
     written = 0.5 * 10.0 ** -len(mantissa.split(".")[1]) if "." in mantissa else 0.5
     if "e" in text.lower():
         written *= 10.0 ** int(text.split()[0].lower().split("e")[1])
-    tol = abs(factor) + written + 1e-5 * max(abs(stated), abs(actual))
+    tol = abs(factor) + written + 1e-4 * max(abs(stated), abs(actual))
     if abs(stated - actual) > tol:
         raise InputError(f"##{name}= says {stated:.6g} but the data give {actual:.6g}.", "text")
     checks.append(f"{name} = {stated:.6g} holds")
