@@ -119,7 +119,7 @@ NTUPLES = """##TITLE=invented complex spectrum
 ##VAR_DIM=6, 6, 6, 2
 ##UNITS=HZ, ARBITRARY UNITS, ARBITRARY UNITS,
 ##FIRST=5, 2, -1, 1
-##LAST=0, 12, 0, 2
+##LAST=0, 12, 3, 2
 ##MIN=0, 2, -3, 1
 ##MAX=5, 12, 3, 2
 ##FACTOR=1, 2, 1, 1
