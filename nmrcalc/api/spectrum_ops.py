@@ -77,6 +77,9 @@ def op_read_spectrum(req, warnings):
         if 0 <= k < len(s.y):
             ref = (s.first_x + k * (s.last_x - s.first_x) / max(1, len(s.y) - 1), s.shift_reference["shift_ppm"])
             out["reference"] = {"x": ref[0], "shift_ppm": ref[1], "source": f"file: {s.shift_reference['name']}"}
+        else:
+            warnings.append(f"The file's .SHIFT REFERENCE names point {k + 1}, outside 1 to {len(s.y)}: "
+                            "not used; set the reference by hand.")
     elif ref is not None:
         out["reference"] = {"x": ref[0], "shift_ppm": ref[1], "source": "request"}
     if s.x_unit == "ppm":
