@@ -29,7 +29,7 @@ from nmrcalc.physics.jcamp import MAX_POINTS, read_jcamp
 from nmrcalc.physics.peaks import pick
 from nmrcalc.physics.spectrum_text import read_two_column
 from nmrcalc.physics.spin_fit import fit
-from nmrcalc.physics.spin_system import Site, first_order_checks
+from nmrcalc.physics.spin_system import Site, equivalence_caveats, first_order_checks
 
 MAX_TEXT_CHARS = 40_000_000
 MAX_LINES = 64
@@ -171,6 +171,9 @@ def op_fit_spin_system(req, warnings):
         out_couplings.append({"between": [a, b], "J_Hz": p[k] if k is not None else J,
                               "error_Hz": (err[k] if err else None) if k is not None else None,
                               "fitted": k is not None})
+    if coupling_idx and equivalence_caveats(sites, couplings, shift_tol_Hz=1e-3):
+        warnings.append("Chemically equivalent spins couple differently (AA′XX′-type): couplings related by "
+                        "symmetry are fitted separately, so only their means are well determined.")
     new_sites = [Site(s.nucleus, s.spin, fitted.get(i, s.offset_Hz), s.count) for i, s in enumerate(sites)]
     new_couplings = [(c["between"][0], c["between"][1], c["J_Hz"]) for c in out_couplings]
     checks = [{"pair": list(c["pair"]), "delta_nu_Hz": c["delta_nu_Hz"], "J_Hz": c["J_Hz"],
