@@ -1,0 +1,47 @@
+"""The docs are derived from the code: the README's op table from the declarations, and
+DEVELOPERS.md's list of error codes from the codes the package raises."""
+
+import ast
+import pathlib
+import re
+
+from nmrcalc.api.describe_ops import declarations
+from nmrcalc.api.params import markdown_table
+
+ROOT = pathlib.Path(__file__).resolve().parents[1]
+
+
+def test_readme_op_table_matches_the_declarations():
+    text = (ROOT / "README.md").read_text()
+    start = text.index("-->", text.index("<!-- op table")) + 3
+    end = text.index("<!-- end of op table -->")
+    assert text[start:end].strip() == markdown_table(declarations()), \
+        "README op table is stale: paste `python -m nmrcalc describe --markdown`"
+
+
+def codes_in_package() -> set[str]:
+    """Every literal error code: InputError's third argument or code=, and _error's first."""
+    codes = set()
+    for path in (ROOT / "nmrcalc").rglob("*.py"):
+        for node in ast.walk(ast.parse(path.read_text())):
+            if not isinstance(node, ast.Call):
+                continue
+            name = getattr(node.func, "id", getattr(node.func, "attr", ""))
+            args = list(node.args)
+            candidates = [k.value for k in node.keywords if k.arg == "code"]
+            if name == "InputError" and len(args) >= 3:
+                candidates.append(args[2])
+            if name == "_error" and args:
+                candidates.append(args[0])
+            for c in candidates:
+                for leaf in ast.walk(c):
+                    if isinstance(leaf, ast.Constant) and isinstance(leaf.value, str):
+                        codes.add(leaf.value)
+    return codes
+
+
+def test_developers_lists_every_error_code():
+    text = (ROOT / "DEVELOPERS.md").read_text()
+    listed = set(re.findall(r"`([a-z_]+)`", text[text.index("## Errors"):text.index("##", text.index("## Errors") + 5)]))
+    missing = codes_in_package() - listed
+    assert not missing, f"DEVELOPERS.md's error list lacks {sorted(missing)}"
