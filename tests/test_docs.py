@@ -45,3 +45,14 @@ def test_developers_lists_every_error_code():
     listed = set(re.findall(r"`([a-z_]+)`", text[text.index("## Errors"):text.index("##", text.index("## Errors") + 5)]))
     missing = codes_in_package() - listed
     assert not missing, f"DEVELOPERS.md's error list lacks {sorted(missing)}"
+
+
+def test_one_version_everywhere():
+    """nmrcalc.__version__ is the one place; the package metadata and package.json follow it."""
+    import importlib.metadata
+    import json
+
+    import nmrcalc
+    assert json.loads((ROOT / "package.json").read_text())["version"] == nmrcalc.__version__
+    assert importlib.metadata.version("nmrcalc") == nmrcalc.__version__
+    assert 'dynamic = ["version"]' in (ROOT / "pyproject.toml").read_text()
