@@ -56,3 +56,22 @@ def test_one_version_everywhere():
     assert json.loads((ROOT / "package.json").read_text())["version"] == nmrcalc.__version__
     assert importlib.metadata.version("nmrcalc") == nmrcalc.__version__
     assert 'dynamic = ["version"]' in (ROOT / "pyproject.toml").read_text()
+
+
+def test_panel_fields_name_declared_parameters():
+    """A page field written {param: "op.key"} takes its label, unit, hint and default from that
+    declaration (web/js/core.js declaredField): every such name must exist."""
+    from nmrcalc.api.describe_ops import declarations as decl
+
+    def find(path: str) -> bool:
+        op, *keys = path.split(".")
+        params = decl()[op].params if op in decl() else ()
+        for key in keys:
+            match = [p for p in params if p.key == key]
+            if not match:
+                return False
+            params = match[0].items
+        return True
+
+    names = [m for js in (ROOT / "web" / "js").rglob("*.js") for m in re.findall(r'param:\s*"([\w.]+)"', js.read_text())]
+    assert all(find(name) for name in names), [n for n in names if not find(n)]
