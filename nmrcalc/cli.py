@@ -220,7 +220,8 @@ def render_multiplet(response: dict) -> str:
     if r["ratio"]:
         out.append(f"ratio: {r['ratio']}")
     for iso in r.get("isotopologues", []):
-        out.append(f"isotopologue {iso['label']}: share {iso['share'] * 100:.4g} %, {iso['multiplet']} ({iso['ratio']})")
+        out.append(f"isotopologue {iso['label']}: share {iso['share'] * 100:.4g} %, "
+                   f"{iso['multiplet']} ({iso['ratio']})")
     out.append(("  ppm        " if r["center_ppm"] is not None else "  ") + "Hz           intensity")
     for line in r["lines"]:
         ppm = f"{line['ppm']:<10.5f} " if "ppm" in line else ""
@@ -283,7 +284,10 @@ def _emit(text: str, stream) -> None:
 
 
 def _read_stdin() -> str | None:
-    data = sys.stdin.buffer.read() if hasattr(sys.stdin, "buffer") else sys.stdin.read().encode("utf-8", "surrogatepass")
+    if hasattr(sys.stdin, "buffer"):
+        data = sys.stdin.buffer.read()
+    else:  # a text stream put in by a caller
+        data = sys.stdin.read().encode("utf-8", "surrogatepass")
     try:
         return data.decode("utf-8")
     except UnicodeDecodeError as e:

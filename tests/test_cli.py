@@ -69,7 +69,8 @@ def test_multiplet_and_spins_commands(capsys):
     assert "1:3:6:7:6:3:1" in capsys.readouterr().out
     assert main(["multiplet", "--observe", "1H", "--group", "spin=1,2,7 Hz", "--json"]) == 0
     assert json.loads(capsys.readouterr().out)["result"]["ratio"] == "1:2:3:2:1"
-    assert main(["spins", "--spin", "1H,7.10", "--spin", "1H,7.00", "--coupling", "0,1,8", "--spectrometer", "400"]) == 0
+    assert main(["spins", "--spin", "1H,7.10", "--spin", "1H,7.00", "--coupling", "0,1,8",
+                 "--spectrometer", "400"]) == 0
     assert "second order" in capsys.readouterr().out
     assert main(["spins", "--spin", "1H,7.10", "--coupling", "0,0,8", "--spectrometer", "400"]) == 2
     assert main(["multiplet", "--observe", "13C", "--group", "2H,3,19.3 Hz,9"]) == 2

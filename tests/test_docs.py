@@ -42,7 +42,8 @@ def codes_in_package() -> set[str]:
 
 def test_developers_lists_every_error_code():
     text = (ROOT / "DEVELOPERS.md").read_text()
-    listed = set(re.findall(r"`([a-z_]+)`", text[text.index("## Errors"):text.index("##", text.index("## Errors") + 5)]))
+    start = text.index("## Errors")
+    listed = set(re.findall(r"`([a-z_]+)`", text[start:text.index("##", start + 5)]))
     missing = codes_in_package() - listed
     assert not missing, f"DEVELOPERS.md's error list lacks {sorted(missing)}"
 
@@ -73,5 +74,6 @@ def test_panel_fields_name_declared_parameters():
             params = match[0].items
         return True
 
-    names = [m for js in (ROOT / "web" / "js").rglob("*.js") for m in re.findall(r'param:\s*"([\w.]+)"', js.read_text())]
+    names = [m for js in (ROOT / "web" / "js").rglob("*.js")
+             for m in re.findall(r'param:\s*"([\w.]+)"', js.read_text())]
     assert all(find(name) for name in names), [n for n in names if not find(n)]

@@ -24,7 +24,8 @@ import reprlib
 import time
 
 import pytest
-from hypothesis import HealthCheck, assume, given, settings, strategies as st
+from hypothesis import HealthCheck, assume, given, settings
+from hypothesis import strategies as st
 
 from nmrcalc.api import MAX_REQUEST_CHARS, OPS, handle, handle_json
 from nmrcalc.api.describe_ops import declarations
@@ -327,7 +328,7 @@ def test_handle_json_invalid_huge_and_deep_text():
     assert call_json(" " * (MAX_REQUEST_CHARS + 1))["error"]["code"] == "too_large"
     big = json.dumps({"op": "nuclide", "query": "13C", "pad": "x" * (MAX_REQUEST_CHARS - 100)})
     assert len(big) <= MAX_REQUEST_CHARS and call_json(big)["error"]["code"] == "unknown_key"
-    big = json.dumps({"op": "nuclides", "search": "", "include_spin_zero": False, "pad": ""}) + " " * (MAX_REQUEST_CHARS - 100)
+    big = json.dumps({"op": "nuclides", "search": "", "pad": ""}) + " " * (MAX_REQUEST_CHARS - 100)
     assert len(big) <= MAX_REQUEST_CHARS and call_json(big)["error"]["field"] == "pad"
     for op in sorted(OPS):
         call_json(json.dumps({**template(op), "spectrometer": "1e300 MHz", "query": "x" * 10**5}))

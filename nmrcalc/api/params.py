@@ -74,16 +74,23 @@ class Param:
     bounds: tuple[float | None, float | None] = (None, None)
     max_chars: int = 200
     max_items: int = MAX_LIST_ITEMS
-    items: tuple["Param", ...] = ()
+    items: tuple[Param, ...] = ()
     example: Any = None              # a valid value, for docs and the fuzz
     cli: str | None = None           # flag or positional name; "-" keeps it off the CLI
     cli_order: tuple[str, ...] = ()  # objects: the item keys a CLI text fills, in order
     cli_sep: str = ","               # objects: separates an item's parts; another one lets "," separate items
     file: bool = False               # text: the CLI reads it from a file ('-' = standard input)
 
-    def __post_init__(self):
+    def __post_init__(self) -> None:
         if self.kind not in KINDS:
             raise ValueError(f"unknown kind {self.kind!r} for {self.key}")
+        if self.kind in ("quantity", "quantities", "map") and self.unit is None:
+            raise ValueError(f"{self.key}: a {self.kind} needs the unit kind it is read in")
+
+    @property
+    def quantity_kind(self) -> str:
+        """The units.py kind a quantity of this parameter is read as."""
+        return self.unit or ""
 
     def describe(self) -> dict:
         out = {"key": self.key, "kind": self.kind, "unit": _unit_name(self.unit), "required": self.required,
@@ -222,7 +229,8 @@ def _unknown_message(key: str, declared: dict, everywhere: dict[str, str], prefi
         return f"{prefix}{shown}: unknown key — did you mean '{match}'?"
     close = get_close_matches(key[:40], list(everywhere), n=1, cutoff=0.75)
     if close:
-        home = "the top level of the request" if everywhere[close[0]] == "" else f"each item of '{everywhere[close[0]][:-3]}'"
+        level_of = everywhere[close[0]]
+        home = "the top level of the request" if level_of == "" else f"each item of '{level_of[:-3]}'"
         return f"{prefix}{shown}: unknown key — did you mean '{close[0]}' (a key of {home})?"
     known = ", ".join(sorted(declared)) or "none"
     return f"{prefix}{shown}: unknown key for {'this item' if level else 'this op'}; the keys are: {known}."
@@ -232,12 +240,12 @@ def _check_value(p: Param, value, where: str, everywhere: dict[str, str]) -> Non
     kind = p.kind
     if kind == "quantity":
         from nmrcalc.api.fields import bounded
-        bounded(value, p.unit, where)
+        bounded(value, p.quantity_kind, where)
     elif kind == "quantities":
         from nmrcalc.api.fields import bounded
         items = _split(value, where, p)
         for i, item in enumerate(items):
-            bounded(item, p.unit, f"{where}.{i}")
+            bounded(item, p.quantity_kind, f"{where}.{i}")
     elif kind in ("nuclide", "partner", "text", "spin"):
         if kind == "spin" and isinstance(value, (int, float)) and not isinstance(value, bool):
             return
@@ -276,7 +284,7 @@ def _check_value(p: Param, value, where: str, everywhere: dict[str, str]) -> Non
         for key, item in value.items():
             if len(str(key)) > 40:
                 raise InputError(f"{where}: a key is too long.", where)
-            bounded(item, p.unit, f"{where}.{key}")
+            bounded(item, p.quantity_kind, f"{where}.{key}")
     elif kind == "objects":
         if not isinstance(value, list):
             raise InputError(f"{where}: give a list of objects.", where)
