@@ -23,6 +23,8 @@ import math
 import re
 
 from nmrcalc.api.fields import in_range, magnet, nucleus, quantity, require
+from nmrcalc.api.params import MAGNET, Op, Param
+from nmrcalc.api.spin_system_ops import DECLARED as SPIN_DECLARED
 from nmrcalc.api.spin_system_ops import _couplings, _ref_MHz, _spins
 from nmrcalc.errors import InputError
 from nmrcalc.physics.jcamp import MAX_POINTS, read_jcamp
@@ -31,7 +33,7 @@ from nmrcalc.physics.spectrum_text import read_two_column
 from nmrcalc.physics.spin_fit import fit
 from nmrcalc.physics.spin_system import Site, equivalence_caveats, first_order_checks
 
-MAX_TEXT_CHARS = 40_000_000
+MAX_TEXT_CHARS = 16_000_000
 MAX_LINES = 64
 
 
@@ -139,6 +141,8 @@ def op_fit_spin_system(req, warnings):
     field_T, proton_MHz = magnet(req, warnings)
     lines = require(req, "lines")
     vary = req.get("vary", ["shifts", "couplings"])
+    if isinstance(vary, str):
+        vary = [v.strip() for v in vary.split(",") if v.strip()]
     if not isinstance(lines, list) or not all(isinstance(ln, dict) for ln in lines):
         raise InputError("'lines' must be a list of {position, intensity}.", "lines")
     if len(lines) > MAX_LINES:
@@ -184,5 +188,51 @@ def op_fit_spin_system(req, warnings):
             "residuals": [{"position_Hz": x, "assigned_Hz": a, "residual_Hz": r} for (x, _), a, r
                           in zip(measured, result["assigned_Hz"], result["residuals_Hz"])]}
 
+
+_SPIN_PARAMS = SPIN_DECLARED["spin_system"].keys()
+_EXAMPLE_TEXT = "ppm,intensity\n" + "".join(f"{2 - k / 100},{1 if k == 100 else 0}\n" for k in range(201))
+
+DECLARED = {
+    "read_spectrum": Op(
+        "read_spectrum", "read a measured spectrum: JCAMP-DX (XYDATA, NTUPLES, PEAK TABLE) or two-column text",
+        cli="spectrum", limits=f"{MAX_TEXT_CHARS} characters; {MAX_POINTS} points", params=(
+            Param("text", "text", required=True, max_chars=MAX_TEXT_CHARS, file=True, cli="FILE", label="File",
+                  help="the file's contents (JCAMP-DX or two columns: x, intensity)", example=_EXAMPLE_TEXT),
+            Param("filename", "text", label="File name", help="shown as the title when the file has none",
+                  example="invented.csv"),
+            Param("x_unit", "choice", choices=("Hz", "ppm"), label="x unit",
+                  help="unit of x in a two-column file without a header"),
+            Param("reference", "value", label="Reference",
+                  help="{x: position in the file's unit, shift_ppm: its shift}: sets the ppm scale"),
+        )),
+    "pick_peaks": Op(
+        "pick_peaks", "pick peaks of a sampled spectrum: noise, positions, heights, widths, integrals", cli="-",
+        limits=f"{MAX_POINTS} points", params=(
+            Param("first_x", "number", required=True, label="First x", help="x of the first point", example=2.0),
+            Param("last_x", "number", required=True, label="Last x", help="x of the last point", example=0.0),
+            Param("x_unit", "choice", choices=("Hz", "ppm"), required=True, label="x unit", help="Hz or ppm",
+                  example="ppm"),
+            Param("y", "value", required=True, label="Ordinates", help="the evenly spaced ordinates",
+                  example=[1.0 / (1 + ((k - 100) / 2) ** 2) + 0.001 * ((k * 7919) % 13 - 6) for k in range(201)]),
+            Param("observe_MHz", "quantity", unit="frequency", label="Observe frequency",
+                  help="needed for widths in Hz when x is in ppm", example="400.13 MHz"),
+            Param("threshold", "text", default="5 sigma", label="Threshold", help="a multiple of the noise, e.g. '5 sigma'"),
+        )),
+    "fit_spin_system": Op(
+        "fit_spin_system", "fit a spin system's shifts and couplings to measured line positions (least squares)",
+        cli="fit", one_of=(("spectrometer", "field"),), limits=f"{MAX_LINES} lines", params=(
+            _SPIN_PARAMS["observe"], _SPIN_PARAMS["spins"], _SPIN_PARAMS["couplings"], *MAGNET,
+            Param("lines", "objects", required=True, max_items=MAX_LINES, label="Measured lines",
+                  help="positions (ppm, or '1234.5 Hz') and intensities, e.g. '7.012:1,7.031:1'", cli="--lines",
+                  cli_order=("position", "intensity"), cli_sep=":",
+                  example=[{"position": 0.99, "intensity": 1}, {"position": 1.0, "intensity": 1},
+                           {"position": 1.09, "intensity": 1}, {"position": 1.1, "intensity": 1}], items=(
+                Param("position", "value", required=True, label="Position", help="ppm, or text with Hz"),
+                Param("intensity", "number", label="Intensity", help="height or integral"),
+            )),
+            Param("vary", "texts", default=["shifts", "couplings"], label="Vary", max_items=2,
+                  help="'shifts' and/or 'couplings'", example=["shifts", "couplings"]),
+        )),
+}
 
 OPS = {"read_spectrum": op_read_spectrum, "pick_peaks": op_pick_peaks, "fit_spin_system": op_fit_spin_system}
