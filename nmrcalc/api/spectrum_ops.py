@@ -35,6 +35,7 @@ from nmrcalc.physics.spin_system import Site, equivalence_caveats, first_order_c
 
 MAX_TEXT_CHARS = 16_000_000
 MAX_LINES = 64
+MAX_ORDINATE = 1e100  # any intensity unit, but sums of squares stay finite
 
 
 def _number(req, key, prefix=""):
@@ -102,8 +103,8 @@ def op_pick_peaks(req, warnings):
     observe = req.get("observe_MHz")
     threshold = req.get("threshold", "5 sigma")
     if not isinstance(y, list) or not all(isinstance(v, (int, float)) and not isinstance(v, bool)
-                                          and math.isfinite(v) for v in y):
-        raise InputError("'y' must be a list of numbers.", "y")
+                                          and math.isfinite(v) and abs(v) <= MAX_ORDINATE for v in y):
+        raise InputError(f"'y' must be a list of numbers of size at most {MAX_ORDINATE:g}.", "y")
     if len(y) > MAX_POINTS:
         raise InputError(f"At most {MAX_POINTS} points.", "y", "too_large")
     if observe is not None:
@@ -159,6 +160,9 @@ def op_fit_spin_system(req, warnings):
     coupling_idx = list(range(len(couplings))) if "couplings" in vary else []
     result = fit(sites, couplings, observe.symbol, measured, shift_sites, coupling_idx)
     p, err = result["params"], result["errors"]
+    if not result["converged"]:
+        warnings.append("The line assignment was still changing when the fit stopped: check the starting "
+                        "shifts and couplings, or fit fewer lines.")
     if err is None:
         warnings.append("As many parameters as lines: the standard errors are undefined.")
     fitted = dict(zip(shift_sites, p))

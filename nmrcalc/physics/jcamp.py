@@ -33,6 +33,7 @@ from dataclasses import dataclass, field
 from nmrcalc.errors import InputError
 
 MAX_POINTS = 4_194_304
+MAX_ORDINATE = 1e100  # any intensity unit, but sums of squares stay finite
 _SQZ = {c: d for d, c in enumerate("@ABCDEFGHI")} | {c: -d for d, c in enumerate("abcdefghi", 1)}
 _DIF = {c: d for d, c in enumerate("%JKLMNOPQR")} | {c: -d for d, c in enumerate("jklmnopqr", 1)}
 _DUP = {c: d for d, c in enumerate("STUVWXYZs", 1)}
@@ -202,6 +203,13 @@ def decode_xy_table(lines, first_x: float, last_x: float, npoints: int, x_factor
     return ys
 
 
+def _scaled(raw: list[float], factor: float) -> list[float]:
+    y = [v * factor for v in raw]
+    if any(not abs(v) <= MAX_ORDINATE for v in y):
+        raise InputError(f"An ordinate exceeds {MAX_ORDINATE:g} after scaling: check YFACTOR.", "text")
+    return y
+
+
 def _peak_table(lines) -> list[tuple[float, float]]:
     values = []
     for n, text in lines:
@@ -284,7 +292,7 @@ def _xydata(recs, meta) -> Spectrum:
     lines = next(r[3] for r in recs if r[0] == "XYDATA")
     checks: list[str] = []
     raw = decode_xy_table(lines, first_x, last_x, npoints, x_factor, checks)
-    y = [v * y_factor for v in raw]
+    y = _scaled(raw, y_factor)
     for name in ("FIRSTY", "MAXY", "MINY"):
         if name in meta:
             actual = {"FIRSTY": y[0], "MAXY": max(y), "MINY": min(y)}[name]
@@ -335,7 +343,7 @@ def _ntuples(recs, meta) -> Spectrum:
         factor = column("FACTOR", i, False) or 1.0
         page_checks: list[str] = []
         raw = decode_xy_table(pages[symbols[i]], first_x, last_x, int(dim), x_factor, page_checks)
-        y = [v * factor for v in raw]
+        y = _scaled(raw, factor)
         for name, actual in (("FIRST", y[0]), ("LAST", y[-1]), ("MIN", min(y)), ("MAX", max(y))):
             _header_check(name, text_of(name, i), actual, factor, page_checks)
         checks += [f"{want.lower()}: {c}" for c in page_checks]

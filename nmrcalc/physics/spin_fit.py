@@ -23,7 +23,9 @@ from nmrcalc.physics.spin_system import simulate
 
 MIN_ASSIGN = 0.02
 TOL_HZ = 1e-7
-MAX_ITER = 60
+MAX_ASSIGNMENTS = 8   # outer passes: assign, then fit with the assignment fixed
+MAX_ITER = 25         # Levenberg–Marquardt steps per pass
+MAX_TRIES = 8         # damping increases (×10 each) before a step is given up
 STEP_HZ = 1e-4
 
 
@@ -117,7 +119,8 @@ def fit(sites, couplings, observe, measured, shift_sites, coupling_idx) -> dict:
     """Fit offsets (Hz) of ``shift_sites`` and J (Hz) of ``couplings[k]`` for k in ``coupling_idx``.
 
     ``measured``: [(position_Hz, intensity)].  Returns {"params", "errors" (None if
-    undefined), "rms_Hz", "residuals_Hz", "assigned_Hz", "iterations"}."""
+    undefined), "rms_Hz", "residuals_Hz", "assigned_Hz", "iterations", "converged" (the
+    assignment stopped changing within MAX_ASSIGNMENTS passes)}."""
     model = _Model(sites, couplings, observe, shift_sites, coupling_idx)
     p = model.params()
     n, m = len(p), len(measured)
@@ -128,10 +131,12 @@ def fit(sites, couplings, observe, measured, shift_sites, coupling_idx) -> dict:
     x = [pos for pos, _ in measured]
     it = 0
     index: list[int] = []
-    for _ in range(MAX_ITER):
+    converged = False
+    for _ in range(MAX_ASSIGNMENTS):
         lines = model.lines(p)
         new_index = _assign(measured, lines)
         if new_index == index:
+            converged = True
             break
         index = new_index
         p, jac, cost, steps = _levenberg_marquardt(model, p, x, index)
@@ -148,7 +153,7 @@ def fit(sites, couplings, observe, measured, shift_sites, coupling_idx) -> dict:
             s2 = cost / (m - n)
             errors = [math.sqrt(max(0.0, s2 * inv[a][a])) for a in range(n)]
     return {"params": p, "errors": errors, "rms_Hz": math.sqrt(cost / m), "residuals_Hz": r,
-            "assigned_Hz": calc, "iterations": it}
+            "assigned_Hz": calc, "iterations": it, "converged": converged}
 
 
 def _jacobian(model, p, index, reference):
@@ -189,7 +194,7 @@ def _levenberg_marquardt(model, p, x, index):
         jtj = _normal(jac, m, n)
         jtr = [sum(jac[a][i] * r[i] for i in range(m)) for a in range(n)]
         accepted = None
-        while lam < 1e12:
+        for _ in range(MAX_TRIES):
             damped = [[jtj[a][b] * (1 + lam) + lam * 1e-12 if a == b else jtj[a][b] for b in range(n)]
                       for a in range(n)]
             step = _solve(damped, jtr)
