@@ -210,8 +210,8 @@ def decode_xy_table(lines, first_x: float, last_x: float, npoints: int, x_factor
 
 
 def _scaled(raw: list[float], factor: float) -> list[float]:
-    y = [v * factor for v in raw]
-    if any(not abs(v) <= MAX_ORDINATE for v in y):
+    y = raw if factor == 1.0 else [v * factor for v in raw]
+    if y and not (-MAX_ORDINATE <= min(y) and max(y) <= MAX_ORDINATE):
         raise InputError(f"An ordinate exceeds {MAX_ORDINATE:g} after scaling: check YFACTOR.", "text")
     return y
 
