@@ -35,13 +35,13 @@ NMR.registerPanel({
     const refOffset = input("spec-ref-offset", "or: x of 0 ppm (file unit)", { placeholder: "e.g. 913.4" });
     const solvent = el("select", { id: "spec-solvent" });
     const solventRow = el("div", { class: "field", hidden: true }, el("label", { for: "spec-solvent" }, "Solvent signal for the chosen peak"), solvent);
-    const refButton = el("button", { type: "button", id: "spec-ref-set" }, "Set reference");
+    const refButton = el("button", { type: "button", class: "primary", id: "spec-ref-set" }, "Set reference");
     const refNote = el("p", { class: "hint", id: "spec-ref-note" });
     const threshold = input("spec-threshold", "Threshold (multiples of the noise)", { value: "5" });
-    const pickButton = el("button", { type: "button", id: "spec-pick" }, "Pick peaks");
+    const pickButton = el("button", { type: "button", class: "primary", id: "spec-pick" }, "Pick peaks");
     const from = input("spec-from", "Region from", { placeholder: "ppm or file unit" });
     const to = input("spec-to", "to", {});
-    const sendButton = el("button", { type: "button", id: "spec-send" }, "Send region's peaks to the pattern finder");
+    const sendButton = el("button", { type: "button", class: "primary", id: "spec-send" }, "Send region's peaks to the pattern finder");
     const sendNote = el("p", { class: "hint", id: "spec-send-note" });
     const table = el("table", { class: "result-table", id: "spec-peaks" });
 
@@ -209,7 +209,8 @@ NMR.registerPanel({
       const list = `${unit}\theight\n` + inRegion.map((p) => `${short(at(p), 9)}\t${short(p.height, 6)}`).join("\n") + "\n";
       const inputs = { "ident.peaklist": list, "ident.mode": "paste", "ident.unit": { value: unit, unit: null } };
       if (spectrum.nucleus) inputs["ident.observe"] = { value: spectrum.nucleus, unit: null };
-      if (ppm) inputs["ident.magnet"] = { value: String(spectrum.observe_MHz), unit: "MHz" };
+      // Hz positions here are the file's own x, not offsets from 0 ppm: no magnet, so none is read as ppm
+      inputs["ident.magnet"] = ppm ? { value: String(spectrum.observe_MHz), unit: "MHz" } : { value: "", unit: "MHz" };
       sendNote.textContent = `${inRegion.length} peaks sent.`;
       if (!NMR.openInputs("identify", "ident", inputs)) sendNote.textContent = "The pattern finder is not part of this page.";
     });
