@@ -11,7 +11,7 @@ from fractions import Fraction
 from nmrcalc.errors import InputError
 from nmrcalc.nuclides import Nuclide, lookup, lookup_magnetic
 from nmrcalc.physics.larmor import field_T_from_proton_MHz, proton_MHz_from_field_T
-from nmrcalc.units import parse_positive, parse_quantity
+from nmrcalc.units import parse_magnet, parse_positive, parse_quantity
 
 # The progress callback of the request being handled (set by api.handle), or None.
 PROGRESS: ContextVar = ContextVar("progress", default=None)
@@ -77,15 +77,22 @@ def magnet(req: dict, warnings: list[str]) -> tuple[float, float]:
     has_field = req.get("field") not in (None, "")
     if has_spec and has_field:
         raise InputError("Give either 'spectrometer' or 'field', not both.", "field")
-    if has_spec:
-        proton_MHz = bounded(req["spectrometer"], "frequency", "spectrometer", positive=True)
-        field_T = field_T_from_proton_MHz(proton_MHz)
-    elif has_field:
-        field_T = bounded(req["field"], "field", "field", positive=True)
-        proton_MHz = proton_MHz_from_field_T(field_T)
-    else:
+    if not (has_spec or has_field):
         raise InputError("Give the magnet as 'spectrometer' (1H frequency, e.g. '500 MHz') or "
                          "'field' (e.g. '11.74 T').", "spectrometer", "missing_field")
+    key = "spectrometer" if has_spec else "field"
+    try:  # either key takes a field (T, G) or a 1H frequency (MHz); a bare number is in the key's unit
+        tag, x = parse_magnet(req[key], key)
+    except OverflowError:
+        tag, x = "", float("inf")
+    tag = tag or ("MHz" if has_spec else "T")
+    x = in_range(x, key)
+    if x <= 0:
+        raise InputError(f"{key}: must be greater than zero.", key)
+    if tag == "MHz":
+        proton_MHz, field_T = x, field_T_from_proton_MHz(x)
+    else:
+        field_T, proton_MHz = x, proton_MHz_from_field_T(x)
     if field_T > STRONGEST_MAGNET_T:
         warnings.append(f"{field_T:.4g} T is above the strongest high-resolution NMR magnets "
                         "(about 28 T, 1.2 GHz); check the value.")

@@ -20,6 +20,7 @@ from nmrcalc.nuclides import Nuclide
 from nmrcalc.physics import larmor, lineshape
 from nmrcalc.physics.multiplet import multiplet
 from nmrcalc.physics.spin_system import MAX_COUNT, Site, equivalence_caveats, first_order_checks, simulate
+from nmrcalc.units import split_list
 
 MAX_FIELDS = 12
 MAX_SPINS = 64  # spin entries in one request; each may stand for up to MAX_COUNT equivalent nuclei
@@ -76,6 +77,8 @@ def _couplings(req, n: int) -> list[tuple[int, int, float]]:
 
 def _magnets(req, warnings) -> list[tuple[float, float]]:
     fields = req.get("fields")
+    if isinstance(fields, str):  # typed text: "400, 600 MHz" (units.split_list)
+        fields = split_list(fields, "fields") if fields.strip() else []
     if fields in (None, []):
         return [magnet(req, warnings)]
     if not isinstance(fields, list):

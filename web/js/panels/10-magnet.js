@@ -88,8 +88,8 @@ NMR.registerPanel({
       request(v) {
         const req = { op: "frequency", spin_half_only: v.spinhalf.value, ...NMR.magnetRequest(v.magnet) };
         if (v.minab.value !== "") req.min_abundance_percent = v.minab.value;
-        if (v.minmhz.value !== "") req.min_MHz = `${v.minmhz.value} MHz`;
-        if (v.maxmhz.value !== "") req.max_MHz = `${v.maxmhz.value} MHz`;
+        if (v.minmhz.value !== "") req.min_MHz = v.minmhz.value;
+        if (v.maxmhz.value !== "") req.max_MHz = v.maxmhz.value;
         return req;
       },
       render(r, out) {

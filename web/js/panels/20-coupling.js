@@ -18,7 +18,7 @@ NMR.registerPanel({
         { id: "partner", label: "Coupling partner (optional, for K)", value: "13C", list: "nuclide-list" },
       ],
       request(v) {
-        const req = { op: "scale_coupling", J: v.J.value === "" ? "" : `${v.J.value} Hz`, from: v.from.value, to: v.to.value };
+        const req = { op: "scale_coupling", J: v.J.value, from: v.from.value, to: v.to.value };
         if (v.partner.value !== "") req.partner = v.partner.value;
         return req;
       },

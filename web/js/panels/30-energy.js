@@ -26,12 +26,11 @@ NMR.registerPanel({
       ],
       request(v) {
         const req = {
-          op: "energy", nucleus: v.nucleus.value, temperature: v.temperature.value === "" ? "" : `${v.temperature.value} K`,
+          op: "energy", nucleus: v.nucleus.value, temperature: v.temperature.value,
           ...NMR.magnetRequest(v.magnet),
         };
         if (v.photon.value !== "") {
-          if (v.photon.unit === "nm") req.wavelength = `${v.photon.value} nm`;
-          else req.wavenumber = `${v.photon.value} cm-1`;
+          req[v.photon.unit === "nm" ? "wavelength" : "wavenumber"] = v.photon.value;
         }
         return req;
       },

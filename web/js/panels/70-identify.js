@@ -216,7 +216,7 @@ NMR.registerPanel({
       const partners = partnerList(fixed.partners.read().value);
       if (partners.length) req.partners = partners;
       const tolerance = fixed.tolerance.read().value;
-      if (tolerance !== "") req.tolerance = /[a-z]/i.test(tolerance) ? tolerance : `${tolerance} Hz`;
+      if (tolerance !== "") req.tolerance = tolerance;
       req.max_groups = Number(fixed.maxGroups.read().value);
       if (mode === "paste") {
         req.peaklist = peaklist.value;
