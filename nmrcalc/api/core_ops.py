@@ -7,7 +7,7 @@ from __future__ import annotations
 from nmrcalc.api.fields import flag, magnet, nucleus, quantity, require, spin_text
 from nmrcalc.data.elements import NAME_OF_SYMBOL
 from nmrcalc.errors import InputError
-from nmrcalc.nuclides import ALL, BIOMOLECULAR, MAGNETIC, Nuclide, lookup, receptivity
+from nmrcalc.nuclides import BIOMOLECULAR, MAGNETIC, Nuclide, lookup, receptivity, search
 from nmrcalc.physics import coupling, energy, larmor, sensitivity
 
 QUADRUPOLE_NOTE = ("Quadrupolar (I > 1/2): fast relaxation often broadens its lines and collapses "
@@ -45,22 +45,20 @@ def op_nuclide(req, warnings):
 
 def op_nuclides(req, warnings):
     text = req.get("search", "")
-    if not isinstance(text, str):
-        raise InputError("'search' must be text.", "search")
-    words = text.lower().split()
-    rows = [nuclide_record(n) for n in ALL.values() if n.magnetic or flag(req, "include_spin_zero")]
-    if words:
-        rows = [r for r in rows if all(w in f"{r['symbol']} {r['element']} {r['element_name']} "
-                                          f"{r['reference'] or ''}".lower() for w in words)]
+    spin_zero = flag(req, "include_spin_zero")
+    rows = [nuclide_record(n) for n in search(text) if n.magnetic or spin_zero]
     return {"nuclides": rows, "count": len(rows)}
 
 
 def _frequency_row(nuc: Nuclide, field_T: float, proton_MHz: float, scale: str) -> dict:
     nu = larmor.larmor_MHz(nuc, field_T)
     ref = larmor.reference_MHz(nuc, proton_MHz, scale)
+    diff = None if ref is None else larmor.reference_minus_bare(nuc, ref, nu)
     return {"symbol": nuc.symbol, "spin": spin_text(nuc.spin), "abundance_percent": nuc.abundance_percent,
-            "larmor_MHz": nu, "reference_MHz": ref,
-            "difference_ppm": None if ref is None else (ref / nu - 1) * 1e6,
+            "reference_MHz": ref, "larmor_MHz": nu,
+            "difference_ppm": None if diff is None else diff.ppm,
+            "difference_precision_ppm": None if diff is None else diff.precision_ppm,
+            "difference_decimals": None if diff is None else diff.decimals,
             "receptivity_C": receptivity(nuc, "13C")}
 
 
@@ -71,13 +69,17 @@ def _scale(req) -> str:
     return scale
 
 
-_SORT_KEYS = ("symbol", "larmor_MHz", "abundance_percent", "receptivity_C", "spin")
+DIFFERENCE_NOTE = ("0 ppm − bare nucleus: the shielding of the nucleus in its reference compound (relative "
+                   "to the TMS proton) plus the uncertainty of the tabulated moment — not a chemical shift. "
+                   "Shown only to the precision of the tabulated γ and Ξ (one unit in their last digit).")
+_SORT_KEYS = ("symbol", "reference_MHz", "larmor_MHz", "abundance_percent", "receptivity_C", "spin")
 
 
 def op_frequency(req, warnings):
     field_T, proton_MHz = magnet(req, warnings)
     scale = _scale(req)
-    base = {"field_T": field_T, "field_G": field_T * 1e4, "proton_MHz": proton_MHz, "scale": scale}
+    base = {"field_T": field_T, "field_G": field_T * 1e4, "proton_MHz": proton_MHz, "scale": scale,
+            "difference_note": DIFFERENCE_NOTE}
     if req.get("nucleus") not in (None, ""):
         nuc = nucleus(req, "nucleus")
         row = _frequency_row(nuc, field_T, proton_MHz, scale)

@@ -7,8 +7,8 @@ NMR.registerPanel({
   title: "Magnet & frequencies",
   build(container) {
     const { el, fmt, fixed, nuclideLabel } = NMR;
-    // ppm differences to 3 decimals; rounding noise around zero shown as 0
-    const ppmText = (x) => (x === null || x === undefined ? "—" : fixed(Math.abs(x) < 5e-4 ? 0 : x, 3));
+    // 0 ppm − bare nucleus, rounded by the API to the precision of the tabulated γ and Ξ
+    const diffText = (row) => (row.difference_ppm === null ? "—" : `${fixed(row.difference_ppm, row.difference_decimals)} ± ${fmt(row.difference_precision_ppm, 1)}`);
     const magnet = NMR.sharedField("freqs", {
       id: "magnet", label: "Magnet (¹H frequency or field)", value: "400.13", inputmode: "decimal",
       units: NMR.MAGNET_UNITS, keys: ["spectrometer", "field"],
@@ -21,7 +21,7 @@ NMR.registerPanel({
     const one = NMR.form({
       id: "larmor",
       title: "One nucleus",
-      intro: "Larmor frequency at this magnet and the frequency of its 0 ppm reference (from Ξ).",
+      intro: "The frequency of its 0 ppm reference (from Ξ) at this magnet — where a spectrometer is set — and the Larmor frequency of the bare nucleus.",
       shared: [magnet],
       fields: [
         { id: "nucleus", label: "Nucleus", value: "13C", list: "nuclide-list", placeholder: "e.g. 13C, 15N, 31P" },
@@ -35,12 +35,12 @@ NMR.registerPanel({
         magnetOut.replaceChildren(`${fmt(r.field_T, 6)} T · ${fmt(r.field_G, 6)} G · ¹H at ${fixed(r.proton_MHz, 4)} MHz`);
         out.replaceChildren(NMR.resultList([
           ["Nucleus", nuclideLabel(r.symbol)],
-          ["Larmor frequency", fixed(r.larmor_MHz, 6), "MHz"],
-          ["0 ppm reference", fixed(r.reference_MHz, 6), r.reference_MHz === null ? "" : "MHz"],
-          ["0 ppm − Larmor", ppmText(r.difference_ppm), r.difference_ppm === null ? "" : "ppm"],
+          ["0 ppm frequency (Ξ)", el("strong", { class: "headline" }, fixed(r.reference_MHz, 6)), r.reference_MHz === null ? "none recommended" : "MHz"],
+          ["Larmor frequency, bare nucleus", fixed(r.larmor_MHz, 6), "MHz"],
+          ["0 ppm − bare nucleus", diffText(r), r.difference_ppm === null ? "" : "ppm"],
           ["Spin", r.spin],
           ["Natural abundance", fmt(r.abundance_percent, 4), "%"],
-        ]));
+        ]), el("p", { class: "hint" }, r.difference_note));
       },
     });
 
@@ -97,14 +97,15 @@ NMR.registerPanel({
           { key: "A", label: "Nuclide", value: (row) => row.symbol.replace(/^\d+/, "") + row.symbol.match(/^\d+/)[0].padStart(3, "0"), show: (row) => nuclideLabel(row.symbol) },
           { key: "spin", label: "Spin", value: (row) => { const [n, d] = row.spin.split("/"); return Number(n) / Number(d || 1); }, show: (row) => row.spin },
           { key: "ab", label: "Abundance %", numeric: true, value: (row) => row.abundance_percent, show: (row) => fmt(row.abundance_percent, 4) },
-          { key: "nu", label: "Larmor MHz", numeric: true, value: (row) => row.larmor_MHz, show: (row) => fixed(row.larmor_MHz, 4) },
           { key: "ref", label: "0 ppm MHz", numeric: true, value: (row) => row.reference_MHz, show: (row) => fixed(row.reference_MHz, 4) },
-          { key: "dppm", label: "0 ppm − Larmor, ppm", numeric: true, value: (row) => row.difference_ppm, show: (row) => ppmText(row.difference_ppm) },
-          { key: "dc", label: "Receptivity vs ¹³C", numeric: true, value: (row) => row.receptivity_C, show: (row) => NMR.numberNode(fmt(row.receptivity_C, 3)) },
+          { key: "nu", label: "Bare nucleus MHz", numeric: true, value: (row) => row.larmor_MHz, show: (row) => fixed(row.larmor_MHz, 4) },
+          { key: "dppm", label: "0 ppm − bare, ppm", numeric: true, value: (row) => row.difference_ppm, show: diffText },
+          { key: "dc", label: "Signal vs ¹³C at natural abundance", numeric: true, value: (row) => row.receptivity_C, show: (row) => NMR.numberNode(fmt(row.receptivity_C, 3)) },
         ];
         out.replaceChildren(
           el("p", { class: "count" }, `${r.count} nuclides at ${fmt(r.field_T, 5)} T`),
           NMR.sortableTable(columns, r.table, "Magnetic nuclides at the chosen magnet"),
+          el("p", { class: "hint" }, r.difference_note, " Signal vs ¹³C: |γ|³ I(I+1) × natural abundance, relative to the same for ¹³C (equal numbers of atoms, same conditions)."),
         );
       },
     });
