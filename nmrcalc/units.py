@@ -4,7 +4,7 @@ a number with a unit (``"117500 G"``, ``"500 MHz"``, ``"19.3 Hz"``, ``"25 °C"``
 
 Every kind has one default unit, which is what the parser returns:
 field → T, frequency → MHz, coupling/offset → Hz, temperature → K,
-wavelength → nm, wavenumber → cm⁻¹, shift → ppm, time → s, percent → %.
+wavelength → nm, wavenumber → cm⁻¹, shift → ppm, time → µs (pulse lengths), percent → %.
 
 Rules (SI Brochure, 9th ed., 2019, §3 and §5.4):
 * Prefixes are case-sensitive: m = 10⁻³, M = 10⁶, k = 10³, µ (or u) = 10⁻⁶,
@@ -48,11 +48,11 @@ _KINDS: dict[str, tuple[str, str, dict[str, float]]] = {
     "wavenumber": ("a wavenumber", "cm⁻¹ (cm-1)",
                    {"cm-1": 1.0, "cm^-1": 1.0, "1/cm": 1.0, "cm⁻¹": 1.0, "/cm": 1.0}),
     "shift": ("a chemical shift", "ppm", {"ppm": 1.0, "ppb": 1e-3}),
-    "time": ("a time", "s, ms, µs (us) or ns", _prefixed("s", 1.0, "mµμun")),
+    "time": ("a time", "µs (us), ms, s or ns", _prefixed("s", 1e6, "mµμun")),
     "percent": ("a percentage", "%", {"%": 1.0}),
 }
 _DEFAULT = {"field": "T", "frequency": "MHz", "coupling": "Hz", "temperature": "K", "wavelength": "nm",
-            "wavenumber": "cm-1", "shift": "ppm", "time": "s", "percent": "%"}
+            "wavenumber": "cm-1", "shift": "ppm", "time": "µs", "percent": "%"}
 _CELSIUS = ("°c", "℃", "degc", "c", "oc", "celsius")
 _EXAMPLE = {"field": "'11.74 T' or '117400 G'", "frequency": "'500 MHz'", "coupling": "'19.3 Hz'",
             "temperature": "'298 K' or '25 °C'", "wavelength": "'254 nm'", "wavenumber": "'1700 cm-1'",

@@ -8,7 +8,7 @@ from nmrcalc.api.fields import flag, magnet, nucleus, quantity, require, spin_te
 from nmrcalc.data.elements import NAME_OF_SYMBOL
 from nmrcalc.errors import InputError
 from nmrcalc.nuclides import BIOMOLECULAR, MAGNETIC, Nuclide, lookup, receptivity, search
-from nmrcalc.physics import coupling, energy, larmor, sensitivity
+from nmrcalc.physics import acquisition, coupling, energy, larmor, sensitivity
 
 QUADRUPOLE_NOTE = ("Quadrupolar (I > 1/2): fast relaxation often broadens its lines and collapses "
                    "its splitting of partners, except at highly symmetric sites.")
@@ -208,5 +208,57 @@ def op_sensitivity(req, warnings):
             "receptivity_H": receptivity(nuc, "1H", enrich), "receptivity_C": receptivity(nuc, "13C", enrich)}
 
 
+MAX_POINTS = 1 << 24  # complex points in one acquisition window
+
+
+def op_acquisition_window(req, warnings):
+    """Window for a ppm range of one nucleus; with a 90° pulse length, what that pulse excites."""
+    nuc = nucleus(req, "nucleus")
+    field_T, proton_MHz = magnet(req, warnings)
+    low = quantity(req, "low_ppm", "shift")
+    high = quantity(req, "high_ppm", "shift")
+    points = require(req, "points")
+    pulse_us = quantity(req, "pulse_90", "time", positive=True) if req.get("pulse_90") not in (None, "") else None
+    scale = _scale(req)
+    if isinstance(points, bool) or not isinstance(points, int) or not 2 <= points <= MAX_POINTS:
+        raise InputError(f"'points' must be a whole number of complex points from 2 to {MAX_POINTS}.", "points")
+    if high == low:
+        raise InputError("The window needs two different shifts.", "high_ppm")
+    low, high = min(low, high), max(low, high)
+    ref = larmor.reference_MHz(nuc, proton_MHz, scale)
+    if ref is None:
+        ref = larmor.larmor_MHz(nuc, field_T)
+        warnings.append(f"{nuc.symbol} has no recommended reference (Ξ): 0 ppm is taken as the bare "
+                        "Larmor frequency.")
+    w = acquisition.window(ref, low, high, points)
+    result = {"nucleus": nuc.symbol, "field_T": field_T, "proton_MHz": proton_MHz, "reference_MHz": ref,
+              "low_ppm": low, "high_ppm": high, "points": points,
+              "carrier_ppm": w.carrier_ppm, "carrier_MHz": w.carrier_MHz, "carrier_offset_Hz": w.carrier_offset_Hz,
+              "spectral_width_Hz": w.width_Hz, "spectral_width_kHz": w.width_Hz / 1e3,
+              "spectral_width_ppm": high - low, "dwell_time_s": w.dwell_s, "dwell_time_us": w.dwell_s * 1e6,
+              "acquisition_time_s": w.acquisition_s, "acquisition_time_ms": w.acquisition_s * 1e3,
+              "digital_resolution_Hz": w.resolution_Hz, "digital_resolution_ppm": w.resolution_ppm,
+              "pulse_90_us": pulse_us, "nutation_Hz": None, "nutation_kHz": None, "B1_mT": None,
+              "well_excited_Hz": None, "well_excited_kHz": None, "well_excited_ppm": None, "edge_fraction": None, "edge_percent": None,
+              "well_excited_percent": acquisition.WELL_EXCITED * 100, "well_excited_level": acquisition.WELL_EXCITED}
+    if pulse_us is None:
+        return result
+    pulse = pulse_us * 1e-6
+    nu1 = acquisition.nutation_Hz(pulse)
+    half = acquisition.well_excited_Hz(pulse)
+    edge = acquisition.transverse_fraction(nu1, pulse, w.width_Hz / 2)
+    result.update({"nutation_Hz": nu1, "nutation_kHz": nu1 / 1e3,
+                   "B1_mT": acquisition.b1_T(nu1, nuc.gamma_rad_per_s_per_T) * 1e3,
+                   "well_excited_Hz": half, "well_excited_kHz": half / 1e3, "well_excited_ppm": half / ref,
+                   "edge_fraction": edge, "edge_percent": edge * 100})
+    if w.width_Hz / 2 > half:
+        warnings.append(f"The window ({w.width_Hz / 1e3:.4g} kHz) is wider than this 90° pulse excites well "
+                        f"(±{half / 1e3:.3g} kHz around the carrier, ≥ {acquisition.WELL_EXCITED:.0%} of full "
+                        f"signal): lines at the edges get {edge:.0%}. Record the range in parts with the "
+                        "carrier moved, or use a shorter (stronger) pulse.")
+    return result
+
+
 OPS = {"nuclide": op_nuclide, "nuclides": op_nuclides, "frequency": op_frequency, "ppm_hz": op_ppm_hz,
-       "scale_coupling": op_scale_coupling, "energy": op_energy, "sensitivity": op_sensitivity}
+       "scale_coupling": op_scale_coupling, "energy": op_energy, "sensitivity": op_sensitivity,
+       "acquisition_window": op_acquisition_window}

@@ -73,6 +73,47 @@ NMR.registerPanel({
       },
     });
 
+    const window_ = NMR.form({
+      id: "acqwin",
+      title: "Acquisition window",
+      intro: "From the shift range to record: carrier, spectral width, dwell and acquisition time, digital resolution; with a 90° pulse length, the nutation frequency and the range that pulse excites well.",
+      shared: [magnet],
+      fields: [
+        { id: "nucleus", label: "Nucleus", value: "13C", list: "nuclide-list" },
+        { id: "low", label: "From (ppm)", value: "-10", keys: ["low_ppm"] },
+        { id: "high", label: "To (ppm)", value: "230", keys: ["high_ppm"] },
+        { id: "points", label: "Complex points", value: "32768", inputmode: "numeric", keys: ["points"] },
+        { id: "pulse", label: "90° pulse (µs, optional)", value: "10", keys: ["pulse_90"], hint: "A bare number is in µs; or type e.g. 12.5 us, 0.01 ms." },
+      ],
+      request(v) {
+        const req = { op: "acquisition_window", nucleus: v.nucleus.value, low_ppm: v.low.value, high_ppm: v.high.value, ...NMR.magnetRequest(v.magnet) };
+        const n = v.points.value;
+        req.points = /^\d+$/.test(n) ? Number(n) : n;
+        const pulse = v.pulse.value;
+        if (pulse !== "") req.pulse_90 = pulse;
+        return req;
+      },
+      render(r, out) {
+        const rows = [
+          ["Carrier", fixed(r.carrier_MHz, 6), "MHz"],
+          ["Carrier from 0 ppm", `${fmt(r.carrier_ppm, 6)} ppm · ${fmt(r.carrier_offset_Hz, 7)} Hz`],
+          ["Spectral width", `${fmt(r.spectral_width_Hz, 7)} Hz · ${fmt(r.spectral_width_kHz, 5)} kHz`],
+          ["Dwell time", fmt(r.dwell_time_us, 5), "µs"],
+          ["Acquisition time", fmt(r.acquisition_time_ms, 5), "ms"],
+          ["Digital resolution", `${fmt(r.digital_resolution_Hz, 4)} Hz/point · ${fmt(r.digital_resolution_ppm, 4)} ppm/point`],
+        ];
+        if (r.nutation_Hz !== null) {
+          rows.push(
+            ["Nutation frequency γB₁/2π", fmt(r.nutation_kHz, 5), "kHz"],
+            ["B₁", NMR.numberNode(fmt(r.B1_mT, 4)), "mT"],
+            [`Excited well (≥ ${fmt(r.well_excited_percent, 3)} % signal)`, `± ${fmt(r.well_excited_kHz, 4)} kHz · ± ${fmt(r.well_excited_ppm, 4)} ppm`],
+            ["Signal at the window edges", fmt(r.edge_percent, 3), "%"],
+          );
+        }
+        out.replaceChildren(NMR.resultList(rows), el("p", { class: "hint" }, "Quadrature detection: dwell time = 1 / spectral width; acquisition time = points × dwell time; resolution before zero filling."));
+      },
+    });
+
     const table = NMR.form({
       id: "table",
       title: "Every nuclide at this magnet",
@@ -110,7 +151,7 @@ NMR.registerPanel({
       },
     });
 
-    container.append(el("div", { class: "cards" }, magnetCard, one.node, convert.node, table.node));
+    container.append(el("div", { class: "cards" }, magnetCard, one.node, convert.node, window_.node, table.node));
     container.lastChild.lastChild.classList.add("card-wide");
   },
 });
