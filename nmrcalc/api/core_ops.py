@@ -142,9 +142,11 @@ def op_ppm_hz(req, warnings):
 def op_scale_coupling(req, warnings):
     J = quantity(req, "J", "coupling")
     src, dst = nucleus(req, "from", magnetic=False), nucleus(req, "to", magnetic=False)
-    ratio = coupling.gamma_ratio(src, dst)
+    ratio, source = coupling.isotope_ratio(src, dst)
     J_new = J * ratio
-    result = {"J_Hz": J_new, "J_from_Hz": J, "ratio": ratio, "from": src.symbol, "to": dst.symbol,
+    result = {"J_Hz": J_new, "J_from_Hz": J, "ratio": ratio, "ratio_source": source,
+              "ratio_note": coupling.XI_RATIO_NOTE if source == "xi" else coupling.GAMMA_RATIO_NOTE,
+              "from": src.symbol, "to": dst.symbol,
               "sign_flipped": ratio < 0, "estimate": True, "reduced_coupling": None}
     warnings.append(coupling.ISOTOPE_EFFECT_NOTE)
     if ratio < 0:
