@@ -3,7 +3,8 @@ a number with a unit (``"117500 G"``, ``"500 MHz"``, ``"19.3 Hz"``, ``"25 °C"``
 ``"1.5×10^3 Hz"``, ``"−2,5"`` refused), and lists of them (``"400, 600 MHz"``).
 
 Every kind has one default unit, which is what the parser returns:
-field → T, frequency → MHz, coupling/offset → Hz, temperature → K,
+magnet_MHz → MHz and magnet_T → T (a magnet typed as a field or as its ¹H
+frequency, either way), field → T, frequency → MHz, coupling/offset → Hz, temperature → K,
 wavelength → nm, wavenumber → cm⁻¹, shift → ppm, time → µs (pulse lengths), percent → %.
 
 Rules (SI Brochure, 9th ed., 2019, §3 and §5.4):
@@ -24,6 +25,7 @@ import math
 import re
 
 from nmrcalc.errors import InputError
+from nmrcalc.nuclides import MAGNETIC
 
 _PREFIX = {"": 1.0, "m": 1e-3, "M": 1e6, "k": 1e3, "µ": 1e-6, "μ": 1e-6, "u": 1e-6, "n": 1e-9, "G": 1e9}
 
@@ -51,10 +53,11 @@ _KINDS: dict[str, tuple[str, str, dict[str, float]]] = {
     "time": ("a time", "µs (us), ms, s or ns", _prefixed("s", 1e6, "mµμun")),
     "percent": ("a percentage", "%", {"%": 1.0}),
 }
-_DEFAULT = {"field": "T", "frequency": "MHz", "coupling": "Hz", "temperature": "K", "wavelength": "nm",
+_DEFAULT = {"magnet_MHz": "MHz", "magnet_T": "T", "field": "T", "frequency": "MHz", "coupling": "Hz", "temperature": "K", "wavelength": "nm",
             "wavenumber": "cm-1", "shift": "ppm", "time": "µs", "percent": "%"}
 _CELSIUS = ("°c", "℃", "degc", "c", "oc", "celsius")
-_EXAMPLE = {"field": "'11.74 T' or '117400 G'", "frequency": "'500 MHz'", "coupling": "'19.3 Hz'",
+_EXAMPLE = {"magnet_MHz": "'500 MHz' or '11.74 T'", "magnet_T": "'11.74 T' or '500 MHz'",
+            "field": "'11.74 T' or '117400 G'", "frequency": "'500 MHz'", "coupling": "'19.3 Hz'",
             "temperature": "'298 K' or '25 °C'", "wavelength": "'254 nm'", "wavenumber": "'1700 cm-1'",
             "shift": "'77.16 ppm'", "time": "'10 µs'", "percent": "'99.8'"}
 MAX_TEXT = 100          # longest text read as one quantity
@@ -133,6 +136,8 @@ def _unit_error(value, unit: str, kind: str, field: str) -> InputError:
 
 def parse_quantity(value, kind: str, field: str) -> float:
     """Return ``value`` as a finite float in the default unit of ``kind``."""
+    if kind in ("magnet_MHz", "magnet_T"):
+        return _magnet_as(value, kind, field)
     number, unit = split_number(value, kind, field)
     if unit == "":
         return number
@@ -176,10 +181,22 @@ def parse_magnet(value, field: str) -> tuple[str, float]:
                      f"field in T, mT, G or kG, or the ¹H frequency in MHz.{hint}", field)
 
 
+def _magnet_as(value, kind: str, field: str) -> float:
+    """A magnet typed either way, as its ¹H frequency (``magnet_MHz``) or field (``magnet_T``):
+    ν_H = γ_H B0 / 2π with the tabulated γ(¹H) (IUPAC 2001; the TMS proton's shielding is
+    neglected, as when a magnet is called "500 MHz"; nmrcalc.physics.larmor does the same)."""
+    tag, x = parse_magnet(value, field)
+    want = "MHz" if kind == "magnet_MHz" else "T"
+    if tag in ("", want):
+        return x
+    gamma_h = MAGNETIC["1H"].gamma_rad_per_s_per_T
+    return gamma_h * x / (2 * math.pi) / 1e6 if want == "MHz" else 2 * math.pi * x * 1e6 / gamma_h
+
+
 _ITEM = re.compile(rf"({_NUMBER})\s*([^\d\s,;+\-.][^\s,;]*(?:\s[^\d\s,;+\-.][^\s,;]*)?)?")
 
 
-def split_list(value, field: str) -> list[str | float]:
+def split_list(value, field: str = "list") -> list[str | float]:
     """Items of a list typed as text ("400, 500, 600 MHz", "7.26 ppm; 1.2 ppm").
 
     Items are separated by commas, semicolons or spaces.  A unit may follow
@@ -217,3 +234,8 @@ def split_list(value, field: str) -> list[str | float]:
 def parse_list(value, kind: str, field: str) -> list[float]:
     """:func:`split_list`, each item read by :func:`parse_quantity` (in the default unit)."""
     return [parse_quantity(item, kind, f"{field}.{k}") for k, item in enumerate(split_list(value, field))]
+
+
+def default_unit(kind: str) -> str:
+    """The unit a bare number of ``kind`` is read in (``"frequency"`` → ``"MHz"``)."""
+    return _DEFAULT[kind]

@@ -10,8 +10,9 @@ from fractions import Fraction
 
 from nmrcalc.errors import InputError
 from nmrcalc.nuclides import Nuclide, lookup, lookup_magnetic
+from nmrcalc.physics import larmor
 from nmrcalc.physics.larmor import field_T_from_proton_MHz, proton_MHz_from_field_T
-from nmrcalc.units import parse_magnet, parse_positive, parse_quantity
+from nmrcalc.units import parse_positive, parse_quantity
 
 # The progress callback of the request being handled (set by api.handle), or None.
 PROGRESS: ContextVar = ContextVar("progress", default=None)
@@ -80,19 +81,12 @@ def magnet(req: dict, warnings: list[str]) -> tuple[float, float]:
     if not (has_spec or has_field):
         raise InputError("Give the magnet as 'spectrometer' (1H frequency, e.g. '500 MHz') or "
                          "'field' (e.g. '11.74 T').", "spectrometer", "missing_field")
-    key = "spectrometer" if has_spec else "field"
-    try:  # either key takes a field (T, G) or a 1H frequency (MHz); a bare number is in the key's unit
-        tag, x = parse_magnet(req[key], key)
-    except OverflowError:
-        tag, x = "", float("inf")
-    tag = tag or ("MHz" if has_spec else "T")
-    x = in_range(x, key)
-    if x <= 0:
-        raise InputError(f"{key}: must be greater than zero.", key)
-    if tag == "MHz":
-        proton_MHz, field_T = x, field_T_from_proton_MHz(x)
+    if has_spec:  # either key takes a field (T, G) or a 1H frequency (MHz): units "magnet_*" kinds
+        proton_MHz = bounded(req["spectrometer"], "magnet_MHz", "spectrometer", positive=True)
+        field_T = field_T_from_proton_MHz(proton_MHz)
     else:
-        field_T, proton_MHz = x, proton_MHz_from_field_T(x)
+        field_T = bounded(req["field"], "magnet_T", "field", positive=True)
+        proton_MHz = proton_MHz_from_field_T(field_T)
     if field_T > STRONGEST_MAGNET_T:
         warnings.append(f"{field_T:.4g} T is above the strongest high-resolution NMR magnets "
                         "(about 28 T, 1.2 GHz); check the value.")
@@ -103,3 +97,18 @@ def magnet(req: dict, warnings: list[str]) -> tuple[float, float]:
 
 def spin_text(spin: Fraction) -> str:
     return str(spin)
+
+
+def zero_ppm_MHz(nuc: Nuclide, field_T: float, proton_MHz: float, warnings: list[str],
+                 scale: str = "unified") -> float:
+    """The frequency of 0 ppm for ``nuc`` at this magnet: Ξ × the 1H frequency
+    (``larmor.reference_MHz``) where a reference is recommended; else the bare Larmor
+    frequency, with a warning saying so (every op uses this one helper)."""
+    ref = larmor.reference_MHz(nuc, proton_MHz, scale)
+    if ref is not None:
+        return ref
+    note = (f"{nuc.symbol} has no recommended reference (Ξ): 0 ppm is taken as the bare Larmor frequency, "
+            "so shifts in ppm are only approximate.")
+    if note not in warnings:
+        warnings.append(note)
+    return larmor.larmor_MHz(nuc, field_T)
