@@ -302,7 +302,7 @@ def _check_value(p: Param, value, where: str, everywhere: dict[str, str]) -> Non
 def _split(value, where: str, p: Param) -> list:
     if isinstance(value, str):
         from nmrcalc.units import split_list
-        value = split_list(value)
+        value = split_list(value, where)
     if not isinstance(value, list):
         raise InputError(f"{where}: give a list (or one text, comma separated).", where)
     if len(value) > p.max_items:
