@@ -11,7 +11,8 @@ from __future__ import annotations
 THIN, NBSP, MINUS = "\u2009", "\u00a0", "\u2212"
 
 # field -> API request around the typed text, the key that carries it, and how to read the
-# value back in SI from the result; "page" is (tab, input id, {select id: option}, form id).
+# value back in SI from the result; "page" is (tab, input id, {select id: option}, form id),
+# "prefill" other inputs of that form the page test sets first.
 FIELDS = {
     "magnet as 1H frequency": dict(
         request={"op": "frequency", "nucleus": "1H"}, key="spectrometer",
@@ -40,7 +41,7 @@ FIELDS = {
     "carrier": dict(
         request={"op": "ppm_hz", "nucleus": "1H", "spectrometer": "400 MHz", "ppm": "1"}, key="carrier_ppm",
         si=lambda r: r["carrier_ppm"] * 1e-6,
-        page=("magnet", "ppmhz-carrier", {"ppmhz-direction": "ppm"}, "ppmhz")),
+        page=("magnet", "ppmhz-carrier", {"ppmhz-direction": "ppm"}, "ppmhz"), prefill={"ppmhz-amount": "1"}),
     "window low end": dict(
         request={"op": "acquisition_window", "nucleus": "13C", "spectrometer": "400 MHz", "high_ppm": "230",
                  "points": 1024}, key="low_ppm",
@@ -71,6 +72,22 @@ FIELDS = {
         request={"op": "sensitivity", "nucleus": "15N"}, key="enrichment_percent",
         si=lambda r: r["abundance_percent"] / 100,
         page=("energy", "receptivity-enrichment", {}, "receptivity")),
+    "multiplet centre": dict(
+        request={"op": "multiplet", "observe": "13C", "spectrometer": "400 MHz",
+                 "groups": [{"partner": "2H", "count": 3, "J": "19.3"}]}, key="center",
+        si=lambda r: r["center_ppm"] * 1e-6,
+        page=("multiplet", "mult-center", {}, "mult")),
+    "multiplet J": dict(
+        request={"op": "multiplet", "observe": "13C", "spectrometer": "400 MHz", "center": "77",
+                 "groups": [{"partner": "2H", "count": 3}]}, key="groups.0.J",
+        si=lambda r: r["groups"][0]["J_Hz"],
+        page=("multiplet", "mult-g0-J", {}, "mult")),
+    "several fields": dict(
+        request={"op": "spin_system", "observe": "1H", "spins": [{"nucleus": "1H", "shift": "7.0"},
+                                                                  {"nucleus": "1H", "shift": "7.2"}],
+                 "couplings": [{"between": [0, 1], "J": "8"}]}, key="fields",
+        si=lambda r: r["fields"][-1]["spectrometer_MHz"] * 1e6,   # the last magnet of the list
+        page=("spins", "spins-fields", {}, "spins")),
 }
 
 TABLE = [
@@ -124,6 +141,12 @@ TABLE = [
     ("wavenumber", "1700 cm⁻¹", 1700e2),
     ("enrichment", "98", 0.98),
     ("enrichment", "98 %", 0.98),
+    ("multiplet centre", "29.8", 29.8e-6),
+    ("multiplet centre", "29.8 ppm", 29.8e-6),
+    ("multiplet J", "19.3", 19.3),
+    ("multiplet J", "19.3 Hz", 19.3),
+    ("several fields", "400 MHz, 600", 600e6),
+    ("several fields", "400, 600 MHz", 600e6),
 ]
 
 # Typed text the API refuses, with a piece of the message that must tell the user what to do.
@@ -139,5 +162,14 @@ REFUSED = [
 
 
 def request_for(field: str, text: str) -> dict:
+    """The field's request with ``text`` at its key (a dotted key reaches into a list item)."""
+    import copy
+
     spec = FIELDS[field]
-    return {**spec["request"], spec["key"]: text}
+    req = copy.deepcopy(spec["request"])
+    *path, last = spec["key"].split(".")
+    node = req
+    for part in path:
+        node = node[int(part)] if part.isdigit() else node[part]
+    node[last] = text
+    return req

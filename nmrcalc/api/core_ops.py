@@ -234,8 +234,8 @@ def op_acquisition_window(req, warnings):
               "acquisition_time_s": w.acquisition_s, "acquisition_time_ms": w.acquisition_s * 1e3,
               "digital_resolution_Hz": w.resolution_Hz, "digital_resolution_ppm": w.resolution_ppm,
               "pulse_90_us": pulse_us, "nutation_Hz": None, "nutation_kHz": None, "B1_mT": None,
-              "well_excited_Hz": None, "well_excited_kHz": None, "well_excited_ppm": None, "edge_fraction": None, "edge_percent": None,
-              "well_excited_percent": acquisition.WELL_EXCITED * 100, "well_excited_level": acquisition.WELL_EXCITED}
+              "well_excited_Hz": None, "well_excited_kHz": None, "well_excited_ppm": None, "edge_percent": None,
+              "well_excited_percent": acquisition.WELL_EXCITED * 100}
     if pulse_us is None:
         return result
     pulse = pulse_us * 1e-6
@@ -245,7 +245,7 @@ def op_acquisition_window(req, warnings):
     result.update({"nutation_Hz": nu1, "nutation_kHz": nu1 / 1e3,
                    "B1_mT": acquisition.b1_T(nu1, nuc.gamma_rad_per_s_per_T) * 1e3,
                    "well_excited_Hz": half, "well_excited_kHz": half / 1e3, "well_excited_ppm": half / ref,
-                   "edge_fraction": edge, "edge_percent": edge * 100})
+                   "edge_percent": edge * 100})
     if w.width_Hz / 2 > half:
         warnings.append(f"The window ({w.width_Hz / 1e3:.4g} kHz) is wider than this 90° pulse excites well "
                         f"(±{half / 1e3:.3g} kHz around the carrier, ≥ {acquisition.WELL_EXCITED:.0%} of full "
