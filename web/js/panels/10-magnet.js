@@ -10,7 +10,7 @@ NMR.registerPanel({
     // 0 ppm − bare nucleus, rounded by the API to the precision of the tabulated γ and Ξ
     const diffText = (row) => (row.difference_ppm === null ? "—" : `${fixed(row.difference_ppm, row.difference_decimals)} ± ${fmt(row.difference_precision_ppm, 1)}`);
     const magnet = NMR.sharedField("freqs", {
-      id: "magnet", label: "Magnet (¹H frequency or field)", value: "400.13", inputmode: "decimal",
+      id: "magnet", label: "Magnet (¹H frequency or field)", value: "400.13",
       units: NMR.MAGNET_UNITS, keys: ["spectrometer", "field"],
       hint: "The proton frequency printed on the console, or the field strength.",
     });
@@ -52,8 +52,8 @@ NMR.registerPanel({
       fields: [
         { id: "nucleus", label: "Nucleus", value: "1H", list: "nuclide-list" },
         { id: "direction", label: "Convert", kind: "select", options: [["ppm", "ppm → Hz"], ["Hz", "Hz → ppm"]] },
-        { id: "amount", label: "Value", value: "7.26", inputmode: "decimal", keys: ["ppm", "Hz"] },
-        { id: "carrier", label: "Carrier (ppm, optional)", value: "", inputmode: "decimal", keys: ["carrier_ppm"] },
+        { id: "amount", label: "Value", value: "7.26", keys: ["ppm", "Hz"] },
+        { id: "carrier", label: "Carrier (ppm, optional)", value: "", keys: ["carrier_ppm"] },
       ],
       request(v) {
         const req = { op: "ppm_hz", nucleus: v.nucleus.value, ...NMR.magnetRequest(v.magnet) };
@@ -122,9 +122,9 @@ NMR.registerPanel({
       submitLabel: "Show table",
       fields: [
         { id: "spinhalf", label: "Spin ½ only", kind: "checkbox", value: false, keys: ["spin_half_only"] },
-        { id: "minab", label: "Minimum abundance (%)", value: "", inputmode: "decimal", keys: ["min_abundance_percent"] },
-        { id: "minmhz", label: "From (MHz)", value: "", inputmode: "decimal", keys: ["min_MHz"] },
-        { id: "maxmhz", label: "To (MHz)", value: "", inputmode: "decimal", keys: ["max_MHz"] },
+        { id: "minab", label: "Minimum abundance (%)", value: "", keys: ["min_abundance_percent"] },
+        { id: "minmhz", label: "From (MHz)", value: "", keys: ["min_MHz"] },
+        { id: "maxmhz", label: "To (MHz)", value: "", keys: ["max_MHz"] },
       ],
       request(v) {
         const req = { op: "frequency", spin_half_only: v.spinhalf.value, ...NMR.magnetRequest(v.magnet) };

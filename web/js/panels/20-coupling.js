@@ -12,7 +12,7 @@ NMR.registerPanel({
       title: "Scale a coupling to another isotope",
       intro: "A coupling measured with one isotope (say ²H) predicts the coupling of the same bond with another (¹H).",
       fields: [
-        { id: "J", label: "Measured J (Hz)", value: "32", inputmode: "decimal" },
+        { id: "J", label: "Measured J (Hz)", value: "32" },
         { id: "from", label: "Measured with isotope", value: "2H", list: "nuclide-list" },
         { id: "to", label: "Predict for isotope", value: "1H", list: "nuclide-list" },
         { id: "partner", label: "Coupling partner (optional, for K)", value: "13C", list: "nuclide-list" },
