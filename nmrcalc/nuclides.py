@@ -13,8 +13,7 @@ from fractions import Fraction
 from typing import NamedTuple
 
 from nmrcalc.data.elements import NAME_OF_SYMBOL, SYMBOL_OF_NAME, Z_OF_SYMBOL
-from nmrcalc.data.nuclide_table import (
-    BIOMOLECULAR_XI, NUCLIDE_TABLE, RADIOACTIVE, SPIN_ZERO_TABLE)
+from nmrcalc.data.nuclide_table import BIOMOLECULAR_XI, NUCLIDE_TABLE, RADIOACTIVE, SPIN_ZERO_TABLE
 from nmrcalc.errors import InputError
 
 
@@ -204,7 +203,8 @@ def search(text: str, field: str = "search") -> list[Nuclide]:
     if not isinstance(text, str):
         raise InputError("'search' must be text.", field)
     if len(text) > MAX_QUERY:
-        raise InputError(f"{field}: a search is at most {MAX_QUERY} characters ({len(text)} given).", field, "too_large")
+        raise InputError(f"{field}: a search is at most {MAX_QUERY} characters ({len(text)} given).",
+                         field, "too_large")
     q = text.strip()
     if not q:
         return list(ALL.values())

@@ -53,7 +53,8 @@ _KINDS: dict[str, tuple[str, str, dict[str, float]]] = {
     "time": ("a time", "µs (us), ms, s or ns", _prefixed("s", 1e6, "mµμun")),
     "percent": ("a percentage", "%", {"%": 1.0}),
 }
-_DEFAULT = {"magnet_MHz": "MHz", "magnet_T": "T", "field": "T", "frequency": "MHz", "coupling": "Hz", "temperature": "K", "wavelength": "nm",
+_DEFAULT = {"magnet_MHz": "MHz", "magnet_T": "T", "field": "T", "frequency": "MHz", "coupling": "Hz",
+            "temperature": "K", "wavelength": "nm",
             "wavenumber": "cm-1", "shift": "ppm", "time": "µs", "percent": "%"}
 _CELSIUS = ("°c", "℃", "degc", "c", "oc", "celsius")
 _EXAMPLE = {"magnet_MHz": "'500 MHz' or '11.74 T'", "magnet_T": "'11.74 T' or '500 MHz'",

@@ -4,7 +4,7 @@ import pytest
 
 from nmrcalc.api import handle
 from nmrcalc.errors import InputError
-from nmrcalc.nuclides import element_of, lookup, search
+from nmrcalc.nuclides import element_of, lookup
 
 
 @pytest.mark.parametrize("text,symbol", [

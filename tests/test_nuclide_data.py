@@ -51,7 +51,8 @@ def test_every_xi_beside_a_separately_written_value():
 def _pairs():
     """Same-element pairs whose Ξ share a reference compound (2H/3H isotopologues of TMS count)."""
     withxi = [n for n in MAGNETIC.values() if n.xi_percent is not None]
-    return [(a, b) for a, b in combinations(withxi, 2) if a.element == b.element and _same_compound(a.reference, b.reference)]
+    return [(a, b) for a, b in combinations(withxi, 2)
+            if a.element == b.element and _same_compound(a.reference, b.reference)]
 
 
 # Ξ(b)/Ξ(a) is the ratio of two resonance frequencies in one compound, so it equals |γ_b/γ_a|
@@ -119,7 +120,8 @@ def test_copper_65_gamma_from_the_xi_ratio(mendeleev_gamma):
     assert math.isclose(cu65.gamma_rad_per_s_per_T / cu63.gamma_rad_per_s_per_T,
                         cu65.xi_percent / cu63.xi_percent, rel_tol=2e-6)
     # mendeleev's 65/63 moment ratio agrees within 1e-5
-    assert math.isclose(mendeleev_gamma["65Cu"] / mendeleev_gamma["63Cu"], cu65.xi_percent / cu63.xi_percent, rel_tol=1e-5)
+    assert math.isclose(mendeleev_gamma["65Cu"] / mendeleev_gamma["63Cu"], cu65.xi_percent / cu63.xi_percent,
+                        rel_tol=1e-5)
 
 
 def test_lead_207_gamma_kept_from_mendeleev(mendeleev_gamma):

@@ -5,11 +5,11 @@ and lists."""
 import math
 
 import pytest
+from quantity_table import FIELDS, REFUSED, TABLE, request_for
 
 from nmrcalc.api import handle
 from nmrcalc.errors import InputError
 from nmrcalc.units import parse_list, parse_quantity, split_list
-from quantity_table import FIELDS, REFUSED, TABLE, request_for
 
 
 @pytest.mark.parametrize("field,text,si", TABLE)

@@ -7,7 +7,6 @@ from __future__ import annotations
 import math
 
 from playwright.sync_api import expect
-
 from quantity_table import FIELDS, REFUSED, TABLE
 
 # Record each call to the worker and its reply, before the page's own scripts start it.
