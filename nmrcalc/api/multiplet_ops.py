@@ -13,10 +13,10 @@ from __future__ import annotations
 
 from fractions import Fraction
 
-from nmrcalc.api.fields import flag, magnet, nucleus, quantity, spin_text
+from nmrcalc.api.fields import bounded, flag, magnet, nucleus, quantity, spin_text
 from nmrcalc.errors import InputError
 from nmrcalc.nuclides import Nuclide, element_of, isotopes_of, lookup, lookup_magnetic
-from nmrcalc.physics import larmor, lineshape
+from nmrcalc.physics import coupling, larmor, lineshape
 from nmrcalc.physics.isotopologues import isotopologue_spectrum
 from nmrcalc.physics.multiplet import multiplet, multiplet_label, normalized, parse_spin, ratio_string
 
@@ -38,24 +38,39 @@ def _count(g: dict, where: str) -> int:
     return n
 
 
-def _abundances(req: dict) -> dict[str, float]:
-    raw = req.get("abundance") or {}
+def _abundances(raw, field: str, base: dict[str, float] | None = None) -> dict[str, float]:
+    """Isotope → percent from ``raw`` (a request's or a group's ``abundance``), over ``base``."""
+    raw = raw or {}
     if not isinstance(raw, dict):
-        raise InputError("'abundance' must map isotopes to percent, e.g. {\"2H\": 99.8}.", "abundance")
-    out = {}
-    for key, value in raw.items():
-        nuc = lookup(key, f"abundance.{key}")
-        pct = quantity(raw, key, "percent", prefix="abundance.")
+        raise InputError(f"'{field}' must map isotopes to percent, e.g. {{\"2H\": 99.8}}.", field)
+    out = dict(base or {})
+    for key in raw:
+        nuc = lookup(key, f"{field}.{key}")
+        pct = quantity(raw, key, "percent", prefix=f"{field}.")
         if pct < 0 or pct > 100:
-            raise InputError(f"{nuc.symbol}: an abundance must lie between 0 and 100 %.", f"abundance.{key}")
+            raise InputError(f"{nuc.symbol}: an abundance must lie between 0 and 100 %.", f"{field}.{key}")
         out[nuc.symbol] = pct
     by_element: dict[str, float] = {}
     for sym, pct in out.items():
         el = lookup(sym).element
         by_element[el] = by_element.get(el, 0.0) + pct
         if by_element[el] > 100 + 1e-9:
-            raise InputError(f"The abundances given for {el} add up to more than 100 %.", f"abundance.{sym}")
+            raise InputError(f"The abundances given for {el} add up to more than 100 %.",
+                             f"{field}.{sym}" if sym in raw else f"abundance.{sym}")
     return out
+
+
+def _min_share(req: dict) -> float:
+    """``min_share``: a fraction in [0, 1) as a bare number, or a percent when written with '%'."""
+    value = req.get("min_share")
+    if value in (None, ""):
+        return 1e-4
+    pct = isinstance(value, str) and value.strip().endswith("%")
+    x = quantity(req, "min_share", "percent")
+    share = x / 100 if pct else x
+    if not 0 <= share < 1:
+        raise InputError("min_share must be a fraction in [0, 1) or a percent such as '0.1 %'.", "min_share")
+    return share
 
 
 def _element_mixture(el: str, overrides: dict[str, float]) -> list[tuple[Nuclide, float]]:
@@ -91,15 +106,50 @@ def _effective_J(nuc: Nuclide, J_Hz: float, choice: str | None, notes: set[str])
     return 0.0
 
 
-def _read_group(g, i: int, overrides, notes) -> tuple[str, object]:
-    """('plain', (spin, count, J_Hz)) or ('site', (positions, isotopes))."""
+def equivalence_rule(observe: Nuclide, where: str) -> str:
+    """The rule stated in the result when a group is equivalent to the observed nucleus."""
+    return (f"{where}: its positions are equivalent to the observed {observe.symbol}, and equivalent nuclei do "
+            f"not split each other (first-order rule; H. Günther, NMR Spectroscopy, 3rd ed., 2013): only the "
+            f"other isotopes at these positions split the line (e.g. CH3 → singlet, CH2D → 1:1:1 triplet, "
+            f"CHD2 → 1:2:3:2:1 quintet in 1H).")
+
+
+def _isotope_shifts(g: dict, where: str, el: str, ref_MHz: float | None) -> dict[str, float]:
+    """``isotope_shift`` of a group: isotope of its element → shift per atom in Hz (ppm needs the magnet)."""
+    raw = g.get("isotope_shift") or {}
+    if not isinstance(raw, dict):
+        raise InputError("'isotope_shift' must map isotopes to a shift per atom, e.g. {\"2H\": \"-0.25 ppm\"}.",
+                         f"{where}.isotope_shift")
+    out = {}
+    for key, value in raw.items():
+        field = f"{where}.isotope_shift.{key}"
+        nuc = lookup(key, field)
+        if nuc.element != el:
+            raise InputError(f"{nuc.symbol} is not an isotope of this group's element {el}.", field)
+        if isinstance(value, str) and value.strip().lower().endswith("hz"):
+            out[nuc.symbol] = bounded(value, "coupling", field)
+        else:
+            if ref_MHz is None:
+                raise InputError("An isotope shift in ppm needs the magnet: give 'spectrometer' or 'field' "
+                                 "(or write the shift in Hz).", field, "missing_field")
+            out[nuc.symbol] = larmor.offset_Hz(ref_MHz, bounded(value, "shift", field))
+    return out
+
+
+def _read_group(g, i: int, observe: Nuclide, overrides, ref_MHz, notes, rules) -> tuple[str, object]:
+    """('plain', (spin, count, J_Hz)) or ('site', (positions, isotopes)); all of a group's keys are read here."""
     where = f"groups.{i}"
     if not isinstance(g, dict):
         raise InputError("Each group is an object with partner (or spin), count and J.", where)
     n = _count(g, where)
     J = quantity(g, "J", "coupling", prefix=f"{where}.")
     choice = _quadrupolar_choice(g, where)
+    has_own = g.get("abundance") not in (None, {}) or g.get("isotope_shift") not in (None, {})
     if g.get("spin") not in (None, "") and g.get("partner") in (None, ""):
+        for key in ("abundance", "isotope_shift", "equivalent", "J_isotope"):
+            if g.get(key) not in (None, "", {}):
+                raise InputError(f"'{key}' needs a named partner (a nuclide or an element), not a bare spin.",
+                                 f"{where}.{key}")
         try:
             spin = parse_spin(g["spin"])
         except InputError as e:
@@ -109,40 +159,72 @@ def _read_group(g, i: int, overrides, notes) -> tuple[str, object]:
     if not isinstance(partner, str) or not partner.strip():
         raise InputError("Name a partner (a nuclide such as 2H, or an element such as B) or give a spin.",
                          f"{where}.partner", "missing_field")
+    site_abundance = _abundances(g.get("abundance"), f"{where}.abundance", overrides)
     el = element_of(partner)
-    if el is None:
-        nuc = lookup_magnetic(partner, f"{where}.partner")
-        if not any(lookup(s).element == nuc.element for s in overrides):
-            return "plain", (nuc.spin, n, _effective_J(nuc, J, choice, notes))
-        el, j_iso = nuc.element, nuc
+    named = lookup_magnetic(partner, f"{where}.partner") if el is None else None
+    el = el or named.element
+    equivalent = g.get("equivalent")
+    if equivalent is None:
+        equivalent = named is None and el == observe.element
+    elif not isinstance(equivalent, bool):
+        raise InputError("'equivalent' must be true or false.", f"{where}.equivalent")
+    if equivalent:
+        if el != observe.element:
+            raise InputError(f"Partners of element {el} cannot be equivalent to the observed {observe.symbol}.",
+                             f"{where}.equivalent")
+        rules.append(equivalence_rule(observe, f"Group {i + 1}"))
+    shifts = _isotope_shifts(g, where, el, ref_MHz)
+    if named is not None:
+        if equivalent and named is observe:
+            return "plain", (named.spin, n, 0.0)
+        if not has_own and not any(lookup(s).element == el for s in overrides):
+            return "plain", (named.spin, n, _effective_J(named, J, choice, notes))
+        j_iso = named
+        if not any(lookup(s).element == el for s in site_abundance):
+            site_abundance = {**site_abundance, named.symbol: 100.0}
     else:
-        magnetic = [x for x in isotopes_of(el) if x.magnetic and x.abundance_percent]
+        magnetic = [x for x in isotopes_of(el) if x.magnetic and x.abundance_percent
+                    and not (equivalent and x is observe)]
         if not magnetic:
             raise InputError(f"{el} has no magnetic isotope at natural abundance: no splitting.",
                              f"{where}.partner", "not_magnetic")
         if g.get("J_isotope") in (None, ""):
             j_iso = max(magnetic, key=lambda x: x.abundance_percent)
-            if len(magnetic) > 1:
-                notes.add(f"J of the {el} group is taken as J to {j_iso.symbol} (the most abundant magnetic isotope).")
+            if len(magnetic) > 1 or equivalent:
+                notes.add(f"J of the {el} group is taken as J to {j_iso.symbol} (the most abundant magnetic "
+                          f"isotope{' other than the observed one' if equivalent else ''}).")
         else:
             j_iso = lookup_magnetic(g["J_isotope"], f"{where}.J_isotope")
             if j_iso.element != el:
                 raise InputError(f"J_isotope must be an isotope of {el}.", f"{where}.J_isotope")
+            if equivalent and j_iso is observe:
+                raise InputError(f"J to {j_iso.symbol} cannot be seen: these positions are equivalent to the "
+                                 "observed nucleus. Give J to another isotope (e.g. 2H), or set equivalent to false.",
+                                 f"{where}.J_isotope")
+    mixture = _element_mixture(el, site_abundance)
+    present = {nuc.symbol for nuc, _ in mixture}
+    for sym in shifts:
+        if sym not in present:
+            raise InputError(f"{sym} is not present in this group's isotope mixture, so its shift would never apply.",
+                             f"{where}.isotope_shift.{sym}")
     isotopes = []
-    for nuc, fraction in _element_mixture(el, overrides):
-        if nuc.magnetic:
-            J_iso = J * nuc.gamma_rad_per_s_per_T / j_iso.gamma_rad_per_s_per_T
+    for nuc, fraction in mixture:
+        shift = shifts.get(nuc.symbol, 0.0)
+        if equivalent and nuc is observe:  # present, but never splits the line
+            isotopes.append((nuc.symbol, nuc.spin, fraction, 0.0, shift))
+        elif nuc.magnetic:
+            J_iso = J if nuc is j_iso else coupling.scale_J_Hz(J, j_iso, nuc)
             if nuc is not j_iso and J != 0:
                 notes.add(f"J to {nuc.symbol} is derived from J to {j_iso.symbol} by the γ ratio: an estimate "
                           "(isotope effects of about 1–2 %).")
-            isotopes.append((nuc.symbol, nuc.spin, fraction, _effective_J(nuc, J_iso, choice, notes)))
+            isotopes.append((nuc.symbol, nuc.spin, fraction, _effective_J(nuc, J_iso, choice, notes), shift))
         else:
-            isotopes.append((nuc.symbol, 0, fraction, 0.0))
-    spin0 = [iso for iso in isotopes if iso[1] == 0]
-    lumped = [iso for iso in isotopes if iso[1] != 0]
+            isotopes.append((nuc.symbol, 0, fraction, 0.0, shift))
+    lumped = [iso for iso in isotopes if iso[1] != 0 or iso[4]]
+    spin0 = [iso for iso in isotopes if iso not in lumped]
     if spin0:
-        lumped.append((f"spin-0 {el}", 0, sum(iso[2] for iso in spin0), 0.0))
-    return "site", (n, [(lab, s, repr(f), j) for lab, s, f, j in lumped])
+        lumped.append((f"spin-0 {el}", 0, sum(iso[2] for iso in spin0), 0.0, 0.0))
+    return "site", (n, [(lab, s, repr(f), j, sh) for lab, s, f, j, sh in lumped])
 
 
 def _line_dicts(lines, ref_MHz, center_ppm):
@@ -150,7 +232,7 @@ def _line_dicts(lines, ref_MHz, center_ppm):
     for x, y in lines:
         d = {"Hz": x, "intensity": y}
         if center_ppm is not None:
-            d["ppm"] = center_ppm + x / ref_MHz
+            d["ppm"] = center_ppm + larmor.shift_ppm(ref_MHz, x)
         out.append(d)
     return out
 
@@ -171,13 +253,6 @@ def op_multiplet(req, warnings):
     groups = req.get("groups", [])
     if not isinstance(groups, list):
         raise InputError("'groups' must be a list of partner groups.", "groups")
-    overrides = _abundances(req)
-    notes: set[str] = set()
-    plain, sites = [], []
-    for i, g in enumerate(groups):
-        kind, value = _read_group(g, i, overrides, notes)
-        (plain if kind == "plain" else sites).append(value)
-
     ref_MHz = center = None
     has_magnet = req.get("spectrometer") not in (None, "") or req.get("field") not in (None, "")
     if has_magnet:
@@ -187,11 +262,19 @@ def op_multiplet(req, warnings):
         if ref_MHz is None:
             raise InputError("A centre in ppm needs the magnet: give 'spectrometer' or 'field'.", "spectrometer", "missing_field")
         center = quantity(req, "center", "shift")
+    overrides = _abundances(req.get("abundance"), "abundance")
+    min_share = _min_share(req)
+    notes: set[str] = set()
+    rules: list[str] = []
+    plain, sites = [], []
+    for i, g in enumerate(groups):
+        kind, value = _read_group(g, i, observe, overrides, ref_MHz, notes, rules)
+        (plain if kind == "plain" else sites).append(value)
 
     result = {"observe": observe.symbol,
-              "groups": [{"spin": spin_text(Fraction(s)), "count": c, "J_Hz": j} for s, c, j in plain]}
+              "groups": [{"spin": spin_text(Fraction(s)), "count": c, "J_Hz": j} for s, c, j in plain],
+              "rules": rules}
     if sites:
-        min_share = quantity(req, "min_share", "percent", default=1e-4)
         try:
             spec = isotopologue_spectrum(sites, plain, min_share)
         except InputError as e:  # the physics names its element sites "sites"; the request calls them groups
@@ -200,7 +283,9 @@ def op_multiplet(req, warnings):
         lines = spec.lines
         result["isotopologues"] = [
             {"label": s.label, "share": float(s.share), "multiplet": s.multiplet_label,
-             "ratio": ratio_string(s.sticks), "lines": _line_dicts(s.lines, ref_MHz, center)}
+             "ratio": ratio_string(s.sticks), "center_Hz": s.center_Hz,
+             "center_ppm": None if center is None else center + larmor.shift_ppm(ref_MHz, s.center_Hz),
+             "lines": _line_dicts(s.lines, ref_MHz, center)}
             for s in spec.species]
         result["dropped_share"] = float(spec.dropped_share)
         if len(spec.species) == 1:
