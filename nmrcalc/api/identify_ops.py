@@ -35,7 +35,7 @@ from nmrcalc.api.fields import bounded, in_range, magnet, nucleus, quantity
 from nmrcalc.api.peaklist import parse_peaklist
 from nmrcalc.errors import InputError
 from nmrcalc.nuclides import element_of, isotopes_of, lookup_magnetic
-from nmrcalc.physics import larmor
+from nmrcalc.physics import coupling, larmor
 from nmrcalc.physics.identify import (
     MAX_COUNT, MAX_GROUPS, MAX_INPUT_LINES, PartnerOption, identify, reference_isotope, spin_option)
 from nmrcalc.physics.multiplet import parse_spin
@@ -76,7 +76,7 @@ def _partner_option(text, where: str, notes: list[str]) -> PartnerOption:
         notes.append(f"Partner {el} is taken as {ref.symbol} ({ref.abundance_percent:g} % of {el}).")
         return PartnerOption(ref.symbol, "nuclide", ((ref.symbol, ref.spin, Fraction(1), 1.0),))
     isotopes = [(n.symbol, n.spin, Fraction(repr(n.abundance_percent / total)),
-                 abs(n.gamma_rad_per_s_per_T / ref.gamma_rad_per_s_per_T)) for n in magnetic]
+                 abs(coupling.gamma_ratio(ref, n))) for n in magnetic]
     spin0 = sum(n.abundance_percent for n in natural if not n.magnetic) / total
     if spin0 > 0:
         isotopes.append((f"spin-0 {el}", Fraction(0), Fraction(repr(spin0)), 0.0))
@@ -201,7 +201,7 @@ def op_identify(req, warnings):
     units = {u for *_, u in raw}
     if len(units) > 1:
         notes.append("Positions mix ppm and Hz: ppm are converted with the observed nuclide's reference frequency.")
-    lines_Hz = [(x * ref_MHz if u == "ppm" else x, y) for x, y, u in raw]
+    lines_Hz = [(larmor.offset_Hz(ref_MHz, x) if u == "ppm" else x, y) for x, y, u in raw]
 
     partners = req.get("partners")
     if partners in (None, "", []):
@@ -244,7 +244,7 @@ def op_identify(req, warnings):
         for x, w in cand.lines:
             line = {"Hz": cand.center_Hz + x, "intensity": cand.scale * w * peak}
             if ref_MHz is not None:
-                line["ppm"] = (cand.center_Hz + x) / ref_MHz
+                line["ppm"] = larmor.shift_ppm(ref_MHz, cand.center_Hz + x)
             predicted.append(line)
         candidates.append({"groups": groups, "label": cand.label, "score": cand.score,
                            "position_rms": cand.position_rms, "intensity_residual": cand.intensity_residual,
@@ -252,10 +252,10 @@ def op_identify(req, warnings):
                            "lines": predicted})
     best = found.candidates[0]
     return {"observe": observe.symbol if observe else None,
-            "observed": [{"Hz": x, "intensity": y, **({"ppm": x / ref_MHz} if ref_MHz else {})} for x, y in lines_Hz],
+            "observed": [{"Hz": x, "intensity": y, **({"ppm": larmor.shift_ppm(ref_MHz, x)} if ref_MHz else {})} for x, y in lines_Hz],
             "unit": sorted(units)[0] if len(units) == 1 else "mixed",
             "tolerance_Hz": tol, "candidates": candidates, "label": best.label,
-            "center_Hz": best.center_Hz, "center_ppm": best.center_Hz / ref_MHz if ref_MHz else None,
+            "center_Hz": best.center_Hz, "center_ppm": larmor.shift_ppm(ref_MHz, best.center_Hz) if ref_MHz else None,
             "observe_MHz": ref_MHz, "searched": found.evaluated, "complete": found.complete,
             "notes": notes + found.notes}
 
