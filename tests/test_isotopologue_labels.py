@@ -148,3 +148,17 @@ def test_isotope_shift_errors():
     assert run({**base, "groups": [{**base["groups"][0], "isotope_shift": {"2H": "-25 Hz"}}]})
     wrong = {**base["groups"][0], "isotope_shift": {"13C": "-25 Hz"}}
     assert handle({"op": "multiplet", **base, "groups": [wrong]})["error"]["field"] == "groups.0.isotope_shift.13C"
+
+
+def test_typical_isotope_shifts_offered_never_applied():
+    r = run({"observe": "13C", "spectrometer": "400 MHz", "center": "30 ppm", "min_share": 0,
+             "groups": [{"partner": "H", "count": 3, "J": "19.3 Hz", "J_isotope": "2H", "abundance": {"2H": 60}}]})
+    offers = r["result"]["isotope_shift_suggestions"]
+    assert {o["bonds"] for o in offers} == {1, 2} and all("from memory" in o["source"] for o in offers)
+    assert all(i["center_Hz"] == 0 for i in r["result"]["isotopologues"])  # not applied
+    given = run({"observe": "13C", "spectrometer": "400 MHz", "center": "30 ppm",
+                 "groups": [{"partner": "H", "count": 3, "J": "19.3 Hz", "J_isotope": "2H", "abundance": {"2H": 60},
+                             "isotope_shift": {"2H": "-0.3 ppm"}}]})
+    assert given["result"]["isotope_shift_suggestions"] == []
+    atoms = {i["label"]: i["atoms"] for i in given["result"]["isotopologues"]}
+    assert atoms["2H2 1H1"] == [{"2H": 2, "1H": 1}]

@@ -14,6 +14,7 @@ from __future__ import annotations
 from fractions import Fraction
 
 from nmrcalc.api.fields import bounded, flag, magnet, nucleus, quantity, spin_text
+from nmrcalc.data.isotope_shifts import ISOTOPE_SHIFTS
 from nmrcalc.errors import InputError
 from nmrcalc.nuclides import Nuclide, element_of, isotopes_of, lookup, lookup_magnetic
 from nmrcalc.physics import coupling, larmor, lineshape
@@ -136,7 +137,7 @@ def _isotope_shifts(g: dict, where: str, el: str, ref_MHz: float | None) -> dict
     return out
 
 
-def _read_group(g, i: int, observe: Nuclide, overrides, ref_MHz, notes, rules) -> tuple[str, object]:
+def _read_group(g, i: int, observe: Nuclide, overrides, ref_MHz, notes, rules, suggestions) -> tuple[str, object]:
     """('plain', (spin, count, J_Hz)) or ('site', (positions, isotopes)); all of a group's keys are read here."""
     where = f"groups.{i}"
     if not isinstance(g, dict):
@@ -203,6 +204,10 @@ def _read_group(g, i: int, observe: Nuclide, overrides, ref_MHz, notes, rules) -
                                  f"{where}.J_isotope")
     mixture = _element_mixture(el, site_abundance)
     present = {nuc.symbol for nuc, _ in mixture}
+    if not shifts:
+        suggestions.extend({"group": i, **row} for row in ISOTOPE_SHIFTS
+                           if row["observed"] == observe.symbol and row["isotope"] in present
+                           and (equivalent or observe.symbol != "1H"))
     for sym in shifts:
         if sym not in present:
             raise InputError(f"{sym} is not present in this group's isotope mixture, so its shift would never apply.",
@@ -266,14 +271,15 @@ def op_multiplet(req, warnings):
     min_share = _min_share(req)
     notes: set[str] = set()
     rules: list[str] = []
+    suggestions: list[dict] = []
     plain, sites = [], []
     for i, g in enumerate(groups):
-        kind, value = _read_group(g, i, observe, overrides, ref_MHz, notes, rules)
+        kind, value = _read_group(g, i, observe, overrides, ref_MHz, notes, rules, suggestions)
         (plain if kind == "plain" else sites).append(value)
 
     result = {"observe": observe.symbol,
               "groups": [{"spin": spin_text(Fraction(s)), "count": c, "J_Hz": j} for s, c, j in plain],
-              "rules": rules}
+              "rules": rules, "isotope_shift_suggestions": suggestions}
     if sites:
         try:
             spec = isotopologue_spectrum(sites, plain, min_share)
@@ -283,7 +289,7 @@ def op_multiplet(req, warnings):
         lines = spec.lines
         result["isotopologues"] = [
             {"label": s.label, "share": float(s.share), "multiplet": s.multiplet_label,
-             "ratio": ratio_string(s.sticks), "center_Hz": s.center_Hz,
+             "ratio": ratio_string(s.sticks), "center_Hz": s.center_Hz, "atoms": list(s.atoms),
              "center_ppm": None if center is None else center + larmor.shift_ppm(ref_MHz, s.center_Hz),
              "lines": _line_dicts(s.lines, ref_MHz, center)}
             for s in spec.species]

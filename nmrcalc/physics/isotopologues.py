@@ -91,6 +91,7 @@ class Isotopologue(NamedTuple):
     sticks: list[tuple[float, int]]
     lines: list[tuple[float, float]]
     center_Hz: float = 0.0
+    atoms: tuple[dict[str, int], ...] = ()
 
 
 class IsotopologueSpectrum(NamedTuple):
@@ -284,7 +285,10 @@ def isotopologue_spectrum(sites: Iterable, groups: Iterable = (), min_share: flo
         except InputError as err:
             raise InputError(f"isotopologue {label}: {err.message}", field="sites", code=err.code) from None
         lines = [(x + center_Hz, y) for x, y in normalized(sticks)]
-        species.append(Isotopologue(label, share, tuple(all_groups), multiplet_label(all_groups), sticks, lines, center_Hz))
+        atoms = tuple({iso.label: c for iso, c in zip(site.isotopes, counts) if c}
+                      for site, (counts, _) in zip(checked_sites, choice))
+        species.append(Isotopologue(label, share, tuple(all_groups), multiplet_label(all_groups), sticks, lines,
+                                    center_Hz, atoms))
     if not species:
         raise InputError(f"every isotopologue is below min_share = {min_share}", field="min_share")
     species.sort(key=lambda s: s.share, reverse=True)
