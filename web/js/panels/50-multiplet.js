@@ -127,6 +127,11 @@ NMR.registerPanel({
           box.append(
             rowInput(`${base}-jiso`, "J belongs to isotope (elements)", g.J_isotope || "", `${key}.J_isotope`, (v) => { g.J_isotope = v; }, { list: "nuclide-list", placeholder: "default" }),
             rowSelect(`${base}-quad`, "Quadrupolar splitting", g.quadrupolar || "", [["", "Usual choice"], ["resolved", "Resolved"], ["collapsed", "Collapsed"]], `${key}.quadrupolar`, (v) => { g.quadrupolar = v; }),
+            rowSelect(`${base}-equiv`, "Same site as the observed nucleus?", g.equivalent || "", [["", "Automatic (yes for its own element)"], ["yes", "Yes: equivalent, no splitting by its isotope"], ["no", "No: a neighbouring group"]], `${key}.equivalent`, (v) => { g.equivalent = v; }),
+            rowInput(`${base}-siso`, "Enrichment here: isotope", g.site_isotope || "", `${key}.abundance`, (v) => { g.site_isotope = v; }, { list: "nuclide-list", placeholder: "e.g. 2H" }),
+            rowInput(`${base}-spct`, "Enrichment here (%)", g.site_percent || "", `${key}.abundance.pct`, (v) => { g.site_percent = v; }, { inputmode: "decimal", placeholder: "request default" }),
+            rowInput(`${base}-shiso`, "Isotope shift: isotope", g.shift_isotope || "", `${key}.isotope_shift`, (v) => { g.shift_isotope = v; }, { list: "nuclide-list", placeholder: "e.g. 2H" }),
+            rowInput(`${base}-shppm`, "Shift per atom (ppm)", g.shift_ppm || "", `${key}.isotope_shift.ppm`, (v) => { g.shift_ppm = v; }, { inputmode: "decimal", placeholder: "none" }),
           );
         }
         box.append(el("div", { class: "field" }, remove));
@@ -199,9 +204,10 @@ NMR.registerPanel({
     const spectrumBox = el("div");
     const spectrum = NMRPlot.create(spectrumBox, { label: "Line-shape spectrum", height: 300, fileName: "multiplet-spectrum" });
     spectrum.node.id = "mult-spectrum";
+    const rulesBox = el("div", { id: "mult-rules" });
     const isoBox = el("div", { id: "mult-isotopologues" });
     const linesBox = el("div", { id: "mult-lines" });
-    out.append(headline, ratio, warn, plots, spectrumTitle, spectrumBox, isoBox, linesBox);
+    out.append(headline, ratio, warn, rulesBox, plots, spectrumTitle, spectrumBox, isoBox, linesBox);
     card.append(out);
     // bench notebook: pin / share this result (web/js/notebook.js)
     const pin = NMR.pinSource({
@@ -218,6 +224,9 @@ NMR.registerPanel({
       else req.partner = (g.partner || "").trim();
       if (g.kind !== "spin" && (g.J_isotope || "").trim()) req.J_isotope = g.J_isotope.trim();
       if (g.kind !== "spin" && g.quadrupolar) req.quadrupolar = g.quadrupolar;
+      if (g.kind !== "spin" && g.equivalent) req.equivalent = g.equivalent === "yes";
+      if (g.kind !== "spin" && (g.site_isotope || "").trim()) req.abundance = { [g.site_isotope.trim()]: (g.site_percent || "").trim() };
+      if (g.kind !== "spin" && (g.shift_isotope || "").trim()) req.isotope_shift = { [g.shift_isotope.trim()]: `${(g.shift_ppm || "").trim()} ppm` };
       return req;
     }
     function request() {
@@ -277,7 +286,29 @@ NMR.registerPanel({
       return i === 0 ? "" : ` — ${role(r, i)}`;
     }
 
+    function renderRules(r) {
+      const offers = (r.isotope_shift_suggestions || []).map((o) => {
+        const button = el("button", { type: "button", class: "small-button", "data-group": o.group },
+          `Use ${o.shift_ppm} ppm per ${o.isotope} in group ${o.group + 1}`);
+        button.addEventListener("click", () => {
+          const g = rows.groups[o.group];
+          if (!g) return;
+          g.shift_isotope = o.isotope;
+          g.shift_ppm = String(o.shift_ppm);
+          save();
+          drawRows();
+          run();
+        });
+        return el("li", {}, button, ` ${o.note} — ${o.source}.`);
+      });
+      rulesBox.replaceChildren(
+        ...(r.rules || []).map((text) => el("p", { class: "hint rule" }, text)),
+        ...(offers.length ? [el("p", { class: "hint" }, "Isotope shifts are not applied unless you set them. Typical values, one tap to use:"), el("ul", { class: "offers" }, ...offers)] : []),
+      );
+    }
+
     function render(r, warnings) {
+      renderRules(r);
       headline.textContent = r.label;
       ratio.textContent = r.ratio ? `Intensity ratio ${r.ratio}` : "Several isotopologues: see the table below for each pattern and share.";
       warn.replaceChildren(...warnings.map((text) => el("li", {}, text)));
@@ -318,6 +349,7 @@ NMR.registerPanel({
           { key: "share", label: "Share (%)", numeric: true, value: (x) => x.share, show: (x) => short(x.share * 100, 5) },
           { key: "mult", label: "Pattern", value: (x) => x.multiplet, show: (x) => x.multiplet },
           { key: "ratio", label: "Ratio", value: (x) => x.ratio, show: (x) => x.ratio },
+          { key: "centre", label: ppm ? "Centre (ppm)" : "Centre (Hz)", numeric: true, value: (x) => x.center_Hz, show: (x) => (ppm ? NMR.fixed(x.center_ppm, 4) : NMR.fixed(x.center_Hz, 3)) },
           { key: "role", label: "Role", value: (x) => x.role, show: (x) => x.role },
         ];
         const isoRows = r.isotopologues.map((x, i) => ({ ...x, role: role(r, i) }));
