@@ -7,7 +7,7 @@ from playwright.sync_api import expect
 
 from nmrcalc.api import handle
 
-SHOTS = Path(__file__).resolve().parents[2] / "bench_results"
+SHOTS = Path(__file__).resolve().parents[2] / "bench_results" / "tmp"  # screenshots to look at, not kept
 
 
 def _open(dist, open_page):
@@ -42,7 +42,7 @@ def test_labelled_methyl_and_isotope_shift(dist, open_page):
     rows = page.locator("#mult-isotopologues tbody tr")
     expect(rows).to_have_count(len(want["isotopologues"]))
     expect(rows.first).to_contain_text(f"{want['isotopologues'][0]['center_ppm']:.4f}")
-    SHOTS.mkdir(exist_ok=True)
+    SHOTS.mkdir(parents=True, exist_ok=True)
     page.locator("#card-mult").screenshot(path=str(SHOTS / "multiplet-isotope-shift.png"))
 
     # observed 1H of a partly deuterated methyl: the rule is stated
