@@ -11,14 +11,18 @@ isotope) and the couplings to the other isotopes follow from J ∝ γ
 
 from __future__ import annotations
 
+import math
+import re
+
 from fractions import Fraction
 
-from nmrcalc.api.fields import bounded, flag, magnet, nucleus, quantity, spin_text
+from nmrcalc.api.fields import bounded, flag, in_range, magnet, nucleus, quantity, spin_text
 from nmrcalc.data.isotope_shifts import ISOTOPE_SHIFTS
 from nmrcalc.errors import InputError
 from nmrcalc.nuclides import Nuclide, element_of, isotopes_of, lookup, lookup_magnetic
 from nmrcalc.physics import coupling, larmor, lineshape
 from nmrcalc.physics.isotopologues import isotopologue_spectrum
+from nmrcalc.physics.quadrupolar_relaxation import collapse_shape
 from nmrcalc.physics.multiplet import multiplet, multiplet_label, normalized, parse_spin, ratio_string
 
 # Quadrupolar partners whose splitting is usually seen (common practice, no source):
@@ -137,6 +141,24 @@ def _isotope_shifts(g: dict, where: str, el: str, ref_MHz: float | None) -> dict
     return out
 
 
+_TIME_UNITS = {"s": 1.0, "ms": 1e-3, "us": 1e-6, "µs": 1e-6, "μs": 1e-6}
+MAX_COLLAPSE_POINTS = 20000
+
+
+def _seconds(value, field: str) -> float:
+    """A time such as ``"2 ms"`` (s, ms, µs; a bare number is seconds) in seconds, > 0."""
+    text = value.strip() if isinstance(value, str) else value
+    unit = "s"
+    if isinstance(text, str):
+        m = re.fullmatch(r"([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*([a-zµμ]*)", text)
+        if not m or (m.group(2) or "s") not in _TIME_UNITS:
+            raise InputError(f"{field}: write a time such as '2 ms' (units s, ms, µs).", field)
+        text, unit = float(m.group(1)), m.group(2) or "s"
+    if isinstance(text, bool) or not isinstance(text, (int, float)) or not math.isfinite(text) or text <= 0:
+        raise InputError(f"{field}: a relaxation time must be a positive number of seconds.", field)
+    return in_range(float(text) * _TIME_UNITS[unit], field)
+
+
 def _read_group(g, i: int, observe: Nuclide, overrides, ref_MHz, notes, rules, suggestions) -> tuple[str, object]:
     """('plain', (spin, count, J_Hz)) or ('site', (positions, isotopes)); all of a group's keys are read here."""
     where = f"groups.{i}"
@@ -175,6 +197,16 @@ def _read_group(g, i: int, observe: Nuclide, overrides, ref_MHz, notes, rules, s
                              f"{where}.equivalent")
         rules.append(equivalence_rule(observe, f"Group {i + 1}"))
     shifts = _isotope_shifts(g, where, el, ref_MHz)
+    if g.get("T1") not in (None, ""):
+        if named is None or not named.quadrupolar or has_own or any(lookup(s).element == el for s in overrides):
+            raise InputError("T1 applies to one quadrupolar nuclide partner (such as 14N or 11B) at its own "
+                             "abundance; name the isotope as the partner.", f"{where}.T1")
+        if n != 1:
+            raise InputError("T1 is supported for a single quadrupolar partner (count 1).", f"{where}.count")
+        if choice is not None:
+            raise InputError("Give either T1 or quadrupolar, not both: T1 decides how far the splitting collapses.",
+                             f"{where}.quadrupolar")
+        return "relaxing", (named.spin, J, _seconds(g["T1"], f"{where}.T1"), i)
     if named is not None:
         if equivalent and named is observe:
             return "plain", (named.spin, n, 0.0)
@@ -253,6 +285,22 @@ def _tree(plain_groups) -> list[list[float]] | None:
     return levels
 
 
+def _collapsed(grid, others, relaxing, width: float, shape: str):
+    """The sampled spectrum with the relaxing partner's pattern (Lorentzian lines only) instead of sticks."""
+    spin, J, T1, i = relaxing
+    if shape != "lorentzian":
+        raise InputError("A partly collapsed pattern (T1) is drawn with Lorentzian lines only.", "shape")
+    sticks = normalized(multiplet(others)) if others else [(0.0, 1.0)]
+    if len(grid.x_Hz) * len(sticks) > MAX_COLLAPSE_POINTS * 50 or len(grid.x_Hz) > MAX_COLLAPSE_POINTS:
+        raise InputError("Too many points for a partly collapsed spectrum: widen the lines or drop a group.",
+                         f"groups.{i}.T1", "too_large")
+    y = [0.0] * len(grid.x_Hz)
+    for x0, w in sticks:
+        for k, v in enumerate(collapse_shape([x - x0 for x in grid.x_Hz], J, spin, T1, width)):
+            y[k] += w * v
+    return lineshape.SampledSpectrum(grid.x_Hz, y, grid.step_Hz)
+
+
 def op_multiplet(req, warnings):
     observe = nucleus(req, "observe")
     groups = req.get("groups", [])
@@ -272,10 +320,15 @@ def op_multiplet(req, warnings):
     notes: set[str] = set()
     rules: list[str] = []
     suggestions: list[dict] = []
-    plain, sites = [], []
+    plain, sites, relaxing = [], [], []
     for i, g in enumerate(groups):
         kind, value = _read_group(g, i, observe, overrides, ref_MHz, notes, rules, suggestions)
-        (plain if kind == "plain" else sites).append(value)
+        {"plain": plain, "site": sites, "relaxing": relaxing}[kind].append(value)
+    if len(relaxing) > 1 or (relaxing and sites):
+        raise InputError("T1 (partial collapse) is supported for one quadrupolar partner, beside nuclide or "
+                         "spin partners only (no element mixtures).", f"groups.{relaxing[-1][3]}.T1")
+    others = list(plain)
+    plain = plain + [(spin, 1, J) for spin, J, _, _ in relaxing]
 
     result = {"observe": observe.symbol,
               "groups": [{"spin": spin_text(Fraction(s)), "count": c, "J_Hz": j} for s, c, j in plain],
@@ -316,6 +369,8 @@ def op_multiplet(req, warnings):
         shape = req.get("shape", "lorentzian")
         try:
             total = lineshape.sample_spectrum(lines, width, shape)
+            if relaxing:
+                total = _collapsed(total, others, relaxing[0], width, shape)
             window = (total.x_Hz[0], total.x_Hz[-1])
             traces = [{"label": lab, "share": share,
                        "y": [share * v for v in lineshape.sample_spectrum(ls, width, shape, window_Hz=window).y]}
@@ -326,6 +381,15 @@ def op_multiplet(req, warnings):
         if center is not None:
             spectrum["x_ppm"] = lineshape.hz_to_ppm(total.x_Hz, ref_MHz, center)
         result["spectrum"] = spectrum
+    if relaxing:
+        spin, J, T1, i = relaxing[0]
+        result["partial_collapse"] = {
+            "group": i, "T1_s": T1, "J_Hz": J, "spin": spin_text(spin), "two_pi_J_T1": 2 * math.pi * abs(J) * T1,
+            "source": "Pople, Mol. Phys. 1 (1958) 168 (I = 1); Suzuki & Kubo, Mol. Phys. 7 (1964) 201 (any I); "
+                      "extreme narrowing"}
+        warnings.append(f"Group {i + 1}: the lines and ratio are the resolved pattern; the spectrum shows it partly "
+                        f"collapsed by the partner's relaxation (T1 = {T1:.3g} s, 2πJT1 = {2 * math.pi * abs(J) * T1:.3g}; "
+                        "resolved when ≫ 1, one line when ≪ 1).")
     warnings.extend(sorted(notes))
     return result
 
