@@ -383,6 +383,7 @@ def op_multiplet(req, warnings):
         result["spectrum"] = spectrum
     if relaxing:
         spin, J, T1, i = relaxing[0]
+        result["label"] += " (the spectrum shows it partly collapsed by relaxation)"
         result["partial_collapse"] = {
             "group": i, "T1_s": T1, "J_Hz": J, "spin": spin_text(spin), "two_pi_J_T1": 2 * math.pi * abs(J) * T1,
             "source": "Pople, Mol. Phys. 1 (1958) 168 (I = 1); Suzuki & Kubo, Mol. Phys. 7 (1964) 201 (any I); "

@@ -71,3 +71,15 @@ def test_solvent_search_and_deuteration(dist, open_page):
     first.locator("button").click()
     expect(page.locator("#tab-multiplet")).to_have_attribute("aria-selected", "true")
     expect(page.locator("#mult-ratio")).to_contain_text("1:2:3:2:1")
+
+
+def test_T1_slider_collapses_the_spectrum(dist, open_page):
+    page = _open(dist, open_page)
+    page.set_viewport_size({"width": 1024, "height": 1366})
+    page.click("#tab-multiplet")
+    page.get_by_role("button", name="Made-up ammonium salt: 14N splitting partly collapsed").click()
+    expect(page.locator("#mult-collapse")).to_contain_text("T1 = 5 ms")
+    page.locator("#mult-g0-t1-slider").fill("-1")
+    expect(page.locator("#mult-g0-t1")).to_have_value("0.1")
+    expect(page.locator("#mult-collapse")).to_contain_text("T1 = 0.1 ms")
+    page.locator("#card-mult").screenshot(path=str(SHOTS / "multiplet-T1.png"))

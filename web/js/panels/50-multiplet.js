@@ -35,6 +35,12 @@ NMR.registerPanel({
         abundance: [],
       },
       {
+        name: "Made-up ammonium salt: 14N splitting partly collapsed",
+        fixed: { observe: "1H", magnet: ["400", "MHz"], center: "7.1", linewidth: "1", shape: "lorentzian" },
+        groups: [{ kind: "partner", partner: "14N", count: "1", J: "52", J_isotope: "", quadrupolar: "", T1: "5" }],
+        abundance: [],
+      },
+      {
         name: "Borohydride salt",
         fixed: { observe: "1H", magnet: ["400", "MHz"], center: "-0.4", linewidth: "3", shape: "lorentzian" },
         groups: [{ kind: "partner", partner: "B", count: "1", J: "81", J_isotope: "11B", quadrupolar: "resolved" }],
@@ -96,6 +102,22 @@ NMR.registerPanel({
       return el("div", { class: "field" }, el("label", { for: id }, label), select, error);
     }
 
+    // T1 of a quadrupolar partner: a text field in ms and a logarithmic slider (0.01 ms … 1000 ms) driving it.
+    function t1Field(g, base, key) {
+      const wrap = rowInput(`${base}-t1`, "Partner T1 (ms), quadrupolar only", g.T1 || "", `${key}.T1`, (v) => { g.T1 = v; }, { inputmode: "decimal", placeholder: "not set" });
+      const slider = el("input", { type: "range", id: `${base}-t1-slider`, min: "-2", max: "3", step: "0.05", "aria-label": "Partner T1, logarithmic from 0.01 ms to 1000 ms" });
+      slider.value = g.T1 && Number(g.T1) > 0 ? String(Math.log10(Number(g.T1))) : "3";
+      const text = wrap.querySelector("input");
+      slider.addEventListener("input", () => {
+        g.T1 = short(10 ** Number(slider.value), 3);
+        text.value = g.T1;
+        save();
+        schedule();
+      });
+      wrap.insertBefore(slider, wrap.querySelector(".field-error"));
+      return wrap;
+    }
+
     function drawRows() {
       rowErrors.clear();
       groupBox.replaceChildren(...rows.groups.map((g, i) => {
@@ -132,6 +154,7 @@ NMR.registerPanel({
             rowInput(`${base}-spct`, "Enrichment here (%)", g.site_percent || "", `${key}.abundance.pct`, (v) => { g.site_percent = v; }, { inputmode: "decimal", placeholder: "request default" }),
             rowInput(`${base}-shiso`, "Isotope shift: isotope", g.shift_isotope || "", `${key}.isotope_shift`, (v) => { g.shift_isotope = v; }, { list: "nuclide-list", placeholder: "e.g. 2H" }),
             rowInput(`${base}-shppm`, "Shift per atom (ppm)", g.shift_ppm || "", `${key}.isotope_shift.ppm`, (v) => { g.shift_ppm = v; }, { inputmode: "decimal", placeholder: "none" }),
+            t1Field(g, base, key),
           );
         }
         box.append(el("div", { class: "field" }, remove));
@@ -224,6 +247,7 @@ NMR.registerPanel({
       else req.partner = (g.partner || "").trim();
       if (g.kind !== "spin" && (g.J_isotope || "").trim()) req.J_isotope = g.J_isotope.trim();
       if (g.kind !== "spin" && g.quadrupolar) req.quadrupolar = g.quadrupolar;
+      if (g.kind !== "spin" && (g.T1 || "").trim()) req.T1 = `${g.T1.trim()} ms`;
       if (g.kind !== "spin" && g.equivalent) req.equivalent = g.equivalent === "yes";
       if (g.kind !== "spin" && (g.site_isotope || "").trim()) req.abundance = { [g.site_isotope.trim()]: (g.site_percent || "").trim() };
       if (g.kind !== "spin" && (g.shift_isotope || "").trim()) req.isotope_shift = { [g.shift_isotope.trim()]: `${(g.shift_ppm || "").trim()} ppm` };
@@ -301,8 +325,10 @@ NMR.registerPanel({
         });
         return el("li", {}, button, ` ${o.note} — ${o.source}.`);
       });
+      const pc = r.partial_collapse;
       rulesBox.replaceChildren(
         ...(r.rules || []).map((text) => el("p", { class: "hint rule" }, text)),
+        ...(pc ? [el("p", { class: "hint rule", id: "mult-collapse" }, `Group ${pc.group + 1} (I = ${pc.spin}): T1 = ${short(pc.T1_s * 1000, 3)} ms, 2πJT1 = ${short(pc.two_pi_J_T1, 3)} — resolved when ≫ 1, one line when ≪ 1. Line shape: ${pc.source}.`)] : []),
         ...(offers.length ? [el("p", { class: "hint" }, "Isotope shifts are not applied unless you set them. Typical values, one tap to use:"), el("ul", { class: "offers" }, ...offers)] : []),
       );
     }
