@@ -71,3 +71,13 @@ def _example(kind: str) -> str:
     return {"field": "'11.74 T' or '117400 G'", "frequency": "'500 MHz'", "coupling": "'19.3 Hz'",
             "temperature": "'298 K' or '25 °C'", "wavelength": "'254 nm'",
             "wavenumber": "'1700 cm-1'", "shift": "'77.16 ppm'", "percent": "'99.8'"}[kind]
+
+
+def default_unit(kind: str) -> str:
+    """The unit a bare number of ``kind`` is read in (``"frequency"`` → ``"MHz"``)."""
+    return _DEFAULT[kind]
+
+
+def split_list(text: str) -> list[str]:
+    """One typed list (``"300, 600 MHz"``) → its items, split at commas and semicolons."""
+    return [item.strip() for item in re.split(r"[;,]", text) if item.strip()]

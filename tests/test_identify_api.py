@@ -133,9 +133,9 @@ def test_cli_identify_readable_json_and_file(capsys, tmp_path):
     out = json.loads(capsys.readouterr().out)
     assert out["result"]["candidates"][0]["groups"] == [{"partner": "1H", "count": 2, "J_Hz": pytest.approx(7.0)}]
     assert main(["identify", "--lines", "1:1,x:2"]) == 2
-    assert "lines.1.position" in capsys.readouterr().out
+    assert "lines.1.position" in capsys.readouterr().err
     assert main(["identify", "--peaklist", str(tmp_path / "missing.csv")]) == 2
-    assert "error [peaklist]" in capsys.readouterr().out
+    assert "error [peaklist]" in capsys.readouterr().err
 
 
 def _labels(req):

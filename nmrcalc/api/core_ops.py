@@ -4,7 +4,8 @@ warnings list and returns the result dict (JSON types only)."""
 
 from __future__ import annotations
 
-from nmrcalc.api.fields import flag, magnet, nucleus, quantity, require, spin_text
+from nmrcalc.api.fields import flag, magnet, nucleus, quantity, require, spin_text, zero_ppm_MHz
+from nmrcalc.api.params import MAGNET, Op, Param
 from nmrcalc.data.elements import NAME_OF_SYMBOL
 from nmrcalc.errors import InputError
 from nmrcalc.nuclides import ALL, BIOMOLECULAR, MAGNETIC, Nuclide, lookup, receptivity
@@ -114,11 +115,7 @@ def _sortable(value):
 def op_ppm_hz(req, warnings):
     nuc = nucleus(req, "nucleus")
     field_T, proton_MHz = magnet(req, warnings)
-    ref = larmor.reference_MHz(nuc, proton_MHz, _scale(req))
-    if ref is None:
-        ref = larmor.larmor_MHz(nuc, field_T)
-        warnings.append(f"{nuc.symbol} has no recommended reference (Ξ): 0 ppm is taken as the bare "
-                        "Larmor frequency.")
+    ref = zero_ppm_MHz(nuc, field_T, proton_MHz, warnings, _scale(req))
     has_ppm, has_hz = req.get("ppm") not in (None, ""), req.get("Hz") not in (None, "")
     if has_ppm == has_hz:
         raise InputError("Give exactly one of 'ppm' or 'Hz'.", "ppm", "missing_field" if not has_ppm else "invalid_value")
@@ -205,6 +202,60 @@ def op_sensitivity(req, warnings):
             "receptivity": D, "time_factor": sensitivity.time_factor(D),
             "receptivity_H": receptivity(nuc, "1H", enrich), "receptivity_C": receptivity(nuc, "13C", enrich)}
 
+
+SCALE = Param("scale", "choice", choices=("unified", "biomolecular"), default="unified", label="Reference scale",
+              help="'unified' (IUPAC 2001, TMS-based) or 'biomolecular' (DSS, IUPAC 2008)")
+NUCLEUS = Param("nucleus", "nuclide", required=True, label="Nucleus", help="observed nuclide, e.g. 13C", example="13C")
+
+DECLARED = {
+    "nuclide": Op("nuclide", "spin, magnetogyric ratio, abundance, Ξ and receptivity of one nuclide", params=(
+        Param("query", "nuclide", required=True, label="Nuclide", help="e.g. 13C, C-13, carbon-13, D",
+              example="195Pt", cli="query"),)),
+    "nuclides": Op("nuclides", "the nuclide list, optionally filtered by a search text", params=(
+        Param("search", "text", label="Search", help="filter text: symbol, element or name", example="tin"),
+        Param("include_spin_zero", "flag", default=False, label="Include spin-0 isotopes",
+              help="list the isotopes without a magnetic moment too"))),
+    "frequency": Op("frequency", "Larmor and 0 ppm reference frequencies at a magnet (all nuclides without "
+                    "'nucleus')", cli="freq", one_of=(("spectrometer", "field"),), params=(
+        *MAGNET,
+        Param("nucleus", "nuclide", label="Nucleus", help="nuclide; omit for the all-nuclide table", example="29Si"),
+        SCALE,
+        Param("spin_half_only", "flag", default=False, label="Spin ½ only", help="table: only spin-1/2 nuclides"),
+        Param("min_abundance_percent", "quantity", unit="percent", label="Lowest natural abundance",
+              help="table: leave out rarer nuclides"),
+        Param("min_MHz", "quantity", unit="frequency", label="Lowest frequency", help="table: lowest frequency"),
+        Param("max_MHz", "quantity", unit="frequency", label="Highest frequency", help="table: highest frequency"),
+        Param("sort", "choice", choices=_SORT_KEYS, default="larmor_MHz", label="Sort by", help="table order"),
+        Param("descending", "flag", label="Descending", help="table: largest first (default except by symbol)"))),
+    "ppm_hz": Op("ppm_hz", "convert a chemical shift to a frequency offset and back", cli="ppm",
+                 one_of=(("spectrometer", "field"), ("ppm", "Hz")), params=(
+        NUCLEUS, *MAGNET, SCALE,
+        Param("ppm", "quantity", unit="shift", label="Shift", help="shift in ppm", example="77.16"),
+        Param("Hz", "quantity", unit="coupling", label="Offset from 0 ppm", help="offset from 0 ppm in Hz",
+              cli="--hz"),
+        Param("carrier_ppm", "quantity", unit="shift", label="Carrier", help="carrier position in ppm"))),
+    "scale_coupling": Op("scale_coupling", "scale a coupling to another isotope (J′ = J γ′/γ), with K", cli="scale",
+                         params=(
+        Param("J", "quantity", unit="coupling", required=True, label="Measured J", help="e.g. '19.3 Hz'",
+              example="19.3 Hz", cli="J"),
+        Param("from", "nuclide", required=True, label="Measured with isotope", help="e.g. 2H", example="2H"),
+        Param("to", "nuclide", required=True, label="Predict for isotope", help="e.g. 1H", example="1H"),
+        Param("partner", "nuclide", label="Coupling partner", help="the other nucleus, for the reduced coupling K",
+              example="13C"))),
+    "energy": Op("energy", "transition energy and populations at a magnet, and a photon beside it",
+                 one_of=(("spectrometer", "field"), ("wavelength", "wavenumber")), params=(
+        Param("nucleus", "nuclide", label="Nucleus", help="nuclide (needs the magnet)", example="1H"),
+        *MAGNET,
+        Param("temperature", "quantity", unit="temperature", default=298.15, label="Temperature",
+              help="e.g. '298 K' or '25 °C'"),
+        Param("wavelength", "quantity", unit="wavelength", label="Photon wavelength", help="e.g. '254 nm'"),
+        Param("wavenumber", "quantity", unit="wavenumber", label="Photon wavenumber", help="e.g. '1700 cm-1'"))),
+    "sensitivity": Op("sensitivity", "receptivity of a nuclide against another and the time factor", params=(
+        Param("nucleus", "nuclide", required=True, label="Nucleus", help="nuclide", example="15N", cli="nucleus"),
+        Param("relative_to", "nuclide", default="13C", label="Relative to", help="reference nuclide"),
+        Param("enrichment_percent", "quantity", unit="percent", label="Enrichment", help="isotope enrichment",
+              cli="--enrichment"))),
+}
 
 OPS = {"nuclide": op_nuclide, "nuclides": op_nuclides, "frequency": op_frequency, "ppm_hz": op_ppm_hz,
        "scale_coupling": op_scale_coupling, "energy": op_energy, "sensitivity": op_sensitivity}

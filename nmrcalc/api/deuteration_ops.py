@@ -7,7 +7,9 @@ from __future__ import annotations
 import math
 
 from nmrcalc.api.fields import bounded, quantity
+from nmrcalc.api.params import Op, Param
 from nmrcalc.errors import InputError
+from nmrcalc.units import split_list
 from nmrcalc.physics import deuteration
 
 MAX_POSITIONS = 64
@@ -18,6 +20,8 @@ MODEL = ("Binomial (random) labelling: share of k D = C(n,k) p^k (1-p)^(n-k) (Fe
 
 
 def _number(value, field: str, *, positive: bool = False) -> float:
+    if isinstance(value, str):
+        value = bounded(value, "percent", field)
     if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value):
         raise InputError(f"{field} must be a number.", field)
     if value < 0 or (positive and value == 0):
@@ -39,6 +43,8 @@ def _read(req: dict) -> dict:
     out = {"positions": n, "per_H": observed == "site_1H", "integrals": None, "residual": None}
     raw = req.get("integrals")
     if raw not in (None, []):
+        if isinstance(raw, str):
+            raw = split_list(raw)
         if not isinstance(raw, list):
             raise InputError("integrals must be a list of numbers, index = number of D atoms.", "integrals")
         want = n if out["per_H"] else n + 1
@@ -107,5 +113,21 @@ def op_deuteration(req, warnings):
         result["binomial"] = None
     return result
 
+
+DECLARED = {"deuteration": Op(
+    "deuteration", "D level of one site from its isotopologue integrals (binomial test) or its residual 1H signal",
+    limits=f"{MAX_POSITIONS} positions", params=(
+        Param("positions", "integer", required=True, bounds=(1, MAX_POSITIONS), label="H/D positions", example=3,
+              help="the H/D positions of the site (3 for a methyl)"),
+        Param("integrals", "quantities", unit="percent", max_items=MAX_POSITIONS + 1, label="Isotopologue integrals",
+              example=[1, 6, 27, 66], help="integrals of the isotopologue signals, index = number of D atoms"),
+        Param("integral_error", "number", bounds=(0, None), label="Error of each integral", example=0.5,
+              help="absolute error of each integral (default 1 % of the largest)"),
+        Param("observed_on", "choice", choices=OBSERVED, default="once_per_molecule", label="Integrals measured on",
+              help="once_per_molecule (e.g. 13C) or site_1H (the site's own protons: k = 0 … n-1)"),
+        Param("residual", "value", label="Residual 1H signal", cli="-",
+              example={"integral": 0.05, "standard_integral": 1, "standard_nuclei": 3, "standard_per_analyte": 1},
+              help="{integral, standard_integral, standard_nuclei, standard_per_analyte, relative_error}"),
+    ))}
 
 OPS = {"deuteration": op_deuteration}

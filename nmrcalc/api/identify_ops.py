@@ -31,7 +31,8 @@ import math
 import re
 from fractions import Fraction
 
-from nmrcalc.api.fields import bounded, in_range, magnet, nucleus, quantity
+from nmrcalc.api.fields import bounded, in_range, magnet, nucleus, quantity, zero_ppm_MHz
+from nmrcalc.api.params import MAGNET, Op, Param
 from nmrcalc.api.peaklist import parse_peaklist
 from nmrcalc.errors import InputError
 from nmrcalc.nuclides import MAGNETIC, element_of, isotopes_of, lookup_magnetic
@@ -254,7 +255,7 @@ def op_identify(req, warnings):
             observe = lookup_magnetic("1H")
             notes.append("No observed nuclide given: 1H assumed for the ppm scale.")
         field_T, proton_MHz = magnet(req, warnings)
-        ref_MHz = larmor.reference_MHz(observe, proton_MHz) or larmor.larmor_MHz(observe, field_T)
+        ref_MHz = zero_ppm_MHz(observe, field_T, proton_MHz, warnings)
     if any(u == "ppm" for *_, u in raw) and ref_MHz is None:
         raise InputError("Positions in ppm need the magnet: give 'spectrometer' (or 'field').", "spectrometer",
                          "missing_field")
@@ -333,5 +334,38 @@ def op_identify(req, warnings):
             "satellites": satellites,
             "notes": notes + found.notes}
 
+
+DECLARED = {"identify": Op(
+    "identify", "rank first-order explanations (coupling partners) of measured lines",
+    one_of=(("spectrometer", "field"), ("lines", "peaklist")),
+    limits=f"{MAX_INPUT_LINES} lines; {MAX_GROUPS} groups; counts up to {MAX_COUNT}; a bounded search", params=(
+        Param("lines", "objects", label="Measured lines", max_items=MAX_INPUT_LINES,
+              help="positions and intensities, e.g. '1224:1,1231:3' (or [position, intensity] pairs)", cli="--lines",
+              cli_order=("position", "intensity"), cli_sep=":", example=[{"position": -7.0, "intensity": 1}, [0.0, 2],
+                                                             {"position": "7 Hz", "height": 1}], items=(
+            Param("position", "value", required=True, label="Position", help="Hz or ppm (with a unit, or in 'unit')"),
+            Param("intensity", "number", label="Intensity", help="height or integral"),
+            Param("height", "number", label="Height", help="instead of intensity"),
+            Param("integral", "number", label="Integral", help="instead of intensity"),
+        )),
+        Param("peaklist", "text", max_chars=500_000, label="Peak list", file=True,
+              help="a pasted peak list: one peak a line, position and intensity"),
+        Param("unit", "text", label="Unit of bare positions", help="Hz or ppm", example="Hz"),
+        Param("observe", "nuclide", label="Observed nucleus", help="default 1H"),
+        *MAGNET,
+        Param("partners", "texts", max_items=MAX_PARTNERS, label="Allowed partners",
+              help="e.g. 'H, 2H, B' or spins '1/2, 1'", example=["1H", "1/2"]),
+        Param("tolerance", "quantity", unit="coupling", label="Position tolerance", help="e.g. '0.5 Hz'",
+              example="0.5 Hz"),
+        Param("linewidth", "quantity", unit="coupling", label="Line width",
+              help="if known: the default tolerance follows it (a quarter of the width)", example="1.2 Hz"),
+        Param("digital_resolution", "quantity", unit="coupling", label="Digital resolution",
+              help="if known, Hz per point: the default tolerance is at least one point", example="0.3 Hz"),
+        Param("max_groups", "integer", bounds=(1, MAX_GROUPS), default=MAX_GROUPS, example=2, label="Most groups",
+              help="at most this many partner groups"),
+        Param("max_count", "integer", bounds=(1, MAX_COUNT), default=MAX_COUNT, example=3, label="Most partners a group",
+              help="at most this many equivalent partners in a group"),
+        Param("top", "integer", bounds=(1, 20), default=5, example=3, label="Candidates", help="how many candidates to list"),
+    ))}
 
 OPS = {"identify": op_identify}

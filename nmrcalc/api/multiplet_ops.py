@@ -16,7 +16,8 @@ import re
 
 from fractions import Fraction
 
-from nmrcalc.api.fields import bounded, flag, in_range, magnet, nucleus, quantity, spin_text
+from nmrcalc.api.fields import bounded, flag, in_range, magnet, nucleus, quantity, spin_text, zero_ppm_MHz
+from nmrcalc.api.params import MAGNET, SPECTRUM, Op, Param
 from nmrcalc.data.isotope_shifts import ISOTOPE_SHIFTS
 from nmrcalc.errors import InputError
 from nmrcalc.nuclides import Nuclide, element_of, isotopes_of, lookup, lookup_magnetic
@@ -310,7 +311,7 @@ def op_multiplet(req, warnings):
     has_magnet = req.get("spectrometer") not in (None, "") or req.get("field") not in (None, "")
     if has_magnet:
         field_T, proton_MHz = magnet(req, warnings)
-        ref_MHz = larmor.reference_MHz(observe, proton_MHz) or larmor.larmor_MHz(observe, field_T)
+        ref_MHz = zero_ppm_MHz(observe, field_T, proton_MHz, warnings)
     if req.get("center") not in (None, ""):
         if ref_MHz is None:
             raise InputError("A centre in ppm needs the magnet: give 'spectrometer' or 'field'.", "spectrometer", "missing_field")
@@ -394,5 +395,44 @@ def op_multiplet(req, warnings):
     warnings.extend(sorted(notes))
     return result
 
+
+DECLARED = {"multiplet": Op(
+    "multiplet", "first-order multiplet from partner groups, with isotopologue mixtures for element partners",
+    one_of=(("spectrometer", "field"),), limits="64 nuclei a group; 400 lines in a splitting tree", params=(
+        Param("observe", "nuclide", required=True, label="Observed nucleus", help="e.g. 13C", example="13C"),
+        Param("groups", "objects", label="Partner groups", max_items=32,
+              help="each PARTNER,COUNT,J, e.g. '2H,3,19.3 Hz', 'B,1,81 Hz' or 'spin=1,2,7 Hz'",
+              cli="--group", cli_order=("partner", "count", "J"),
+              example=[{"partner": "1H", "count": 2, "J": 7},
+                       {"partner": "B", "count": 1, "J": 80, "J_isotope": "11B", "quadrupolar": "resolved"},
+                       {"spin": "1/2", "count": 1, "J": "2 Hz"}, {"partner": "D", "count": 1, "J": 1}], items=(
+            Param("partner", "partner", label="Partner", help="a nuclide (2H: that isotope) or an element (B: its mixture)"),
+            Param("spin", "spin", label="Spin", help="a bare spin instead of a partner, e.g. 3/2"),
+            Param("count", "integer", default=1, bounds=(1, 64), label="Count", help="equivalent partners"),
+            Param("J", "quantity", unit="coupling", required=True, label="J", help="the coupling, e.g. '19.3 Hz'"),
+            Param("J_isotope", "nuclide", label="J is to isotope",
+                  help="element partner: the isotope J refers to (default its most abundant magnetic one)"),
+            Param("quadrupolar", "choice", choices=("resolved", "collapsed"), label="Quadrupolar splitting",
+                  help="show a quadrupolar partner's splitting resolved or collapsed"),
+            Param("equivalent", "flag", label="Equivalent to the observed nucleus",
+                  help="true: these positions belong to the observed nucleus's own equivalent set, so its own isotope "
+                       "does not split it (default: true for an element partner of the observed element)"),
+            Param("abundance", "map", unit="percent", label="Abundances at this site",
+                  help="percent by isotope for this group only, over the request-level abundance, e.g. {\"2H\": 99.8}"),
+            Param("isotope_shift", "value", label="Isotope shift per atom", example={"2H": "-25 Hz"},
+                  help="isotope → shift of the observed line per atom of it, e.g. {\"2H\": \"-0.25 ppm\"} "
+                       "(ppm needs the magnet; Hz also accepted)"),
+            Param("T1", "value", label="Partner T1", example="2 ms",
+                  help="a quadrupolar nuclide partner's T1, e.g. '2 ms': the spectrum shows the partial collapse"),
+        )),
+        Param("abundance", "map", unit="percent", label="Isotope abundances",
+              help="percent by isotope, e.g. {\"2H\": 99.8}; ISOTOPE=PERCENT on the CLI"),
+        *MAGNET,
+        Param("center", "quantity", unit="shift", label="Centre", help="centre in ppm (needs the magnet)"),
+        Param("min_share", "quantity", unit="percent", label="Smallest isotopologue kept", example="0.1 %",
+              help="isotopologues below this share are left out: a fraction (0.0001) or a percent written "
+                   "with % ('0.1 %')"),
+        *SPECTRUM,
+    ))}
 
 OPS = {"multiplet": op_multiplet}

@@ -14,6 +14,7 @@ import re
 from fractions import Fraction
 
 from nmrcalc.api.fields import nucleus, quantity
+from nmrcalc.api.params import Op, Param
 from nmrcalc.data.solvents import ALIASES, SOLVENTS
 from nmrcalc.errors import InputError
 from nmrcalc.physics.multiplet import multiplet, multiplet_label, ratio_string
@@ -86,5 +87,14 @@ def op_solvents(req, warnings):
                     "checked against the papers; water moves with temperature and concentration.")
     return {"solvents": found, "query": req.get("query")}
 
+
+DECLARED = {"solvents": Op(
+    "solvents", "residual solvent and water signals, with the multiplet the engine predicts", params=(
+        Param("query", "value", label="Shift or name", example="2.50 ppm",
+              help="a shift ('2.50', '2.50 ppm') finds the nearby signals; text finds solvents by name"),
+        Param("nucleus", "nuclide", label="Nucleus", help="1H or 13C only", example="1H"),
+        Param("tolerance", "quantity", unit="shift", label="Shift tolerance", example="0.05 ppm",
+              help="with a shift query (default 0.05 ppm for 1H, 0.5 ppm for 13C)"),
+    ))}
 
 OPS = {"solvents": op_solvents}
