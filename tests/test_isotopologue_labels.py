@@ -63,9 +63,11 @@ def test_explicit_equivalent_nuclide_partner():
 
 
 def test_equivalence_errors():
-    r = handle({"op": "multiplet", "observe": "13C", "groups": [{"partner": "H", "count": 2, "J": 2, "equivalent": True}]})
+    r = handle({"op": "multiplet", "observe": "13C",
+                "groups": [{"partner": "H", "count": 2, "J": 2, "equivalent": True}]})
     assert r["error"]["field"] == "groups.0.equivalent"
-    r = handle({"op": "multiplet", "observe": "1H", "groups": [{"partner": "H", "count": 2, "J": 2, "J_isotope": "1H"}]})
+    r = handle({"op": "multiplet", "observe": "1H",
+                "groups": [{"partner": "H", "count": 2, "J": 2, "J_isotope": "1H"}]})
     assert r["error"]["field"] == "groups.0.J_isotope"
 
 

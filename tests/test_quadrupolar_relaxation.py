@@ -20,7 +20,8 @@ def test_clebsch_gordan_against_sympy(spin):
     for m in ms:
         for q in (-2, -1, 1, 2):
             if abs(m + q) <= spin:
-                ref = CG(sympy.Rational(spin), sympy.Rational(m), 2, q, sympy.Rational(spin), sympy.Rational(m + q)).doit()
+                R = sympy.Rational
+                ref = CG(R(spin), R(m), 2, q, R(spin), R(m + q)).doit()
                 assert math.isclose(_cg_squared(spin, m, 2, q, spin, m + q), float(ref ** 2), abs_tol=1e-12)
 
 

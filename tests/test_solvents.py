@@ -54,8 +54,8 @@ def test_name_search_and_no_match():
     assert r["ok"] and r["result"]["solvents"] == [] and any("No listed" in w for w in r["warnings"])
 
 
-@pytest.mark.parametrize("req,field", [({"nucleus": "19F"}, "nucleus"), ({"query": "dmso", "tolerance": 1}, "tolerance"),
-                                       ({"query": ["x"]}, "query")])
+@pytest.mark.parametrize("req,field", [({"nucleus": "19F"}, "nucleus"),
+                                       ({"query": "dmso", "tolerance": 1}, "tolerance"), ({"query": ["x"]}, "query")])
 def test_errors(req, field):
     r = handle({"op": "solvents", **req})
     assert not r["ok"] and r["error"]["field"] == field

@@ -9,8 +9,8 @@ import math
 from nmrcalc.api.fields import bounded, quantity
 from nmrcalc.api.params import Op, Param
 from nmrcalc.errors import InputError
-from nmrcalc.units import split_list
 from nmrcalc.physics import deuteration
+from nmrcalc.units import split_list
 
 MAX_POSITIONS = 64
 DEFAULT_ERROR_SHARE = 0.01  # of the largest integral, when no integral_error is given
@@ -83,7 +83,8 @@ def op_deuteration(req, warnings):
         if sigma is None:
             sigma = DEFAULT_ERROR_SHARE * max(a["integrals"])
             warnings.append(f"No integral_error given: each integral is taken as ± {sigma:.3g} "
-                            f"({DEFAULT_ERROR_SHARE:.0%} of the largest); the uncertainty and the binomial test depend on it.")
+                            f"({DEFAULT_ERROR_SHARE:.0%} of the largest); the uncertainty and the binomial test "
+                            "depend on it.")
         fit = deuteration.from_integrals(n, a["integrals"], sigma, a["per_H"])
         binomial = None if fit.p_value is None else fit.p_value >= deuteration.ALPHA
         route = {"D_percent": 100 * fit.D_fraction, "D_percent_uncertainty": 100 * fit.D_fraction_uncertainty,

@@ -38,7 +38,15 @@ from nmrcalc.errors import InputError
 from nmrcalc.nuclides import MAGNETIC, element_of, isotopes_of, lookup_magnetic
 from nmrcalc.physics import coupling, larmor
 from nmrcalc.physics.identify import (
-    DEFAULT_SPINS, MAX_COUNT, MAX_GROUPS, MAX_INPUT_LINES, PartnerOption, identify, reference_isotope, spin_option)
+    DEFAULT_SPINS,
+    MAX_COUNT,
+    MAX_GROUPS,
+    MAX_INPUT_LINES,
+    PartnerOption,
+    identify,
+    reference_isotope,
+    spin_option,
+)
 from nmrcalc.physics.multiplet import parse_spin
 
 PPM_GUESS_MAX = 20.0
@@ -189,7 +197,8 @@ def _tolerance(req: dict, spacings: list[float], notes: list[str]) -> float:
     else:
         tol, how = DEFAULT_TOLERANCE_HZ, f"default {DEFAULT_TOLERANCE_HZ:g} Hz"
     if spacings and tol > TOLERANCE_FRACTION * min(spacings):
-        tol, how = TOLERANCE_FRACTION * min(spacings), how + f", capped at {TOLERANCE_FRACTION:g} × the smallest spacing"
+        tol = TOLERANCE_FRACTION * min(spacings)
+        how += f", capped at {TOLERANCE_FRACTION:g} × the smallest spacing"
     notes.append(f"Tolerance {tol:.3g} Hz ({how}).")
     return tol
 
@@ -222,7 +231,8 @@ def _satellite_elements(lines: list[tuple[float, float]], tol: float) -> list[di
         found.append({"element": el, "expected_ratio": expected, "observed_ratio": observed, "J_Hz": xb - xa,
                       "miss": abs(math.log(expected / observed))})
     found.sort(key=lambda f: f["miss"])
-    return [{k: v for k, v in f.items() if k != "miss"} for f in found[:SATELLITE_ELEMENTS] if f["miss"] < math.log(1.5)]
+    return [{k: v for k, v in f.items() if k != "miss"}
+            for f in found[:SATELLITE_ELEMENTS] if f["miss"] < math.log(1.5)]
 
 
 def op_identify(req, warnings):

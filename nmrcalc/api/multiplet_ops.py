@@ -13,7 +13,6 @@ from __future__ import annotations
 
 import math
 import re
-
 from fractions import Fraction
 
 from nmrcalc.api.fields import bounded, flag, in_range, magnet, nucleus, quantity, spin_text, zero_ppm_MHz
@@ -23,8 +22,8 @@ from nmrcalc.errors import InputError
 from nmrcalc.nuclides import Nuclide, element_of, isotopes_of, lookup, lookup_magnetic
 from nmrcalc.physics import coupling, larmor, lineshape
 from nmrcalc.physics.isotopologues import isotopologue_spectrum
-from nmrcalc.physics.quadrupolar_relaxation import collapse_shape
 from nmrcalc.physics.multiplet import multiplet, multiplet_label, normalized, parse_spin, ratio_string
+from nmrcalc.physics.quadrupolar_relaxation import collapse_shape
 
 # Quadrupolar partners whose splitting is usually seen (common practice, no source):
 # 2H in organic molecules, 6Li/7Li and 10B/11B in symmetric (tetrahedral) ions.
@@ -390,7 +389,8 @@ def op_multiplet(req, warnings):
             "source": "Pople, Mol. Phys. 1 (1958) 168 (I = 1); Suzuki & Kubo, Mol. Phys. 7 (1964) 201 (any I); "
                       "extreme narrowing"}
         warnings.append(f"Group {i + 1}: the lines and ratio are the resolved pattern; the spectrum shows it partly "
-                        f"collapsed by the partner's relaxation (T1 = {T1:.3g} s, 2πJT1 = {2 * math.pi * abs(J) * T1:.3g}; "
+                        f"collapsed by the partner's relaxation (T1 = {T1:.3g} s, "
+                        f"2πJT1 = {2 * math.pi * abs(J) * T1:.3g}; "
                         "resolved when ≫ 1, one line when ≪ 1).")
     warnings.extend(sorted(notes))
     return result

@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import re
 from fractions import Fraction
+from typing import Any
 
 from nmrcalc.api.fields import nucleus, quantity
 from nmrcalc.api.params import Op, Param
@@ -29,7 +30,7 @@ def _key(text: str) -> str:
 
 
 def _read(req: dict) -> dict:
-    out = {"nucleus": None, "shift": None, "text": None, "tolerance": None}
+    out: dict[str, Any] = {"nucleus": None, "shift": None, "text": None, "tolerance": None}
     if req.get("nucleus") not in (None, ""):
         out["nucleus"] = nucleus(req, "nucleus").symbol
         if out["nucleus"] not in DEFAULT_TOLERANCE_PPM:

@@ -107,9 +107,10 @@ from __future__ import annotations
 
 import itertools
 import math
+from collections.abc import Iterable, Sequence
 from fractions import Fraction
 from functools import lru_cache
-from typing import Iterable, NamedTuple, Sequence
+from typing import NamedTuple
 
 from nmrcalc.errors import InputError
 from nmrcalc.physics.isotopologues import isotopologue_spectrum

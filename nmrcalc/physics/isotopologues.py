@@ -41,9 +41,10 @@ each composition's multiplet obeys the limits of the multiplet module.
 from __future__ import annotations
 
 import math
+from collections.abc import Iterable, Sequence
 from fractions import Fraction
 from itertools import product
-from typing import Iterable, NamedTuple, Sequence
+from typing import Any, NamedTuple
 
 from nmrcalc.errors import InputError
 from nmrcalc.physics.multiplet import (
@@ -120,7 +121,7 @@ def _parse_abundance(value: object) -> Fraction:
     return share
 
 
-def _parse_isotope(item: object) -> Isotope:
+def _parse_isotope(item: Any) -> Isotope:
     try:
         label, spin, abundance, J, *shift = item
         (shift_Hz,) = shift or (0.0,)

@@ -39,21 +39,20 @@ def _cg_squared(j1: Fraction, m1: Fraction, j2: int, m2: int, J: Fraction, M: Fr
     """⟨j1 m1; j2 m2 | J M⟩² from the Racah formula (exact with Fractions, then a float)."""
     if m1 + m2 != M or abs(m1) > j1 or abs(m2) > j2 or abs(M) > J:
         return 0.0
-    f = math.factorial
-
-    def fi(x: Fraction) -> int:
-        return f(int(x))
+    def fi(x: Fraction | int) -> int:
+        return math.factorial(int(x))
 
     pre = Fraction((2 * J + 1) * fi(J + j1 - j2) * fi(J - j1 + j2) * fi(j1 + j2 - J), fi(j1 + j2 + J + 1))
     pre *= fi(J + M) * fi(J - M) * fi(j1 - m1) * fi(j1 + m1) * fi(j2 - m2) * fi(j2 + m2)
     total = Fraction(0)
     k = 0
     while True:
-        terms = [k, j1 + j2 - J - k, j1 - m1 - k, j2 + m2 - k, J - j2 + m1 + k, J - j1 - m2 + k]
+        terms: list[Fraction] = [Fraction(k), j1 + j2 - J - k, j1 - m1 - k, Fraction(j2 + m2 - k), J - j2 + m1 + k,
+                                 J - j1 - m2 + k]
         if terms[1] < 0 or terms[2] < 0 or terms[3] < 0:
             break
         if min(terms) >= 0:
-            total += Fraction((-1) ** k, math.prod(fi(Fraction(t)) for t in terms))
+            total += Fraction((-1) ** k, math.prod(fi(t) for t in terms))
         k += 1
     return float(pre * total * total)
 
@@ -106,10 +105,11 @@ def collapse_shape(x_Hz: list[float], J_Hz: float, spin: Fraction, T1_s: float, 
     n = len(ms)
     K = rate_matrix(spin, T1_s)
     R2 = math.pi * fwhm_Hz
-    p = [1.0 / n] * n
+    p: list[complex] = [complex(1.0 / n)] * n
     out = []
     for x in x_Hz:
-        A = [[(R2 + 2j * math.pi * (J_Hz * ms[a] - (x - centre_Hz)) if a == b else 0) - K[a][b] for b in range(n)]
-             for a in range(n)]
-        out.append(sum(_solve(A, p)).real / math.pi * 2 * math.pi)  # per Hz: dΔ(rad/s) = 2π dΔ(Hz)
+        A: list[list[complex]] = [
+            [(R2 + 2j * math.pi * (J_Hz * ms[a] - (x - centre_Hz)) if a == b else 0j) - K[a][b] for b in range(n)]
+            for a in range(n)]
+        out.append(sum(_solve(A, p), 0j).real / math.pi * 2 * math.pi)  # per Hz: dΔ(rad/s) = 2π dΔ(Hz)
     return out
