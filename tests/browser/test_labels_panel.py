@@ -44,6 +44,11 @@ def test_labelled_methyl_and_isotope_shift(dist, open_page):
     expect(rows.first).to_contain_text(f"{want['isotopologues'][0]['center_ppm']:.4f}")
     SHOTS.mkdir(parents=True, exist_ok=True)
     page.locator("#card-mult").screenshot(path=str(SHOTS / "multiplet-isotope-shift.png"))
+    # the builder's isotopologue shares go to the deuteration section: 60 % D back (binomial, Feller)
+    page.click("#tab-labels")
+    page.click("#deut-from-builder")
+    expect(page.locator("#deut-integrals .headline")).to_contain_text("D = 60.00")
+    page.click("#tab-multiplet")
 
     # observed 1H of a partly deuterated methyl: the rule is stated
     page.fill("#mult-observe", "1H")

@@ -333,8 +333,21 @@ NMR.registerPanel({
       );
     }
 
+    // Hand the isotopologue shares of a one-site H/D mixture to the deuteration section
+    // (index = number of 2H atoms); a plain regrouping of the result, no physics.
+    function rememberShares(r) {
+      const isos = r.isotopologues || [];
+      const site = isos.length && isos.every((x) => x.atoms && x.atoms.length === 1) && isos.some((x) => x.atoms[0]["2H"]);
+      if (!site) return NMR.remember("mult.byD", null);
+      const positions = Object.values(isos[0].atoms[0]).reduce((a, b) => a + b, 0);
+      const integrals = new Array(positions + 1).fill(0);
+      for (const x of isos) integrals[x.atoms[0]["2H"] || 0] += x.share * 100;
+      NMR.remember("mult.byD", { positions, integrals });
+    }
+
     function render(r, warnings) {
       renderRules(r);
+      rememberShares(r);
       headline.textContent = r.label;
       ratio.textContent = r.ratio ? `Intensity ratio ${r.ratio}` : "Several isotopologues: see the table below for each pattern and share.";
       warn.replaceChildren(...warnings.map((text) => el("li", {}, text)));

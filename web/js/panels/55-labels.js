@@ -110,6 +110,23 @@ NMR.registerPanel({
         out.replaceChildren(el("div", { class: "pair" }, ...boxes), el("p", { class: "hint" }, r.model));
       },
     });
+    // integrals from the multiplet builder's isotopologue shares (stored there as mult.byD)
+    const take = el("button", { type: "button", class: "small-button", id: "deut-from-builder" }, "Take the integrals from the multiplet builder");
+    const takeNote = el("span", { class: "hint", "aria-live": "polite" });
+    take.addEventListener("click", () => {
+      const shares = NMR.recall("mult.byD");
+      if (!shares) {
+        takeNote.textContent = "Build a one-site H/D mixture in the multiplet builder first.";
+        return;
+      }
+      const byId = Object.fromEntries(deut.fields.map((f) => [f.field.id, f]));
+      byId.positions.load({ value: String(shares.positions) });
+      byId.integrals.load({ value: shares.integrals.map((x) => String(Number(x.toPrecision(6)))).join(", ") });
+      byId.observed.load({ value: "once_per_molecule" });
+      takeNote.textContent = "Shares (%) of the builder's isotopologues, by number of 2H atoms.";
+      deut.run();
+    });
+    deut.node.querySelector("form").after(el("div", { class: "actions" }, take, takeNote));
     solvents.node.classList.add("card-wide");
     container.append(el("div", { class: "cards" }, solvents.node, deut.node));
   },
