@@ -1,7 +1,7 @@
 """The ``solvents`` op: residual solvent and water signals (``nmrcalc.data.solvents``),
 each with the first-order multiplet the engine predicts from its couplings to 2H.
 
-``query`` (optional): a shift ("2.50", "2.50 ppm", 2.5) → the rows within
+``query`` (optional): a shift ("2.50", "2.50 ppm") → the rows within
 ``tolerance`` (default 0.05 ppm for 1H, 0.5 ppm for 13C; common practice, no
 source: residual signals move by a few hundredths of a ppm with concentration
 and temperature); any other text → the solvents whose name or aliases contain it.
@@ -36,9 +36,9 @@ def _read(req: dict) -> dict:
         if out["nucleus"] not in DEFAULT_TOLERANCE_PPM:
             raise InputError("The solvent table lists 1H and 13C signals only.", "nucleus")
     query = req.get("query")
-    if isinstance(query, bool) or not isinstance(query, (type(None), str, int, float)):
-        raise InputError("query must be a shift (e.g. '2.50 ppm') or a solvent name.", "query")
-    if isinstance(query, (int, float)) or (isinstance(query, str) and _SHIFT.fullmatch(query)):
+    if not isinstance(query, (type(None), str)):
+        raise InputError("query must be text: a shift (e.g. '2.50 ppm') or a solvent name.", "query")
+    if isinstance(query, str) and _SHIFT.fullmatch(query):
         out["shift"] = quantity(req, "query", "shift")
         out["tolerance"] = None if req.get("tolerance") in (None, "") else quantity(req, "tolerance", "shift",
                                                                                     positive=True)
@@ -91,7 +91,7 @@ def op_solvents(req, warnings):
 
 DECLARED = {"solvents": Op(
     "solvents", "residual solvent and water signals, with the multiplet the engine predicts", params=(
-        Param("query", "value", label="Shift or name", example="2.50 ppm",
+        Param("query", "text", label="Shift or name", example="2.50 ppm", max_chars=60,
               help="a shift ('2.50', '2.50 ppm') finds the nearby signals; text finds solvents by name"),
         Param("nucleus", "nuclide", label="Nucleus", help="1H or 13C only", example="1H"),
         Param("tolerance", "quantity", unit="shift", label="Shift tolerance", example="0.05 ppm",
