@@ -27,6 +27,8 @@ OP_MODULES = {
     "multiplet": "multiplet_ops",
     "spin_system": "spin_system_ops",
     "identify": "identify_ops",
+    "deuteration": "deuteration_ops",
+    "solvents": "solvent_ops",
     "describe": "describe_ops",
 }
 MAX_REQUEST_CHARS = 1_000_000
