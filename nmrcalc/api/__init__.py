@@ -22,12 +22,15 @@ from nmrcalc.errors import InputError
 # A module is imported when one of its ops is first asked for, so a front end's
 # first result does not wait for the spin-system and pattern-finder code.
 OP_MODULES = {
-    **dict.fromkeys(["nuclide", "nuclides", "frequency", "ppm_hz", "scale_coupling", "energy", "sensitivity"],
+    **dict.fromkeys(["nuclide", "nuclides", "frequency", "ppm_hz", "scale_coupling", "energy", "sensitivity",
+                     "acquisition_window"],
                     "core_ops"),
     "multiplet": "multiplet_ops",
     "spin_system": "spin_system_ops",
     "identify": "identify_ops",
     **dict.fromkeys(["read_spectrum", "pick_peaks", "fit_spin_system"], "spectrum_ops"),
+    "deuteration": "deuteration_ops",
+    "solvents": "solvent_ops",
     "describe": "describe_ops",
 }
 _SURROGATE = re.compile("[\ud800-\udfff]")  # one C-level scan: a spectrum's text is long

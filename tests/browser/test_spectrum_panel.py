@@ -1,6 +1,6 @@
 """The measured-spectrum panel in the offline single file: open an official JCAMP-DX test file
 (TESTSPEC.DX, a public 13C test file), pick peaks, set the reference on the CDCl3
-triplet by a typed shift for a chosen peak, and send that multiplet to the pattern finder.
+triplet (a chosen peak and the solvent table's shift), and send that multiplet to the pattern finder.
 
 Expected numbers come from nmrcalc.api.handle on CPython: the page must show what the package computes."""
 
@@ -35,7 +35,12 @@ def test_open_reference_pick_and_find(dist, open_page, data_dir):  # noqa: F811
     trip = sorted((p for p in picked if 8550 < p["position"] < 8750), key=lambda p: p["position"])
     centre = picked.index(trip[1])
     rows.nth(centre).click()
-    page.fill("#spec-ref-shift", str(CDCL3_PPM))
+    # the solvent table (solvents op) offers CDCl3: choosing it fills the shift
+    solvent = next(x for x in handle({"op": "solvents", "nucleus": "13C"})["result"]["solvents"] if x["name"] == "CDCl3")
+    assert solvent["shift_ppm"] == CDCL3_PPM
+    expect(page.locator("#spec-solvent")).to_be_visible()
+    page.select_option("#spec-solvent", label=f"CDCl3 {CDCL3_PPM} ppm")
+    expect(page.locator("#spec-ref-shift")).to_have_value(str(CDCL3_PPM))
     page.click("#spec-ref-set")
     ref = handle({"op": "read_spectrum", "text": text, "reference": {"x": trip[1]["position"], "shift_ppm": CDCL3_PPM}})
     expect(page.locator("#spec-ref-note")).to_contain_text(f"is {CDCL3_PPM} ppm (request)")
