@@ -8,8 +8,8 @@ import math
 import random
 
 import pytest
-
 from jcamp_writer import write_xydata
+
 from nmrcalc.errors import InputError
 from nmrcalc.physics.jcamp import decode_line, read_jcamp
 from nmrcalc.physics.spectrum_text import read_two_column

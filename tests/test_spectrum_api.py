@@ -5,8 +5,8 @@ import math
 import random
 
 import pytest
-
 from jcamp_writer import write_xydata
+
 from nmrcalc.api import handle
 
 
@@ -62,7 +62,8 @@ def test_pick_peaks_lorentzians():
     big, small = sorted(peaks, key=lambda p: -p["position"])
     dx = 10.0 / 4095
     # three-point parabolic vertex: within a tenth of a point spacing for these widths (arithmetic check)
-    assert big["position"] == pytest.approx(7.26, abs=0.1 * dx) and small["position"] == pytest.approx(2.1734, abs=0.1 * dx)
+    assert big["position"] == pytest.approx(7.26, abs=0.1 * dx)
+    assert small["position"] == pytest.approx(2.1734, abs=0.1 * dx)
     assert big["height"] == pytest.approx(100.0, rel=0.03) and small["height"] == pytest.approx(40.0, rel=0.03)
     # full width at half height, in Hz: 0.004 ppm × 400 MHz = 1.6 Hz (linear interpolation, ≈ 1 point)
     assert big["width_Hz"] == pytest.approx(1.6, abs=0.3) and small["width_Hz"] == pytest.approx(1.2, abs=0.3)

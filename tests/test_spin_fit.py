@@ -98,7 +98,8 @@ def res_warnings(shifts, couplings, mhz, lines):
 
 def test_fit_refusals():
     base = _system([7.0, 7.1], [(0, 1, 8.0)], 400)
-    r = handle({"op": "fit_spin_system", **base, "lines": [{"position": 7.0, "intensity": 1}], "vary": ["shifts", "couplings"]})
+    one = [{"position": 7.0, "intensity": 1}]
+    r = handle({"op": "fit_spin_system", **base, "lines": one, "vary": ["shifts", "couplings"]})
     assert not r["ok"] and r["error"]["field"] == "lines"
     r = handle({"op": "fit_spin_system", **base, "lines": [], "vary": ["widths"]})
     assert not r["ok"]

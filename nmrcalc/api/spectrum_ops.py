@@ -220,7 +220,8 @@ DECLARED = {
                   example=[1.0 / (1 + ((k - 100) / 2) ** 2) + 0.001 * ((k * 7919) % 13 - 6) for k in range(201)]),
             Param("observe_MHz", "quantity", unit="frequency", label="Observe frequency",
                   help="needed for widths in Hz when x is in ppm", example="400.13 MHz"),
-            Param("threshold", "text", default="5 sigma", label="Threshold", help="a multiple of the noise, e.g. '5 sigma'"),
+            Param("threshold", "text", default="5 sigma", label="Threshold",
+                  help="a multiple of the noise, e.g. '5 sigma'"),
         )),
     "fit_spin_system": Op(
         "fit_spin_system", "fit a spin system's shifts and couplings to measured line positions (least squares)",

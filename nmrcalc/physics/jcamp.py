@@ -28,8 +28,8 @@ from __future__ import annotations
 
 import math
 import re
-from itertools import accumulate
 from dataclasses import dataclass, field
+from itertools import accumulate
 
 from nmrcalc.errors import InputError
 

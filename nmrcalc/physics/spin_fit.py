@@ -189,7 +189,8 @@ def _levenberg_marquardt(model, p, x, index):
     lam = 1e-3
     jac = None
     steps = 0
-    for steps in range(1, MAX_ITER + 1):
+    for _ in range(MAX_ITER):
+        steps += 1
         jac = _jacobian(model, p, index, ref)
         jtj = _normal(jac, m, n)
         jtr = [sum(jac[a][i] * r[i] for i in range(m)) for a in range(n)]

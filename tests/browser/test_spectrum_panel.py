@@ -7,9 +7,9 @@ Expected numbers come from nmrcalc.api.handle on CPython: the page must show wha
 from __future__ import annotations
 
 from playwright.sync_api import expect
+from test_jcamp_official import SETS, data_dir  # noqa: F401  (the fixture that fetches the files)
 
 from nmrcalc.api import handle
-from test_jcamp_official import SETS, data_dir  # noqa: F401  (the fixture that fetches the files)
 
 CDCL3_PPM = 77.16  # 13C of CDCl3, centre line (common practice, no source)
 
@@ -36,7 +36,8 @@ def test_open_reference_pick_and_find(dist, open_page, data_dir):  # noqa: F811
     centre = picked.index(trip[1])
     rows.nth(centre).click()
     # the solvent table (solvents op) offers CDCl3: choosing it fills the shift
-    solvent = next(x for x in handle({"op": "solvents", "nucleus": "13C"})["result"]["solvents"] if x["name"] == "CDCl3")
+    table = handle({"op": "solvents", "nucleus": "13C"})["result"]["solvents"]
+    solvent = next(x for x in table if x["name"] == "CDCl3")
     assert solvent["shift_ppm"] == CDCL3_PPM
     expect(page.locator("#spec-solvent")).to_be_visible()
     page.select_option("#spec-solvent", label=f"CDCl3 {CDCL3_PPM} ppm")
