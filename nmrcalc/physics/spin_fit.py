@@ -23,8 +23,8 @@ from nmrcalc.physics.spin_system import simulate
 
 MIN_ASSIGN = 0.02
 TOL_HZ = 1e-7
-MAX_ASSIGNMENTS = 8   # outer passes: assign, then fit with the assignment fixed
-MAX_ITER = 25         # Levenberg–Marquardt steps per pass
+MAX_ASSIGNMENTS = 6   # outer passes: assign, then fit with the assignment fixed
+MAX_ITER = 20         # Levenberg–Marquardt steps per pass
 MAX_TRIES = 8         # damping increases (×10 each) before a step is given up
 STEP_HZ = 1e-4
 
