@@ -82,7 +82,7 @@ NMR.registerPanel({
         if (v.error.value !== "") req.integral_error = num(v.error.value);
         if (v.residual.value !== "") {
           req.residual = { integral: num(v.residual.value), standard_integral: num(v.standard.value), standard_nuclei: num(v.nuclei.value), standard_per_analyte: num(v.ratio.value) };
-          if (v.relerr.value !== "") req.residual.relative_error = `${v.relerr.value} %`;
+          if (v.relerr.value !== "") req.residual.relative_error = v.relerr.value;
         }
         return req;
       },
