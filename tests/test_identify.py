@@ -216,11 +216,6 @@ def test_seeded_round_trips_with_coinciding_lines(capsys):
     assert len(failures) <= 0.2 * cases
 
 
-def test_benchmark_cases_run():
-    from nmrcalc.physics.identify import benchmark_cases
-    for name, case in benchmark_cases():
-        assert case().candidates, name
-
 
 def test_work_budget_is_counted_not_timed():
     # the budget counts steps, so the same budget stops at the same place on any machine

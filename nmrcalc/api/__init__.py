@@ -21,7 +21,8 @@ from nmrcalc.errors import InputError
 # A module is imported when one of its ops is first asked for, so a front end's
 # first result does not wait for the spin-system and pattern-finder code.
 OP_MODULES = {
-    **dict.fromkeys(["nuclide", "nuclides", "frequency", "ppm_hz", "scale_coupling", "energy", "sensitivity"],
+    **dict.fromkeys(["nuclide", "nuclides", "frequency", "ppm_hz", "scale_coupling", "energy", "sensitivity",
+                     "acquisition_window"],
                     "core_ops"),
     "multiplet": "multiplet_ops",
     "spin_system": "spin_system_ops",

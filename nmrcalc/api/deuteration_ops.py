@@ -42,9 +42,9 @@ def _read(req: dict) -> dict:
         raise InputError(f"observed_on must be one of {', '.join(OBSERVED)}.", "observed_on")
     out = {"positions": n, "per_H": observed == "site_1H", "integrals": None, "residual": None}
     raw = req.get("integrals")
-    if raw not in (None, []):
+    if raw not in (None, "", []):
         if isinstance(raw, str):
-            raw = split_list(raw)
+            raw = split_list(raw, "integrals")
         if not isinstance(raw, list):
             raise InputError("integrals must be a list of numbers, index = number of D atoms.", "integrals")
         want = n if out["per_H"] else n + 1

@@ -746,20 +746,3 @@ def identify(lines: Iterable, tol_Hz: float, options: Sequence[PartnerOption] | 
     if kept[0].unmatched_observed:
         notes.append(f"{kept[0].unmatched_observed} observed line(s) are not explained by the best candidate.")
     return Identification(kept, notes, evaluated, complete)
-
-
-def benchmark_cases() -> list[tuple[str, object]]:
-    """Named zero-argument callables for a benchmark script (no timing here)."""
-    half = Fraction(1, 2)
-
-    def lines_of(groups):
-        return [(100.0 + x, y) for x, y in normalized(multiplet(groups))]
-
-    septet = lines_of([(Fraction(1), 3, 19.5)])
-    three_groups = lines_of([(half, 1, 35.6), (half, 2, 11.7), (half, 3, 3.1)])
-    wide = [line for line in lines_of([(Fraction(3), 5, 6.4)]) if line[1] > 0.003]
-    return [
-        ("1:3:6:7:6:3:1 septet, bare spins", lambda: identify(septet, 0.5)),
-        ("d of t of q (24 lines), bare spins", lambda: identify(three_groups, 0.5)),
-        ("31-line 5 x I=3, outer lines lost", lambda: identify(wide, 0.5)),
-    ]

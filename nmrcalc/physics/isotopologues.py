@@ -300,16 +300,3 @@ def isotopologue_spectrum(sites: Iterable, groups: Iterable = (), min_share: flo
         MERGE_REL_TOL * largest_J,
     )
     return IsotopologueSpectrum(species, summed, kept, dropped_share, dropped_count)
-
-
-def benchmark_cases() -> list[tuple[str, object]]:
-    """Named zero-argument callables for a benchmark script (no timing here)."""
-    half = Fraction(1, 2)
-    hydrogen = [("2H", Fraction(1), Fraction(998, 1000), 2.0), ("1H", half, Fraction(2, 1000), 13.0)]
-    platinum = [("195Pt", half, Fraction(338, 1000), 1200.0), ("Pt", Fraction(0), Fraction(662, 1000), None)]
-    carbon = [("13C", half, Fraction(107, 10000), 60.0), ("12C", Fraction(0), Fraction(9893, 10000), None)]
-    return [
-        ("CD3 at 99.8 % D, 3 positions", lambda: isotopologue_spectrum([(3, hydrogen)])),
-        ("Pt x 1 and C x 4, all kept", lambda: isotopologue_spectrum([(1, platinum), (4, carbon)], min_share=0)),
-        ("D x 12 positions", lambda: isotopologue_spectrum([(12, hydrogen)], min_share=0)),
-    ]

@@ -573,10 +573,12 @@ const NMR = (() => {
     }), 0));
   }
 
-  /** Request keys for a magnet field with units MHz (1H frequency) or T / kG / G. */
+  /** Request keys for a magnet field: the text as typed; the unit chosen beside it only
+   * names a bare number (MHz ¹H → spectrometer, T → field, kG/G said with the number). */
   function magnetRequest(value) {
     const key = value.unit === "MHz" ? "spectrometer" : "field";
-    return { [key]: value.value === "" ? "" : `${value.value} ${value.unit}` };
+    const bare = /^[\s\d.eE+\-\u2212]*$/.test(value.value);
+    return { [key]: bare && value.value !== "" && (value.unit === "kG" || value.unit === "G") ? `${value.value} ${value.unit}` : value.value };
   }
 
   const MAGNET_UNITS = [

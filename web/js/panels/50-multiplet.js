@@ -241,7 +241,7 @@ NMR.registerPanel({
     container.append(el("div", { class: "cards" }, card));
 
     function groupRequest(g) {
-      const req = { count: g.count.trim() === "" ? "" : Number(g.count), J: g.J.trim() === "" ? "" : `${g.J.trim()} Hz` };
+      const req = { count: g.count.trim() === "" ? "" : Number(g.count), J: g.J.trim() };
       if (Number.isNaN(req.count)) req.count = g.count;
       if (g.kind === "spin") req.spin = (g.spin || "").trim();
       else req.partner = (g.partner || "").trim();
@@ -256,9 +256,9 @@ NMR.registerPanel({
     function request() {
       const req = { op: "multiplet", observe: fixed.observe.read().value, ...NMR.magnetRequest(fixed.magnet.read()) };
       const center = fixed.center.read().value;
-      if (center !== "") req.center = `${center} ppm`;
+      if (center !== "") req.center = center;
       const width = fixed.linewidth.read().value;
-      req.linewidth = width === "" ? "" : `${width} Hz`;
+      req.linewidth = width;
       req.shape = fixed.shape.read().value;
       req.spectrum = true;
       req.groups = rows.groups.map(groupRequest);

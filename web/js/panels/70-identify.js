@@ -222,10 +222,10 @@ NMR.registerPanel({
       const partners = partnerList(fixed.partners.read().value);
       if (partners.length) req.partners = partners;
       const tolerance = fixed.tolerance.read().value;
-      if (tolerance !== "") req.tolerance = /[a-z]/i.test(tolerance) ? tolerance : `${tolerance} Hz`;
+      if (tolerance !== "") req.tolerance = tolerance;
       for (const [key, f] of [["linewidth", fixed.linewidth], ["digital_resolution", fixed.resolution]]) {
         const text = f.read().value;
-        if (text !== "") req[key] = /[a-z]/i.test(text) ? text : `${text} Hz`;
+        if (text !== "") req[key] = text;
       }
       req.max_groups = Number(fixed.maxGroups.read().value);
       if (mode === "paste") {
