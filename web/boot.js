@@ -9,6 +9,12 @@
 "use strict";
 
 const NMRBoot = (() => {
+  // Uncaught errors and CSP violations on the page, from its first script on, so that a
+  // test driving any engine (even one whose console it cannot read) can ask for them.
+  const problems = [];
+  addEventListener("error", (event) => problems.push(`error: ${event.message}`));
+  addEventListener("unhandledrejection", (event) => problems.push(`unhandled rejection: ${event.reason}`));
+  document.addEventListener("securitypolicyviolation", (event) => problems.push(`CSP ${event.violatedDirective}: ${event.blockedURI}`));
   let worker = null;
   let early = [];  // events that arrive before the shell listens
   let listener = (event, from) => early.push([event, from]);
@@ -51,6 +57,7 @@ const NMRBoot = (() => {
   create();
   return {
     startedAt: () => startedAt,
+    problems: () => problems.slice(),
     worker: () => worker,
     sendPrevious() {
       send(document.currentScript.previousElementSibling);
