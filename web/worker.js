@@ -14,6 +14,7 @@
 
 const APP_ZIP = "/home/pyodide/nmrcalc.zip";  // imported from in place (zipimport), not unpacked
 let bridge = null;
+let wasmBytes = () => 0;  // the size of Python's wasm memory (it only grows), sent with each reply
 let bootPromise = null;
 
 function post(message) {
@@ -150,6 +151,7 @@ async function boot(message) {
   pyodide.pyimport("sys").path.insert(0, APP_ZIP);
   progress("import", "Importing nmrcalc");
   bridge = pyodide.pyimport("nmrcalc_bridge").bridge;
+  wasmBytes = () => pyodide._module.HEAPU8.buffer.byteLength;
   post({ type: "ready", ms: performance.now() - started, python: pyodide.version });
 }
 
@@ -176,7 +178,7 @@ function call(message) {
       error: { code: "worker_error", message: String((err && err.message) || err), field: null },
     });
   }
-  post({ type: "reply", id: message.id, text });
+  post({ type: "reply", id: message.id, text, wasmBytes: wasmBytes() });
 }
 
 self.onmessage = (event) => {

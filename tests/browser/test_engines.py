@@ -22,7 +22,7 @@ import pytest
 from nmrcalc.api import handle
 
 ENGINES = ["chromium", "firefox", "webkit"]
-BOOT_TIMEOUT_S = 90
+BOOT_TIMEOUT_S = 180  # WebKit boots slowest; a 2-core machine under load can take minutes
 TARGETS = ["single", "site"]
 
 IDLE = "return window.nmrcalcStatus.pending === 0 && [...document.querySelectorAll('.busy')].every(b => b.hidden)"

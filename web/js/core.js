@@ -139,6 +139,7 @@ const NMR = (() => {
       const resolve = waiting.get(message.id);
       waiting.delete(message.id);
       window.nmrcalcStatus.pending = waiting.size;
+      window.nmrcalcStatus.wasmBytes = message.wasmBytes;
       if (resolve) resolve(JSON.parse(message.text));
     }
   }
