@@ -11,7 +11,7 @@ python3 -c 'import sys; assert sys.version_info >= (3, 11), "nmrcalc needs Pytho
 [ -x .venv/bin/python ] || python3 -m venv .venv
 .venv/bin/python -m pip install -q --disable-pip-version-check --upgrade pip
 if [ "$want_tests" = 1 ]; then
-  .venv/bin/python -m pip install -q --disable-pip-version-check -e '.[test]'
+  .venv/bin/python -m pip install -q --disable-pip-version-check -e '.[test]' -c build_scripts/constraints.txt
 else
   .venv/bin/python -m pip install -q --disable-pip-version-check -e .
 fi
