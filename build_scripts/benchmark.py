@@ -635,6 +635,29 @@ def engines_section(bench: Bench) -> list:
     return rows + ["  Python's wasm memory (peak so far; the walk runs each panel's first example and buttons):"] + memory
 
 
+def _big_spectrum_text(n: int = 262_144) -> str:
+    """An invented 256k-point 1H spectrum (Lorentzians on noise) as JCAMP-DX DIFDUP, by the tests' writer."""
+    import random
+    sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "tests"))
+    from jcamp_writer import write_xydata
+    rng = random.Random(5)
+    centres = [n * f for f in (0.1, 0.3, 0.31, 0.55, 0.8)]
+    ys = [round(sum(20000 / (1 + ((k - c) / 3) ** 2) for c in centres)) + rng.randint(-20, 20) for k in range(n)]
+    return write_xydata(ys, "DIFDUP", first_x=6000.0, last_x=-1000.0, x_factor=7000.0 / (n - 1), per_line=72)
+
+
+def spectrum_section(bench: Bench) -> list:
+    """read_spectrum of a 256k-point JCAMP-DX file (DIFDUP), in the page and on CPython."""
+    request = {"op": "read_spectrum", "text": _big_spectrum_text(), "filename": "invented-256k.jdx"}
+    n = max(3, bench.runs)
+    page = statistics.median(page_times(bench, request, n)) / 1000
+    local = statistics.median(cpython_times(_handled(request), n)) / 1000
+    _target(bench, "256k-point JCAMP-DX spectrum read in the page, median", page, 1.0, "s")
+    return [f"  {len(request['text']) / 1e6:.2f} MB of text, 262144 points, median of {n}"] + _table(
+        ["where", "time s", "ratio"], [["page (read_spectrum op)", page, page / local],
+                                       ["CPython (read_spectrum op)", local, 1.0]])
+
+
 def summary_section(bench: Bench) -> list:
     """Each speed target collected by the sections run before, with PASS or MISS (a report only)."""
     targets = bench.__dict__.get("targets", [])
@@ -647,7 +670,8 @@ def summary_section(bench: Bench) -> list:
 
 
 SECTIONS = {"page": page_section, "engines": engines_section, "latency": latency_section, "multiplets": multiplet_section,
-            "spins": spin_section, "identify": identify_section, "summary": summary_section}
+            "spins": spin_section, "identify": identify_section, "spectrum": spectrum_section,
+            "summary": summary_section}
 
 
 def main(argv: list[str] | None = None) -> int:
