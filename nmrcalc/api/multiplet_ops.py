@@ -313,7 +313,8 @@ def op_multiplet(req, warnings):
         ref_MHz = zero_ppm_MHz(observe, field_T, proton_MHz, warnings)
     if req.get("center") not in (None, ""):
         if ref_MHz is None:
-            raise InputError("A centre in ppm needs the magnet: give 'spectrometer' or 'field'.", "spectrometer", "missing_field")
+            raise InputError("A centre in ppm needs the magnet: give 'spectrometer' or 'field'.", "spectrometer",
+                             "missing_field")
         center = quantity(req, "center", "shift")
     overrides = _abundances(req.get("abundance"), "abundance")
     min_share = _min_share(req)
@@ -406,7 +407,8 @@ DECLARED = {"multiplet": Op(
               example=[{"partner": "1H", "count": 2, "J": 7},
                        {"partner": "B", "count": 1, "J": 80, "J_isotope": "11B", "quadrupolar": "resolved"},
                        {"spin": "1/2", "count": 1, "J": "2 Hz"}, {"partner": "D", "count": 1, "J": 1}], items=(
-            Param("partner", "partner", label="Partner", help="a nuclide (2H: that isotope) or an element (B: its mixture)"),
+            Param("partner", "partner", label="Partner",
+                  help="a nuclide (2H: that isotope) or an element (B: its mixture)"),
             Param("spin", "spin", label="Spin", help="a bare spin instead of a partner, e.g. 3/2"),
             Param("count", "integer", default=1, bounds=(1, 64), label="Count", help="equivalent partners"),
             Param("J", "quantity", unit="coupling", required=True, label="J", help="the coupling, e.g. '19.3 Hz'"),

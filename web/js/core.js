@@ -124,7 +124,7 @@ const NMR = (() => {
     } else if (message.type === "boot-error") {
       window.nmrcalcStatus.state = "failed";
       window.nmrcalcStatus.error = message.message;
-      setBoot(1, "Could not start Python in this browser. Reload the page; if it persists, try another browser.", "failed");
+      setBoot(1, message.advice || "Could not start Python in this browser. Reload the page; if it persists, try another browser.", "failed");
       console.error(message.message);
       // calls sent to this worker (e.g. after a restart) would never be answered
       failWaiting("python_unavailable", "Python could not start in this browser, so nothing can be calculated. Reload the page to try again.");
@@ -139,6 +139,7 @@ const NMR = (() => {
       const resolve = waiting.get(message.id);
       waiting.delete(message.id);
       window.nmrcalcStatus.pending = waiting.size;
+      window.nmrcalcStatus.wasmBytes = message.wasmBytes;
       if (resolve) resolve(JSON.parse(message.text));
     }
   }

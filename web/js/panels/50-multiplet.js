@@ -250,7 +250,7 @@ NMR.registerPanel({
       if (g.kind !== "spin" && (g.T1 || "").trim()) req.T1 = `${g.T1.trim()} ms`;
       if (g.kind !== "spin" && g.equivalent) req.equivalent = g.equivalent === "yes";
       if (g.kind !== "spin" && (g.site_isotope || "").trim()) req.abundance = { [g.site_isotope.trim()]: (g.site_percent || "").trim() };
-      if (g.kind !== "spin" && (g.shift_isotope || "").trim()) req.isotope_shift = { [g.shift_isotope.trim()]: `${(g.shift_ppm || "").trim()} ppm` };
+      if (g.kind !== "spin" && (g.shift_isotope || "").trim()) req.isotope_shift = { [g.shift_isotope.trim()]: (g.shift_ppm || "").trim() };
       return req;
     }
     function request() {

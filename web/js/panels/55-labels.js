@@ -66,7 +66,7 @@ NMR.registerPanel({
       fields: [
         { id: "positions", label: "H/D positions at the site", value: "3", inputmode: "numeric", keys: ["positions"] },
         { id: "integrals", label: "Isotopologue integrals, k = 0, 1, 2 …", value: "0.2, 3.8, 27.9, 68.1", placeholder: "comma separated", wide: true, keys: ["integrals"] },
-        { id: "observed", label: "Integrals measured on", kind: "select", options: [["once_per_molecule", "a nucleus every species has once (e.g. 13C)"], ["site_1H", "the site's own 1H (k = 0 … n−1)"]], keys: ["observed_on"] },
+        { id: "observed", label: "Integrals measured on", kind: "select", options: [["once_per_molecule", "once per molecule (13C)"], ["site_1H", "the site's own 1H"]], keys: ["observed_on"] },
         { id: "error", label: "Error of each integral", value: "", placeholder: "1 % of the largest", inputmode: "decimal", keys: ["integral_error"] },
         { id: "residual", label: "Residual 1H integral of the site", value: "", inputmode: "decimal", keys: ["residual.integral", "residual"] },
         { id: "standard", label: "Standard's integral", value: "1", inputmode: "decimal", keys: ["residual.standard_integral"] },
@@ -82,7 +82,7 @@ NMR.registerPanel({
         if (v.error.value !== "") req.integral_error = num(v.error.value);
         if (v.residual.value !== "") {
           req.residual = { integral: num(v.residual.value), standard_integral: num(v.standard.value), standard_nuclei: num(v.nuclei.value), standard_per_analyte: num(v.ratio.value) };
-          if (v.relerr.value !== "") req.residual.relative_error = `${v.relerr.value} %`;
+          if (v.relerr.value !== "") req.residual.relative_error = v.relerr.value;
         }
         return req;
       },
