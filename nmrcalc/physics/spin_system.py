@@ -47,6 +47,8 @@ Public interface::
     simulate(sites, couplings, observe, *, use_numpy=None, factor_equivalence=True,
              merge_tol_Hz=1e-3, min_rel_intensity=1e-6, progress=None)
         -> list[tuple[float, float]]   # (freq_Hz, intensity), ascending freq_Hz
+    transitions(same arguments) -> list[tuple[float, float, int]]  # plus the site each line mostly belongs to
+    components(n_sites, couplings) -> list[list[int]]   # sites joined by coupling paths
     first_order_checks(sites, couplings, threshold=10.0, spectrometer_1H_MHz=None)
         -> list[dict]
     equivalence_caveats(sites, couplings, shift_tol_Hz=1e-6, J_tol_Hz=1e-6) -> list[str]
@@ -236,6 +238,11 @@ class _Unit:
     site: int
 
 
+def components(n_sites: int, couplings) -> list[list[int]]:
+    """Sites joined by chains of non-zero couplings (solved separately and summed: exact)."""
+    return _components(n_sites, _checked_couplings(couplings, n_sites))
+
+
 def _components(n_sites: int, J: dict[tuple[int, int], float]) -> list[list[int]]:
     """Connected components of the coupling graph (non-zero J only), each sorted."""
     parent = list(range(n_sites))
@@ -409,35 +416,46 @@ def _composition_lines(units, spins, J_units, observe, weight, solve, emit, tick
         if tuple(target) not in solved:
             continue
         f_states, f_index, (E_f, V_f) = solved[tuple(target)]
-        entries = []  # (row in i block, row in f block, <t|F_+|s>)
+        entries = []  # (row in i block, row in f block, <t|I_+a|s>, site of spin a)
         for si, s in enumerate(states):
             for a in obs_spins:
                 if s[a] < two_fs[a]:
                     t = list(s)
                     t[a] += 2
-                    entries.append((si, f_index[tuple(t)], _ladder(two_fs[a], s[a], True)))
-        for freq, amp in _transition_amplitudes(entries, len(f_states), E_i, V_i, E_f, V_f):
-            emit(freq, 0.25 * weight * amp * amp)
+                    entries.append((si, f_index[tuple(t)], _ladder(two_fs[a], s[a], True), units[spins[a][0]].site))
+        for freq, amp, site in _transition_amplitudes(entries, len(f_states), E_i, V_i, E_f, V_f):
+            emit(freq, 0.25 * weight * amp * amp, site)
 
 
 def _transition_amplitudes(entries, dim_f, E_i, V_i, E_f, V_f):
-    """Yield (E_f[a] − E_i[b], <f_a|F_+|i_b>) for every eigenpair across two blocks."""
+    """Yield (E_f[a] − E_i[b], <f_a|F_+|i_b>, site) for every eigenpair across two blocks.
+
+    ``site`` is the observed site whose own I_+ gives the largest part
+    |<f_a|Σ_site I_+|i_b>|² of the amplitude: the spin the line "mostly belongs to".
+    """
+    sites = sorted({tag for *_, tag in entries})
     if hasattr(V_i, "shape"):  # numpy arrays: columns are eigenvectors
         import numpy
 
-        P = numpy.zeros((dim_f, len(E_i)))
-        for si, ti, c in entries:
-            P[ti, si] += c
-        A = V_f.T @ P @ V_i
+        parts = []
+        for site in sites:
+            P = numpy.zeros((dim_f, len(E_i)))
+            for si, ti, c, tag in entries:
+                if tag == site:
+                    P[ti, si] += c
+            parts.append(V_f.T @ P @ V_i)
+        A = sum(parts)
+        owner = numpy.argmax(numpy.stack([p * p for p in parts]), axis=0)
         freqs = E_f[:, None] - E_i[None, :]
-        yield from zip(freqs.ravel().tolist(), A.ravel().tolist())
+        yield from zip(freqs.ravel().tolist(), A.ravel().tolist(), [sites[k] for k in owner.ravel().tolist()])
         return
     for Eb, vb in zip(E_i, V_i):
-        w = [0.0] * dim_f
-        for si, ti, c in entries:
-            w[ti] += c * vb[si]
+        ws = {site: [0.0] * dim_f for site in sites}
+        for si, ti, c, tag in entries:
+            ws[tag][ti] += c * vb[si]
         for Ea, va in zip(E_f, V_f):
-            yield Ea - Eb, sum(map(mul, va, w))
+            parts = {site: sum(map(mul, va, w)) for site, w in ws.items()}
+            yield Ea - Eb, sum(parts.values()), max(parts, key=lambda k: parts[k] ** 2)
 
 
 def _solver(use_numpy):
@@ -453,19 +471,24 @@ def _solver(use_numpy):
     return lambda H: numpy.linalg.eigh(numpy.array(H, dtype=float))
 
 
-def _merge(lines, tol_Hz: float) -> list[tuple[float, float]]:
-    """Join lines whose position is within ``tol_Hz`` of the running weighted mean."""
-    merged: list[list[float]] = []
-    for freq, inten in sorted(lines):
+def _merge(lines, tol_Hz: float) -> list[tuple[float, float, int]]:
+    """Join lines whose position is within ``tol_Hz`` of the running weighted mean.
+
+    Each line is (freq, intensity, site); a merged line keeps the site of its strongest part.
+    """
+    merged: list[list] = []
+    for freq, inten, site in sorted(lines):
         if merged and freq - merged[-1][0] <= tol_Hz:
             last = merged[-1]
             total = last[1] + inten
             if total > 0.0:
                 last[0] = (last[0] * last[1] + freq * inten) / total
             last[1] = total
+            if inten > last[3]:
+                last[2], last[3] = site, inten
         else:
-            merged.append([freq, inten])
-    return [(f, i) for f, i in merged]
+            merged.append([freq, inten, site, inten])
+    return [(f, i, site) for f, i, site, _ in merged]
 
 
 def _count_text(n: int) -> str:
@@ -479,6 +502,21 @@ def simulate(sites, couplings, observe: str, *, use_numpy: bool | None = None,
              factor_equivalence: bool = True, merge_tol_Hz: float = 1e-3,
              min_rel_intensity: float = 1e-6, progress=None) -> list[tuple[float, float]]:
     """Lines (freq_Hz, intensity) of the ``observe`` nuclide, ascending in frequency.
+
+    Same arguments as ``transitions``, which also names the site of each line.
+    """
+    return [(f, i) for f, i, _ in transitions(
+        sites, couplings, observe, use_numpy=use_numpy, factor_equivalence=factor_equivalence,
+        merge_tol_Hz=merge_tol_Hz, min_rel_intensity=min_rel_intensity, progress=progress)]
+
+
+def transitions(sites, couplings, observe: str, *, use_numpy: bool | None = None,
+                factor_equivalence: bool = True, merge_tol_Hz: float = 1e-3,
+                min_rel_intensity: float = 1e-6, progress=None) -> list[tuple[float, float, int]]:
+    """Lines (freq_Hz, intensity, site) of the ``observe`` nuclide, ascending in frequency.
+
+    ``site`` is the index of the observed site the line mostly belongs to
+    (largest share of its transition amplitude, ``_transition_amplitudes``).
 
     ``use_numpy``: None = numpy.linalg.eigh when importable, False = pure Python,
     True = require numpy.  Lines closer than ``merge_tol_Hz`` are merged at their
@@ -535,8 +573,8 @@ def simulate(sites, couplings, observe: str, *, use_numpy: bool | None = None,
                 if ua.site != ub.site:
                     unit_J[a][b] = J.get((min(ua.site, ub.site), max(ua.site, ub.site)), 0.0)
 
-        def emit(freq, inten, scale=scale):
-            raw.append((freq, inten * scale))
+        def emit(freq, inten, site, scale=scale):
+            raw.append((freq, inten * scale, site))
 
         for spins, weight in _compositions(units):
             _composition_lines(units, spins, lambda a, b: unit_J[a][b], observe,
@@ -545,8 +583,8 @@ def simulate(sites, couplings, observe: str, *, use_numpy: bool | None = None,
     if progress is not None:
         progress(1.0)
     lines = _merge(raw, merge_tol_Hz)
-    strongest = max((i for _, i in lines), default=0.0)
-    return [(f, i) for f, i in lines if i > 0.0 and i >= min_rel_intensity * strongest]
+    strongest = max((i for _, i, _ in lines), default=0.0)
+    return [(f, i, site) for f, i, site in lines if i > 0.0 and i >= min_rel_intensity * strongest]
 
 
 # ------------------------------------------------------------ diagnostics
@@ -592,14 +630,16 @@ def first_order_checks(sites, couplings, threshold: float = 10.0,
     return out
 
 
-def equivalence_caveats(sites, couplings, shift_tol_Hz: float = 1e-6, J_tol_Hz: float = 1e-6) -> list[str]:
+def equivalence_caveats(sites, couplings, shift_tol_Hz: float = 1e-6, J_tol_Hz: float = 1e-6,
+                        labels: list[str] | None = None) -> list[str]:
     """Warn about chemically equivalent but magnetically inequivalent site pairs.
 
     Two sites of one nucleus at the same shift (within ``shift_tol_Hz``) whose
     couplings to some third site differ (by more than ``J_tol_Hz``) form an
     AA′XX′-type system: its spectrum is second order at every field, because the
     A/A′ shift difference that would have to exceed J is zero (Pople, Schneider &
-    Bernstein 1959, ch. 6, AA′BB′ / AA′XX′ systems).
+    Bernstein 1959, ch. 6, AA′BB′ / AA′XX′ systems).  ``labels`` names the sites
+    in the messages (default "site 1", "site 2", … counted from 1).
     """
     sites = _checked_sites(sites)
     J = _checked_couplings(couplings, len(sites))
@@ -609,19 +649,21 @@ def equivalence_caveats(sites, couplings, shift_tol_Hz: float = 1e-6, J_tol_Hz: 
     def coupling(a, b):
         return J.get((min(a, b), max(a, b)), 0.0)
 
+    names = labels if labels is not None else [f"site {k + 1}" for k in range(len(sites))]
+
     out = []
     for i, j in itertools.combinations(range(len(sites)), 2):
         si, sj = sites[i], sites[j]
         if si.nucleus != sj.nucleus or abs(si.offset_Hz - sj.offset_Hz) > shift_tol_Hz:
             continue
         diffs = [
-            f"site {k}: {coupling(i, k):g} Hz vs {coupling(j, k):g} Hz"
+            f"{names[k]}: {coupling(i, k):g} Hz vs {coupling(j, k):g} Hz"
             for k in range(len(sites))
             if k not in (i, j) and abs(coupling(i, k) - coupling(j, k)) > J_tol_Hz
         ]
         if diffs:
             out.append(
-                f"sites {i} and {j} ({si.nucleus}, same shift) couple differently to "
+                f"{names[i]} and {names[j]} ({si.nucleus}, same shift) couple differently to "
                 + "; ".join(diffs)
                 + ": magnetically inequivalent (AA′XX′-type): never first order"
             )
