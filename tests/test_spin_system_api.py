@@ -161,3 +161,27 @@ def test_seven_coupled_protons_with_narrow_lines_are_drawn():
     r = run({"op": "spin_system", "observe": "1H", "spectrometer": "400 MHz", "spins": spins,
              "couplings": couplings, "spectrum": True, "linewidth": "0.8 Hz"})
     assert len(r["lines"]) > 1000 and len(r["spectrum"]["y"]) == len(r["spectrum"]["x_ppm"])
+
+
+def test_weak_links_split_unless_exact():
+    # made-up 4-ethylphenyl fragment at 400 MHz: the 0.6 Hz benzylic links (Δν = 1800 Hz) are weak
+    spins = [{"nucleus": "1H", "shift": s, "label": name} for s, name in
+             ((7.10, "H-2"), (7.10, "H-6"), (7.00, "H-3"), (7.00, "H-5"))]
+    spins += [{"nucleus": "1H", "shift": 2.60, "count": 2, "label": "CH2"},
+              {"nucleus": "1H", "shift": 1.20, "count": 3, "label": "CH3"}]
+    couplings = [{"between": a, "J": J} for a, J in ((["H-2", "H-3"], 8.2), (["H-6", "H-5"], 8.2),
+                                                      (["H-2", "H-5"], 0.4), (["H-6", "H-3"], 0.4),
+                                                      (["H-2", "H-6"], 2.1), (["H-3", "H-5"], 2.6),
+                                                      (["CH2", "CH3"], 7.6), (["H-2", "CH2"], 0.6),
+                                                      (["H-6", "CH2"], 0.6))]
+    req = {"op": "spin_system", "observe": "1H", "spectrometer": "400 MHz", "spins": spins, "couplings": couplings}
+    split, exact = run(req), run({**req, "exact": True})
+    assert [(c["labels"], c["method"]) for c in split["clusters"]] == [
+        (["H-2", "H-6", "H-3", "H-5"], "weak-link"), (["CH2", "CH3"], "weak-link")]
+    assert [c["method"] for c in exact["clusters"]] == ["exact"] and exact["weak_link_tol_Hz"] is None
+    bound = max(c["error_Hz"] for c in split["clusters"])
+    assert bound < 0.01
+    exact_Hz = [l["Hz"] for l in exact["lines"]]
+    for line in split["lines"]:
+        if line["intensity"] > 1e-3:
+            assert min(abs(line["Hz"] - x) for x in exact_Hz) <= bound + 2e-3  # 2e-3: merge tolerances

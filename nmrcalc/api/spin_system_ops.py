@@ -9,9 +9,12 @@ page name spins by label, and ``between`` accepts labels or 0-based indices.
 Result: ``lines`` (observed transitions, merged), ``transitions`` (the same
 lines with ``spin``, the index of the observed spin each mostly belongs to, and
 its label), ``clusters`` (sites joined by coupling paths, each solved alone and
-summed — exact, since their Hamiltonians commute; ``method`` "exact",
-``error_Hz`` 0; ``"exact": true`` asks for exact clusters only, which every
-cluster is here) and ``first_order_threshold`` (the Δν/J used by ``checks``).
+summed — exact, since their Hamiltonians commute; clusters joined only by weak
+links, |Δν| >= 20 |J| and J²/|Δν| <= ``WEAK_LINK_TOL_HZ`` in Hz at the chosen
+field, are solved apart with those links to first order, ``method``
+"weak-link" and ``error_Hz`` the estimate of ``spin_system.clusters``;
+``"exact": true`` solves every link exactly) and ``first_order_threshold``
+(the Δν/J used by ``checks``).
 
 ``factor_equivalence`` (default true) lets the solver use groups of equivalent
 spins (total spin of each group); false expands every nucleus (same lines,
@@ -30,12 +33,13 @@ from nmrcalc.errors import InputError
 from nmrcalc.nuclides import Nuclide
 from nmrcalc.physics import larmor, lineshape
 from nmrcalc.physics.multiplet import multiplet
-from nmrcalc.physics.spin_system import (MAX_COUNT, Site, components, equivalence_caveats, first_order_checks,
+from nmrcalc.physics.spin_system import (MAX_COUNT, Site, clusters, equivalence_caveats, first_order_checks,
                                          transitions)
 
 MAX_FIELDS = 12
 MAX_SPINS = 64  # spin entries in one request; each may stand for up to MAX_COUNT equivalent nuclei
 MAX_LABEL = 24
+WEAK_LINK_TOL_HZ = 0.01  # J²/|Δν| of a link treated to first order (Hz)
 FIRST_ORDER_THRESHOLD = 10.0  # Δν/|J| at or above which a pair is called first order (rule of thumb)
 
 
@@ -162,8 +166,9 @@ def _line_dicts(lines, ref_MHz):
 def _block(spins, labels, couplings, observe, field_T, proton_MHz, req, progress=None) -> dict:
     sites = [Site(nuc.symbol, nuc.spin, shift * _ref_MHz(nuc, field_T, proton_MHz), count)
              for nuc, shift, count in spins]
-    found = transitions(sites, couplings, observe.symbol,
-                        factor_equivalence=flag(req, "factor_equivalence", True), progress=progress)
+    tol = None if flag(req, "exact") else WEAK_LINK_TOL_HZ
+    found = transitions(sites, couplings, observe.symbol, factor_equivalence=flag(req, "factor_equivalence", True),
+                        progress=progress, weak_link_tol_Hz=tol)
     lines = [(x, y) for x, y, _ in found]
     ref = _ref_MHz(observe, field_T, proton_MHz)
     checks = [{"pair": list(c["pair"]), "labels": [labels[k] for k in c["pair"]], "nucleus": c["nucleus"],
@@ -172,11 +177,11 @@ def _block(spins, labels, couplings, observe, field_T, proton_MHz, req, progress
                "first_order_from_MHz": c.get("threshold_1H_MHz")}
               for c in first_order_checks(sites, couplings, threshold=FIRST_ORDER_THRESHOLD,
                                           spectrometer_1H_MHz=proton_MHz)]
-    clusters = [{"spins": group, "labels": [labels[k] for k in group], "method": "exact", "error_Hz": 0.0}
-                for group in components(len(sites), couplings)]
+    groups = [{"spins": c["spins"], "labels": [labels[k] for k in c["spins"]], "method": c["method"],
+               "error_Hz": c["error_Hz"]} for c in clusters(sites, couplings, observe.symbol, tol)]
     block = {"spectrometer_MHz": proton_MHz, "field_T": field_T, "observe_MHz": ref,
              "lines": _line_dicts(lines, ref), "checks": checks, "first_order_threshold": FIRST_ORDER_THRESHOLD,
-             "clusters": clusters,
+             "clusters": groups, "weak_link_tol_Hz": tol,
              "transitions": [{"Hz": x, "ppm": x / ref, "intensity": y, "spin": k, "label": labels[k]}
                              for x, y, k in found]}
     first = _first_order_lines(sites, couplings, observe.symbol)
@@ -205,7 +210,6 @@ def op_spin_system(req, warnings):
     labels = _labels(req)
     couplings = _couplings(req, labels)
     magnets = _magnets(req, warnings)
-    flag(req, "exact")  # read (and type-checked); every cluster is solved exactly, so it always holds
     report = PROGRESS.get()
     blocks = []
     for k, (f, p) in enumerate(magnets):

@@ -238,6 +238,63 @@ class _Unit:
     site: int
 
 
+WEAK_LINK_MIN_RATIO = 20.0  # |Δν|/|J| a weak link needs besides J²/|Δν| <= tolerance
+
+
+def _split_links(sites, J, observe, tol_Hz):
+    """(strong, weak) couplings: weak = like observed spins with |Δν| >= 20|J| and J²/|Δν| <= tol_Hz."""
+    if tol_Hz is None:
+        return J, {}
+    strong, weak = {}, {}
+    for (i, j), J_ij in J.items():
+        delta = abs(sites[i].offset_Hz - sites[j].offset_Hz)
+        if (sites[i].nucleus == sites[j].nucleus == observe and delta >= WEAK_LINK_MIN_RATIO * abs(J_ij)
+                and J_ij * J_ij <= tol_Hz * delta):
+            weak[(i, j)] = J_ij
+        else:
+            strong[(i, j)] = J_ij
+    # a weak link inside one strongly joined cluster gains nothing: it is solved exactly there
+    roots = {s: k for k, group in enumerate(_components(len(sites), strong)) for s in group}
+    for pair in [p for p in weak if roots[p[0]] == roots[p[1]]]:
+        strong[pair] = weak.pop(pair)
+    return strong, weak
+
+
+def clusters(sites, couplings, observe: str, weak_link_tol_Hz: float | None = None) -> list[dict]:
+    """Clusters solved apart: {"spins", "method" ("exact" | "weak-link"), "error_Hz", "links"}.
+
+    Sites joined by no coupling path are exact apart.  With ``weak_link_tol_Hz``
+    a coupling between like observed sites with |Δν| >= 20 |J| and J²/|Δν| <=
+    ``weak_link_tol_Hz`` (both in Hz at the chosen field) is a weak link, treated to
+    first order.  The neglected flip-flop terms J/2 (F_+ F_− + F_− F_+) between
+    the clusters shift each level by second-order perturbation theory by at most
+    (Σ_links |J| c_i c_j)² / (4 |Δν|) (the amplitudes of one cluster's links can
+    add; c = (n + 1)/2 bounds a ladder element of a group of n spins-½; for one
+    AB pair this is J²/(4Δν), the AB quartet's C = √(Δν² + J²) ≈ Δν + J²/(2Δν)),
+    so a line moves by about twice that.  ``error_Hz`` is that times 4, a margin
+    for energy denominators of strongly coupled clusters spread below Δν and for
+    near-degenerate lines: 2 (Σ_links |J| c_i c_j)² / min |Δν|.  The margin is
+    set by the dense numpy reference (tests/test_spin_clusters.py: at 60 MHz a
+    strongly coupled ethyl line moved 0.013 Hz against an unmargined 0.006 Hz).
+    """
+    sites = _checked_sites(sites)
+    J = _checked_couplings(couplings, len(sites))
+    _checked_observe(sites, observe)
+    if weak_link_tol_Hz is not None:
+        weak_link_tol_Hz = _checked_real(weak_link_tol_Hz, "weak_link_tol_Hz")
+    strong, weak = _split_links(sites, J, observe, weak_link_tol_Hz)
+    out = []
+    for group in _components(len(sites), strong):
+        links = [(i, j, J_ij) for (i, j), J_ij in sorted(weak.items()) if i in group or j in group]
+        c = [(sites[k].count * float(2 * sites[k].spin) + 1) / 2 for k in range(len(sites))]
+        amplitude = sum(abs(J_ij) * c[i] * c[j] for i, j, J_ij in links)
+        error = 2 * amplitude ** 2 / min((abs(sites[i].offset_Hz - sites[j].offset_Hz) for i, j, _ in links),
+                                     default=1.0)
+        out.append({"spins": group, "method": "weak-link" if links else "exact", "error_Hz": error,
+                    "links": links})
+    return out
+
+
 def components(n_sites: int, couplings) -> list[list[int]]:
     """Sites joined by chains of non-zero couplings (solved separately and summed: exact)."""
     return _components(n_sites, _checked_couplings(couplings, n_sites))
@@ -389,8 +446,36 @@ def _block_hamiltonian(states, index, nu, two_fs, pairs) -> list[list[float]]:
     return H
 
 
-def _composition_lines(units, spins, J_units, observe, weight, solve, emit, tick):
-    """Diagonalize every block of one composition and emit (freq_Hz, raw intensity)."""
+def _expectations(states, V, link_pos, n_linked):
+    """<Σ I_z> of each linked site in every eigenvector of one block (tuples in ``link_pos`` order)."""
+    if not n_linked:
+        return None
+    if not link_pos:  # every linked group of this composition has total spin 0
+        return [(0.0,) * n_linked] * len(states)
+    if hasattr(V, "shape"):
+        import numpy
+
+        W = V * V  # columns: eigenvectors
+        z = numpy.zeros((W.shape[1], n_linked))
+        for a, slot in link_pos:
+            z[:, slot] += numpy.array([st[a] / 2 for st in states]) @ W
+        return [tuple(row) for row in z.tolist()]
+    out = []
+    for v in V:
+        z = [0.0] * n_linked
+        for a, slot in link_pos:
+            z[slot] += sum(c * c * st[a] for c, st in zip(v, states)) / 2
+        out.append(tuple(z))
+    return out
+
+
+def _composition_lines(units, spins, J_units, observe, weight, solve, emit, tick, linked=None, record=None):
+    """Diagonalize every block of one composition and emit (freq_Hz, raw intensity, site, Δ<I_z>).
+
+    ``linked`` maps every weakly linked site (of all clusters) to a slot; then each line also carries
+    the change of <Σ I_z> of every linked site (final − initial eigenstate) and
+    ``record(weight, z)`` receives every eigenstate's <Σ I_z> per slot.
+    """
     nuclei = list(dict.fromkeys(units[k].nucleus for k, _ in spins))
     nuc_of = [nuclei.index(units[k].nucleus) for k, _ in spins]
     obs = nuclei.index(observe) if observe in nuclei else None
@@ -404,10 +489,15 @@ def _composition_lines(units, spins, J_units, observe, weight, solve, emit, tick
             Jab = J_units(spins[a][0], spins[b][0])
             if Jab != 0.0:
                 pairs.append((a, b, Jab, nuc_of[a] == nuc_of[b]))
-    solved = {}
+    link_pos = [(a, linked[units[k].site]) for a, (k, _) in enumerate(spins) if linked and units[k].site in linked]
+    solved, expect = {}, {}
     for key, states in _blocks(two_fs, nuc_of, len(nuclei)).items():
         index = {s: i for i, s in enumerate(states)}
         solved[key] = (states, index, solve(_block_hamiltonian(states, index, nu, two_fs, pairs)))
+        expect[key] = _expectations(states, solved[key][2][1], link_pos, len(linked or ()))
+        if record is not None and linked:
+            for z in expect[key]:
+                record(weight, z)
         tick(len(states) ** 3)
     obs_spins = [a for a in range(len(spins)) if nuc_of[a] == obs]
     for key, (states, _, (E_i, V_i)) in solved.items():
@@ -423,12 +513,14 @@ def _composition_lines(units, spins, J_units, observe, weight, solve, emit, tick
                     t = list(s)
                     t[a] += 2
                     entries.append((si, f_index[tuple(t)], _ladder(two_fs[a], s[a], True), units[spins[a][0]].site))
-        for freq, amp, site in _transition_amplitudes(entries, len(f_states), E_i, V_i, E_f, V_f):
-            emit(freq, 0.25 * weight * amp * amp, site)
+        z_i, z_f = expect[key], expect[tuple(target)]
+        for freq, amp, site, fa, ib in _transition_amplitudes(entries, len(f_states), E_i, V_i, E_f, V_f):
+            d = () if z_i is None else tuple(x - y for x, y in zip(z_f[fa], z_i[ib]))
+            emit(freq, 0.25 * weight * amp * amp, site, d)
 
 
 def _transition_amplitudes(entries, dim_f, E_i, V_i, E_f, V_f):
-    """Yield (E_f[a] − E_i[b], <f_a|F_+|i_b>, site) for every eigenpair across two blocks.
+    """Yield (E_f[a] − E_i[b], <f_a|F_+|i_b>, site, a, b) for every eigenpair across two blocks.
 
     ``site`` is the observed site whose own I_+ gives the largest part
     |<f_a|Σ_site I_+|i_b>|² of the amplitude: the spin the line "mostly belongs to".
@@ -447,15 +539,17 @@ def _transition_amplitudes(entries, dim_f, E_i, V_i, E_f, V_f):
         A = sum(parts)
         owner = numpy.argmax(numpy.stack([p * p for p in parts]), axis=0)
         freqs = E_f[:, None] - E_i[None, :]
-        yield from zip(freqs.ravel().tolist(), A.ravel().tolist(), [sites[k] for k in owner.ravel().tolist()])
+        n_i = len(E_i)
+        for k, (f, a, o) in enumerate(zip(freqs.ravel().tolist(), A.ravel().tolist(), owner.ravel().tolist())):
+            yield f, a, sites[o], k // n_i, k % n_i
         return
-    for Eb, vb in zip(E_i, V_i):
+    for ib, (Eb, vb) in enumerate(zip(E_i, V_i)):
         ws = {site: [0.0] * dim_f for site in sites}
         for si, ti, c, tag in entries:
             ws[tag][ti] += c * vb[si]
-        for Ea, va in zip(E_f, V_f):
+        for fa, (Ea, va) in enumerate(zip(E_f, V_f)):
             parts = {site: sum(map(mul, va, w)) for site, w in ws.items()}
-            yield Ea - Eb, sum(parts.values()), max(parts, key=lambda k: parts[k] ** 2)
+            yield Ea - Eb, sum(parts.values()), max(parts, key=lambda k: parts[k] ** 2), fa, ib
 
 
 def _solver(use_numpy):
@@ -512,8 +606,13 @@ def simulate(sites, couplings, observe: str, *, use_numpy: bool | None = None,
 
 def transitions(sites, couplings, observe: str, *, use_numpy: bool | None = None,
                 factor_equivalence: bool = True, merge_tol_Hz: float = 1e-3,
-                min_rel_intensity: float = 1e-6, progress=None) -> list[tuple[float, float, int]]:
+                min_rel_intensity: float = 1e-6, progress=None,
+                weak_link_tol_Hz: float | None = None) -> list[tuple[float, float, int]]:
     """Lines (freq_Hz, intensity, site) of the ``observe`` nuclide, ascending in frequency.
+
+    ``weak_link_tol_Hz``: None = exact; otherwise couplings that pass the weak-link
+    test of ``clusters`` are treated to first order (each cluster's lines split by
+    the other cluster's eigenstates, module docstring) and the rest exactly.
 
     ``site`` is the index of the observed site the line mostly belongs to
     (largest share of its transition amplitude, ``_transition_amplitudes``).
@@ -537,6 +636,9 @@ def transitions(sites, couplings, observe: str, *, use_numpy: bool | None = None
     if progress is not None and not callable(progress):
         raise InputError("progress must be callable", field="progress")
     solve = _solver(use_numpy)
+    if weak_link_tol_Hz is not None:
+        weak_link_tol_Hz = _checked_real(weak_link_tol_Hz, "weak_link_tol_Hz")
+    J, weak = _split_links(sites, J, observe, weak_link_tol_Hz)
 
     plan = _plan(sites, J, observe, factor_equivalence)
     largest, total_dim, work = _size_report(plan)
@@ -563,7 +665,10 @@ def transitions(sites, couplings, observe: str, *, use_numpy: bool | None = None
         if progress is not None:
             progress(min(1.0, done[0] / work))
 
-    raw: list[tuple[float, float]] = []
+    raw: list[tuple[float, float, int]] = []
+    linked_sites = sorted({s for pair in weak for s in pair})
+    slot = {site: k for k, site in enumerate(linked_sites)}
+    held = []  # per weakly linked cluster: (its lines with Δ<I_z>, its eigenstates' weight and <I_z>)
     for component, units, _ in plan:
         full_dim = math.prod(int(2 * sites[s].spin + 1) ** sites[s].count for s in component)
         scale = 6.0 / (float(full_dim) * sum_rule)
@@ -573,12 +678,43 @@ def transitions(sites, couplings, observe: str, *, use_numpy: bool | None = None
                 if ua.site != ub.site:
                     unit_J[a][b] = J.get((min(ua.site, ub.site), max(ua.site, ub.site)), 0.0)
 
-        def emit(freq, inten, site, scale=scale):
-            raw.append((freq, inten * scale, site))
+        linked = {s: slot[s] for s in component if s in slot}
+        own: list = []
+        states: list = []
+
+        def emit(freq, inten, site, d, scale=scale, own=own):
+            if linked:
+                if inten > 0.0:
+                    own.append((freq, inten * scale, site, d))
+            else:
+                raw.append((freq, inten * scale, site))
+
+        def record(weight, z, states=states, full_dim=full_dim):
+            states.append((weight / full_dim, z))
 
         for spins, weight in _compositions(units):
             _composition_lines(units, spins, lambda a, b: unit_J[a][b], observe,
-                               float(weight), solve, emit, tick)
+                               float(weight), solve, emit, tick, slot if linked else None, record)
+        if linked:
+            held.append((set(component), own, states))
+
+    for component, own, _ in held:
+        partners = []
+        for other, _, states in held:
+            if other is component:
+                continue
+            links = [(slot[a], slot[b], J_ab) for (i, j), J_ab in weak.items()
+                     for a, b in ((i, j), (j, i)) if a in component and b in other]
+            if links:
+                partners.append((links, states))
+        for freq, inten, site, d in own:
+            shifts = [(0.0, inten)]
+            for links, states in partners:
+                # first order: the other cluster's eigenstate shifts this line by Σ J d_a <I_zb>
+                spread = _merge([(sum(J_ab * d[a] * z[b] for a, b, J_ab in links), p, 0)
+                                 for p, z in states], merge_tol_Hz / 10)
+                shifts = [(x + y, w * p) for x, w in shifts for y, p, _ in spread]
+            raw.extend((freq + x, w, site) for x, w in shifts)
 
     if progress is not None:
         progress(1.0)
