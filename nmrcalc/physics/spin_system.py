@@ -707,14 +707,19 @@ def transitions(sites, couplings, observe: str, *, use_numpy: bool | None = None
                      for a, b in ((i, j), (j, i)) if a in component and b in other]
             if links:
                 partners.append((links, states))
+        spreads: dict = {}
         for freq, inten, site, d in own:
-            shifts = [(0.0, inten)]
-            for links, states in partners:
-                # first order: the other cluster's eigenstate shifts this line by Σ J d_a <I_zb>
-                spread = _merge([(sum(J_ab * d[a] * z[b] for a, b, J_ab in links), p, 0)
-                                 for p, z in states], merge_tol_Hz / 10)
-                shifts = [(x + y, w * p) for x, w in shifts for y, p, _ in spread]
-            raw.extend((freq + x, w, site) for x, w in shifts)
+            # first order: the other cluster's eigenstate shifts this line by Σ J d_a <I_zb>; lines with
+            # the same Δ<I_z> (to 1e-9) share one distribution of shifts
+            key = tuple(round(x, 9) for x in d)
+            if key not in spreads:
+                shifts = [(0.0, 1.0)]
+                for links, states in partners:
+                    spread = _merge([(sum(J_ab * d[a] * z[b] for a, b, J_ab in links), p, 0)
+                                     for p, z in states], merge_tol_Hz / 10)
+                    shifts = [(x + y, w * p) for x, w in shifts for y, p, _ in spread]
+                spreads[key] = shifts
+            raw.extend((freq + x, w * inten, site) for x, w in spreads[key])
 
     if progress is not None:
         progress(1.0)
