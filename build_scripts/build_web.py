@@ -38,6 +38,7 @@ APP_ZIP = "/home/pyodide/nmrcalc.zip"  # where web/worker.js puts nmrcalc.zip (i
 
 # Content-Security-Policy, set by <meta> (a static host or file:// gives no headers).
 # Site: only the site's own files, plus the inline worker starter (web/boot.js) by its sha256 hash;
+# img-src data: because the PNG plot export draws the plot's SVG, as a data: URL, into a canvas;
 # 'wasm-unsafe-eval' is needed to compile Pyodide's wasm.
 # Single file: inline style and script allowed by sha256 hash only; the worker and the two
 # Pyodide JS modules must be data: URLs (a file:// page has an opaque origin, so blob: module
@@ -46,7 +47,7 @@ APP_ZIP = "/home/pyodide/nmrcalc.zip"  # where web/worker.js puts nmrcalc.zip (i
 # Not possible by <meta>: frame-ancestors, report-uri/report-to, sandbox (header-only).
 SITE_CSP = (
     "default-src 'self'; script-src 'self' 'wasm-unsafe-eval'; worker-src 'self'; "
-    "connect-src 'self'; img-src 'self'; style-src 'self'; manifest-src 'self'; "
+    "connect-src 'self'; img-src 'self' data:; style-src 'self'; manifest-src 'self'; "
     "object-src 'none'; base-uri 'none'; form-action 'none'"
 )
 
@@ -175,8 +176,24 @@ def service_worker(files: list[str], version: str) -> str:
     )
 
 
+def declarations_json(package_dir: Path) -> str:
+    """Every op's declared parameters ({"op": "describe"}), for the panels' labels, units, hints and
+    defaults; '<' escaped so the JSON cannot end its <script type="application/json"> block."""
+    sys.path.insert(0, str(package_dir.resolve().parent))
+    try:
+        from nmrcalc.api import handle
+        described = handle({"op": "describe"})["result"]
+    finally:
+        sys.path.pop(0)
+    return json.dumps(described, ensure_ascii=False, separators=(",", ":")).replace("<", "\\u003c")
+
+
 def fill(template: str, head: str, body: str, csp: str, version: str) -> str:
-    return template.replace("@CSP@", csp).replace("@VERSION@", version).replace("@HEAD@", head).replace("@BODY@", body)
+    return (template.replace("@CSP@", csp).replace("@VERSION@", version).replace("@HEAD@", head)
+            .replace("@PARAMS@", PARAMS_JSON[0]).replace("@BODY@", body))
+
+
+PARAMS_JSON = [""]  # set once by main() from the package being built
 
 
 def build_site(out: Path, package_bytes: bytes, version: str) -> None:
@@ -248,6 +265,14 @@ def core_size() -> int:
     return sum((PYODIDE_DIR / name).stat().st_size for name in CORE_FILES)
 
 
+def write_notices(folders: list[Path]) -> None:
+    """THIRD-PARTY-NOTICES.txt (Pyodide's MPL-2.0, CPython's PSF licence) beside each built page."""
+    pyodide_version = json.loads((PYODIDE_DIR / "package.json").read_text())["version"]
+    text = (WEB / "THIRD-PARTY-NOTICES.txt").read_text().replace("@PYODIDE_VERSION@", pyodide_version)
+    for folder in folders:
+        (folder / "THIRD-PARTY-NOTICES.txt").write_text(text)
+
+
 def main(argv: list[str] | None = None) -> int:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--out", type=Path, default=ROOT / "dist", help="output folder (default dist/)")
@@ -258,9 +283,11 @@ def main(argv: list[str] | None = None) -> int:
         print(f"missing {', '.join(missing)} in {PYODIDE_DIR}: run `npm ci` in {ROOT} first", file=sys.stderr)
         return 1
     package_bytes = package_zip(args.package_dir)
+    PARAMS_JSON[0] = declarations_json(args.package_dir)
     version = package_version(args.package_dir)
     build_site(args.out / "site", package_bytes, version)
     build_single(args.out / "nmrcalc.html", package_bytes, version)
+    write_notices([args.out, args.out / "site"])
     single = (args.out / "nmrcalc.html").stat().st_size
     print(f"nmrcalc {version}: {args.out / 'site'} and {args.out / 'nmrcalc.html'}")
     print(f"single file {single / 1e6:.2f} MB = {single / core_size():.3f} x Pyodide core ({core_size() / 1e6:.2f} MB)")

@@ -1,8 +1,17 @@
-"""Command line: ``python -m nmrcalc <command> …`` — one readable command per op.
+"""Command line: ``python -m nmrcalc <command> …`` — one command per op.
 
-Every command builds a request and calls :func:`nmrcalc.api.handle`; ``--json``
-prints the raw response.  ``python -m nmrcalc api`` reads one JSON request on
-standard input and prints the JSON response.
+The commands, their flags and their ``--help`` come from the ops' declarations
+(``nmrcalc.api.params``): a key ``min_MHz`` is the flag ``--min-mhz``, a list of
+objects is a repeatable flag whose text fills the item keys in the declared
+order (``--group 2H,3,"19.3 Hz"``; ``key=value`` parts name a key), a map is a
+repeatable ``ISOTOPE=VALUE``.  Every command builds a request, calls
+:func:`nmrcalc.api.handle` and prints readable text, or the raw response with
+``--json``.  ``api`` reads one JSON request on standard input.
+
+Conventions: results go to standard output; input errors go to standard error
+with exit status 2 (with ``--json`` the error response is printed on standard
+output, as data, still with status 2; ``api`` exits 2 when the response has
+``"ok": false``).  ``--version`` prints the version.
 """
 
 from __future__ import annotations
@@ -11,87 +20,166 @@ import argparse
 import json
 import sys
 
-from nmrcalc.api import handle, handle_json
+from nmrcalc import __version__
+from nmrcalc.api import OPS, handle, handle_json
+from nmrcalc.api.params import Op, Param
 
-# command → (op, [(argument, request key, help)])
-COMMANDS = {
-    "nuclide": ("nuclide", [("query", "query", "nuclide, e.g. 13C, C-13, carbon-13, D")],
-                "spin, magnetogyric ratio, abundance, Ξ and receptivity of one nuclide"),
-    "nuclides": ("nuclides", [("--search", "search", "filter text")], "list the magnetic nuclides"),
-    "freq": ("frequency", [("--nucleus", "nucleus", "nuclide (omit for the all-nuclide table)"),
-                           ("--spectrometer", "spectrometer", "1H frequency, e.g. '400.13 MHz'"),
-                           ("--field", "field", "B0, e.g. '9.4 T' or '94000 G'"),
-                           ("--max-mhz", "max_MHz", "table: highest frequency"),
-                           ("--min-mhz", "min_MHz", "table: lowest frequency")],
-             "Larmor and 0-ppm reference frequencies at a field"),
-    "ppm": ("ppm_hz", [("--nucleus", "nucleus", "observed nuclide"),
-                       ("--spectrometer", "spectrometer", "1H frequency"), ("--field", "field", "B0"),
-                       ("--ppm", "ppm", "shift in ppm"), ("--hz", "Hz", "offset from 0 ppm in Hz"),
-                       ("--carrier-ppm", "carrier_ppm", "carrier position")],
-            "convert between ppm and Hz"),
-    "scale": ("scale_coupling", [("J", "J", "measured coupling, e.g. '19.3 Hz'"),
-                                 ("--from", "from", "isotope in the measured compound, e.g. 2H"),
-                                 ("--to", "to", "isotope to swap in, e.g. 1H"),
-                                 ("--partner", "partner", "the other coupled nucleus, for K")],
-              "scale a coupling to another isotopologue (J′ = J γ′/γ)"),
-    "energy": ("energy", [("--nucleus", "nucleus", "nuclide"), ("--spectrometer", "spectrometer", "1H frequency"),
-                          ("--field", "field", "B0"), ("--temperature", "temperature", "e.g. '298 K'"),
-                          ("--wavelength", "wavelength", "photon, e.g. '254 nm'"),
-                          ("--wavenumber", "wavenumber", "photon, e.g. '1700 cm-1'")],
-               "transition energy, populations, and a photon for comparison"),
-    "sensitivity": ("sensitivity", [("nucleus", "nucleus", "nuclide"),
-                                    ("--relative-to", "relative_to", "reference nuclide (default 13C)"),
-                                    ("--enrichment", "enrichment_percent", "enrichment in percent")],
-                    "receptivity and time factor for equal signal-to-noise"),
-}
+
+def _flag_name(p: Param) -> str:
+    if p.cli and p.cli.startswith("-"):
+        return p.cli
+    return "--" + p.key.lower().replace("_", "-")
+
+
+def _help(p: Param) -> str:
+    text = p.help or p.label
+    if p.kind == "quantity" and p.unit:
+        from nmrcalc.units import default_unit
+        text += f" (bare numbers in {default_unit(p.unit)})"
+    if p.default not in (None, False) and p.kind != "objects":
+        text += f"; default {p.default}"
+    if p.choices:
+        text += f"; one of {', '.join(map(str, p.choices))}"
+    if p.file:
+        text += " — a file name, or - for standard input"
+    return text.replace("%", "%%")
+
+
+def _add_param(parser: argparse.ArgumentParser, p: Param) -> None:
+    if p.cli == "-" or p.kind == "value":
+        return
+    if p.cli and not p.cli.startswith("-"):
+        parser.add_argument(p.key, metavar=p.cli, help=_help(p), nargs=None if p.required else "?")
+        return
+    name = _flag_name(p)
+    if p.kind == "flag":
+        parser.add_argument(name, dest=p.key, action=argparse.BooleanOptionalAction, default=None, help=_help(p))
+    elif p.kind in ("objects", "map"):
+        order = p.cli_sep.join(p.cli_order) if p.cli_order else "KEY=VALUE,…"
+        order += ",…" if p.cli_sep != "," else ""
+        meta = "ISOTOPE=VALUE" if p.kind == "map" else order.upper().replace("_", "-")
+        parser.add_argument(name, dest=p.key, action="append", metavar=meta, help=_help(p) + " (repeat the flag)")
+    elif p.kind == "integer":
+        parser.add_argument(name, dest=p.key, type=int, help=_help(p))
+    elif p.kind == "number":
+        parser.add_argument(name, dest=p.key, type=float, help=_help(p))
+    else:
+        parser.add_argument(name, dest=p.key, help=_help(p))
+
+
+def _declarations() -> dict[str, Op]:
+    return {name: OPS.declaration(name) for name in OPS}
+
+
+def commands() -> dict[str, Op]:
+    """CLI command → the op it runs (ops declared with ``cli="-"`` have none)."""
+    return {(op.cli or op.name): op for op in _declarations().values() if op.cli != "-"}
 
 
 def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(prog="python -m nmrcalc", description="Offline NMR calculator.")
+    parser.add_argument("--version", action="version", version=f"nmrcalc {__version__}")
     sub = parser.add_subparsers(dest="command", required=True)
-    for name, (_, args, help_text) in COMMANDS.items():
-        p = sub.add_parser(name, help=help_text, description=help_text)
-        for flag, key, h in args:
-            if flag.startswith("-"):
-                p.add_argument(flag, dest=key, help=h)
-            else:
-                p.add_argument(key, metavar=flag, help=h)
+    for name, op in commands().items():
+        p = sub.add_parser(name, help=op.summary, description=op.summary)
+        for param in op.params:
+            _add_param(p, param)
         p.add_argument("--json", action="store_true", help="print the raw JSON response")
-    m = sub.add_parser("multiplet", help="first-order multiplet from partner groups",
-                       description="first-order multiplet; a group is PARTNER,COUNT,J such as '2H,3,19.3 Hz', "
-                                   "'B,1,81 Hz' (an element: its isotope mixture) or 'spin=1,2,7 Hz'")
-    m.add_argument("--observe", required=True, help="observed nuclide, e.g. 13C")
-    m.add_argument("--group", action="append", default=[], help="PARTNER,COUNT,J (repeat for several groups)")
-    m.add_argument("--abundance", action="append", default=[], help="ISOTOPE=PERCENT, e.g. 2H=99.8")
-    m.add_argument("--spectrometer", help="1H frequency, e.g. '500 MHz'")
-    m.add_argument("--center", help="centre in ppm")
-    m.add_argument("--json", action="store_true", help="print the raw JSON response")
-    ss = sub.add_parser("spins", help="exact (second-order) spectrum of a small coupled spin system",
-                        description="exact spectrum; a spin is NUCLEUS,SHIFT_PPM[,COUNT] and a coupling I,J,HZ "
-                                    "with spins numbered from 0")
-    ss.add_argument("--observe", default="1H", help="observed nuclide (default 1H)")
-    ss.add_argument("--spin", action="append", default=[], help="NUCLEUS,SHIFT_PPM[,COUNT], e.g. 1H,7.10")
-    ss.add_argument("--coupling", action="append", default=[], help="I,J,HZ, e.g. 0,1,8.0")
-    ss.add_argument("--spectrometer", help="1H frequency, e.g. '400 MHz'")
-    ss.add_argument("--fields", help="several 1H frequencies, comma separated, e.g. 300,600,900")
-    ss.add_argument("--json", action="store_true", help="print the raw JSON response")
-    ident = sub.add_parser("identify", help="find first-order coupling partners that explain measured lines",
-                           description="rank first-order explanations of measured lines; give --lines "
-                                       "'POS:INT,POS:INT,…' or --peaklist FILE ('-' for standard input)")
-    ident.add_argument("--lines", help="positions and intensities, e.g. '1224:1,1231:3,1238:3,1245:1'")
-    ident.add_argument("--peaklist", help="a peak-list file: one peak a line, position and intensity")
-    ident.add_argument("--unit", help="Hz or ppm, for positions without a unit")
-    ident.add_argument("--observe", help="observed nuclide (default 1H)")
-    ident.add_argument("--spectrometer", help="1H frequency, e.g. '400 MHz' (needed for ppm)")
-    ident.add_argument("--partners", help="allowed partners, comma separated, e.g. 'H,2H,B' or '1/2,1'")
-    ident.add_argument("--tolerance", help="position tolerance, e.g. '0.5 Hz'")
-    ident.add_argument("--max-groups", dest="max_groups", type=int, help="at most this many groups (1–3)")
-    ident.add_argument("--top", type=int, help="how many candidates to list (default 5)")
-    ident.add_argument("--json", action="store_true", help="print the raw JSON response")
-    sub.add_parser("api", help="read one JSON request on stdin, print the JSON response")
-    sub.add_parser("demo", help="a worked example from an invented lab")
+    sub.add_parser("api", help="read one JSON request on standard input, print the JSON response")
+    sub.add_parser("describe", help="every op and its parameters (JSON; --markdown for the README table)"
+                   ).add_argument("--markdown", action="store_true", help="the README's op table")
+    sub.add_parser("demo", help="a worked example from an invented lab").add_argument(
+        "--json", action="store_true", help="print the raw JSON responses")
     return parser
 
+
+# ---------- turning parsed arguments into a request ----------
+
+def _scalar(p: Param, text: str):
+    """A CLI text as the JSON value the declared kind takes."""
+    if p.kind == "integer":
+        try:
+            return int(text)
+        except ValueError:
+            return text.strip()
+    if p.kind == "number":
+        try:
+            return float(text)
+        except ValueError:
+            return text.strip()
+    if p.kind == "pair":
+        return text.strip()
+    return text.strip()
+
+
+def _item(p: Param, text: str) -> dict:
+    """One ``--group``/``--spin``/… text → an item object, by the declared ``cli_order``."""
+    items = {q.key: q for q in p.items}
+    out: dict = {}
+    for slot, part in enumerate(text.split(p.cli_sep)):
+        key, eq, value = part.partition("=")
+        if eq and key.strip() in items:
+            key = key.strip()
+        else:
+            if slot >= len(p.cli_order):
+                out.setdefault("_extra", []).append(part)
+                continue
+            key, value = p.cli_order[slot], part
+        q = items[key]
+        if q.kind == "pair":
+            out.setdefault(key, []).append(_pair_member(value))
+        else:
+            out[key] = _scalar(q, value)
+    extra = out.pop("_extra", None)
+    if extra:
+        raise ValueError(f"{p.key}: '{text}' has more parts than {','.join(p.cli_order)}")
+    return out
+
+
+def _pair_member(text: str):
+    text = text.strip()
+    return int(text) if text.lstrip("-").isdigit() else text
+
+
+class FileError(Exception):
+    """A file named on the command line could not be read (the flag's key and the reason)."""
+
+
+def _read_file(key: str, name: str) -> str:
+    if name == "-":
+        return sys.stdin.read()
+    try:
+        with open(name, encoding="utf-8", errors="replace") as handle_:
+            return handle_.read()
+    except OSError as e:
+        raise FileError(f"error [{key}]: cannot read {name}: {e.strerror}") from None
+
+
+def request_from_args(op: Op, args: argparse.Namespace) -> dict:
+    """The request a command line asks for (only the keys given)."""
+    request: dict = {"op": op.name}
+    for p in op.params:
+        value = getattr(args, p.key, None)
+        if value is None:
+            continue
+        if p.kind == "objects":
+            texts = [t for text in value for t in (text.split(",") if p.cli_sep != "," else [text])]
+            value = [_item(p, text) for text in texts if text.strip()]
+        elif p.kind == "map":
+            pairs = [text.split("=", 1) for text in value]
+            bad = [text for text, pair in zip(value, pairs) if len(pair) != 2]
+            if bad:
+                raise ValueError(f"{p.key}: '{bad[0]}' is not ISOTOPE=VALUE")
+            value = {k.strip(): v.strip() for k, v in pairs}
+        elif p.kind in ("quantities", "texts"):
+            value = [v.strip() for v in value.split(",") if v.strip()]
+        elif p.file:
+            value = _read_file(p.key, value)
+        request[p.key] = value
+    return request
+
+
+# ---------- readable text ----------
 
 def _fmt(value) -> str:
     if isinstance(value, float):
@@ -101,12 +189,14 @@ def _fmt(value) -> str:
     return str(value)
 
 
+def render_error(response: dict) -> str:
+    err = response["error"]
+    where = f" [{err['field']}]" if err.get("field") else ""
+    return f"error{where}: {err['message']}"
+
+
 def render(response: dict) -> str:
-    """A readable text form of a response: scalars as lines, lists of records as tables."""
-    if not response["ok"]:
-        err = response["error"]
-        where = f" [{err['field']}]" if err.get("field") else ""
-        return f"error{where}: {err['message']}"
+    """A readable text form of a result: scalars as lines, lists of records as tables."""
     lines = []
     for key, value in response["result"].items():
         if isinstance(value, list) and value and isinstance(value[0], dict):
@@ -124,33 +214,14 @@ def render(response: dict) -> str:
     return "\n".join(lines)
 
 
-def multiplet_request(args) -> dict:
-    """Turn ``--group PARTNER,COUNT,J`` and ``--abundance ISO=PCT`` into a multiplet request."""
-    groups = []
-    for text in args.group:
-        partner, _, rest = text.partition(",")
-        count, _, J = rest.partition(",")
-        key, value = ("spin", partner[5:]) if partner.startswith("spin=") else ("partner", partner)
-        groups.append({key: value.strip(), "count": int(count) if count.strip().isdigit() else count, "J": J.strip()})
-    abundance = dict(item.split("=", 1) for item in args.abundance if "=" in item)
-    request = {"op": "multiplet", "observe": args.observe, "groups": groups}
-    for key in ("spectrometer", "center"):
-        if getattr(args, key):
-            request[key] = getattr(args, key)
-    if abundance:
-        request["abundance"] = abundance
-    return request
-
-
 def render_multiplet(response: dict) -> str:
-    if not response["ok"]:
-        return render(response)
     r = response["result"]
     out = [f"label: {r['label']}"]
     if r["ratio"]:
         out.append(f"ratio: {r['ratio']}")
     for iso in r.get("isotopologues", []):
-        out.append(f"isotopologue {iso['label']}: share {iso['share'] * 100:.4g} %, {iso['multiplet']} ({iso['ratio']})")
+        out.append(f"isotopologue {iso['label']}: share {iso['share'] * 100:.4g} %, "
+                   f"{iso['multiplet']} ({iso['ratio']})")
     out.append(("  ppm        " if r["center_ppm"] is not None else "  ") + "Hz           intensity")
     for line in r["lines"]:
         ppm = f"{line['ppm']:<10.5f} " if "ppm" in line else ""
@@ -159,36 +230,7 @@ def render_multiplet(response: dict) -> str:
     return "\n".join(out)
 
 
-def _number(text: str):
-    try:
-        return int(text)
-    except ValueError:
-        return text.strip()
-
-
-def spin_system_request(args) -> dict:
-    spins = []
-    for text in args.spin:
-        parts = [p.strip() for p in text.split(",")]
-        spin = {"nucleus": parts[0], "shift": parts[1] if len(parts) > 1 else ""}
-        if len(parts) > 2:
-            spin["count"] = _number(parts[2])
-        spins.append(spin)
-    couplings = []
-    for text in args.coupling:
-        parts = [p.strip() for p in text.split(",")]
-        couplings.append({"between": [_number(p) for p in parts[:2]], "J": parts[2] if len(parts) > 2 else ""})
-    request = {"op": "spin_system", "observe": args.observe, "spins": spins, "couplings": couplings}
-    if args.fields:
-        request["fields"] = [f.strip() for f in args.fields.split(",")]
-    elif args.spectrometer:
-        request["spectrometer"] = args.spectrometer
-    return request
-
-
 def render_spin_system(response: dict) -> str:
-    if not response["ok"]:
-        return render(response)
     r = response["result"]
     out = []
     for block in r.get("fields", [r]):
@@ -204,6 +246,51 @@ def render_spin_system(response: dict) -> str:
     return "\n".join(out)
 
 
+def render_identify(response: dict) -> str:
+    r = response["result"]
+    ppm = f" ({r['center_ppm']:.5f} ppm)" if r["center_ppm"] is not None else ""
+    out = [f"centre: {r['center_Hz']:.3f} Hz{ppm}; tolerance {r['tolerance_Hz']:.3g} Hz; "
+           f"{len(r['observed'])} lines"]
+    for rank, cand in enumerate(r["candidates"], start=1):
+        parts = [f"{g['count']} × {g.get('partner') or 'I=' + g['spin']} J {g['J_Hz']:.2f} Hz" for g in cand["groups"]]
+        out.append(f"{rank}. {cand['label']}  (score {cand['score']:.3f})  " + ("; ".join(parts) or "no coupling"))
+    out += [f"note: {n}" for n in r["notes"] + response["warnings"]]
+    return "\n".join(out)
+
+
+# ---- measured spectra (spectrum helper's block; the lead folds it into the derived CLI) ----
+
+def render_spectrum(response: dict) -> str:
+    """``spectrum FILE``: what was read and checked, then the peaks picked at 5 σ (not every point)."""
+    r = response["result"]
+    out = [f"title: {r['title']}", f"nucleus: {_fmt(r['nucleus'])}; observe: {_fmt(r['observe_MHz'])} MHz",
+           f"{r['npoints']} points, x from {_fmt(r['first_x'])} to {_fmt(r['last_x'])} {r['x_unit']}"]
+    if "first_ppm" in r:
+        out.append(f"ppm scale: {_fmt(r['first_ppm'])} to {_fmt(r['last_ppm'])}")
+    out += [f"checked: {c}" for c in r["checks"]]
+    if r["y"]:
+        picked = handle({"op": "pick_peaks", "first_x": r["first_x"], "last_x": r["last_x"], "x_unit": r["x_unit"],
+                         "y": r["y"], **({"observe_MHz": r["observe_MHz"]} if r["observe_MHz"] else {})})
+        if picked["ok"]:
+            p = picked["result"]
+            out.append(f"peaks above 5 σ (noise σ = {p['noise']:.4g}): {len(p['peaks'])}")
+            out.append(f"  position ({r['x_unit']})  height        width (Hz)  integral")
+            out += [f"  {q['position']:<14.6g} {q['height']:<13.6g} {q['width_Hz']:<11.3g} {q['integral']:.6g}"
+                    for q in p["peaks"]]
+        else:
+            out.append(f"peaks: {render_error(picked)}")
+    else:
+        out.append("  position        height")
+        out += [f"  {q['position']:<14.6g} {q['height']:.6g}" for q in r.get("peaks", [])]
+    out += [f"note: {w}" for w in response["warnings"]]
+    return "\n".join(out)
+
+
+# ops with a text form of their own
+RENDER = {"multiplet": render_multiplet, "spin_system": render_spin_system, "identify": render_identify,
+          "read_spectrum": render_spectrum}
+
+
 DEMO = [
     ("The Harbourside teaching lab's magnet reads 400.13 MHz for 1H. Where is 29Si?",
      {"op": "frequency", "nucleus": "29Si", "spectrometer": "400.13 MHz"}),
@@ -216,94 +303,65 @@ DEMO = [
 ]
 
 
-def identify_request(args) -> dict:
-    """Turn ``--lines POS:INT,…`` or ``--peaklist FILE`` and the options into an identify request."""
-    request = {"op": "identify"}
-    if args.lines:
-        lines = []
-        for item in args.lines.split(","):
-            pos, _, intensity = item.partition(":")
-            lines.append({"position": pos.strip(), "intensity": _number(intensity.strip()) if intensity.strip() else None})
-        request["lines"] = lines
-    if args.peaklist:
-        if args.peaklist == "-":
-            request["peaklist"] = sys.stdin.read()
-        else:
-            with open(args.peaklist, encoding="utf-8", errors="replace") as handle_:
-                request["peaklist"] = handle_.read()
-    if args.partners:
-        request["partners"] = [p.strip() for p in args.partners.split(",") if p.strip()]
-    for key in ("unit", "observe", "spectrometer", "tolerance", "max_groups", "top"):
-        if getattr(args, key) is not None:
-            request[key] = getattr(args, key)
-    return request
+def _emit(text: str, stream) -> None:
+    """Print ``text``; characters the stream cannot encode are shown as escapes, never a traceback."""
+    encoding = getattr(stream, "encoding", None) or "utf-8"
+    try:
+        print(text.encode(encoding, "backslashreplace").decode(encoding, "replace"), file=stream)
+    except BrokenPipeError:  # the reader (head, less) stopped early: not an error of ours
+        sys.stderr.close()
 
 
-def render_identify(response: dict) -> str:
-    if not response["ok"]:
-        return render(response)
-    r = response["result"]
-    ppm = f" ({r['center_ppm']:.5f} ppm)" if r["center_ppm"] is not None else ""
-    out = [f"centre: {r['center_Hz']:.3f} Hz{ppm}; tolerance {r['tolerance_Hz']:.3g} Hz; "
-           f"{len(r['observed'])} lines"]
-    for rank, cand in enumerate(r["candidates"], start=1):
-        parts = [f"{g['count']} × {g.get('partner') or 'I=' + g['spin']} J {g['J_Hz']:.2f} Hz" for g in cand["groups"]]
-        out.append(f"{rank}. {cand['label']}  (score {cand['score']:.3f})  " + ("; ".join(parts) or "no coupling"))
-    out += [f"note: {n}" for n in r["notes"] + response["warnings"]]
-    return "\n".join(out)
-
-
-# commands with their own request builder and text form: command → (build(args), render(response))
-SPECIAL = {"multiplet": (multiplet_request, render_multiplet), "spins": (spin_system_request, render_spin_system),
-           "identify": (identify_request, render_identify)}
+def _read_stdin() -> str | None:
+    if hasattr(sys.stdin, "buffer"):
+        data = sys.stdin.buffer.read()
+    else:  # a text stream put in by a caller
+        data = sys.stdin.read().encode("utf-8", "surrogatepass")
+    try:
+        return data.decode("utf-8")
+    except UnicodeDecodeError as e:
+        _emit(f"error: standard input is not UTF-8 text (byte {e.start}).", sys.stderr)
+        return None
 
 
 def main(argv: list[str] | None = None) -> int:
     args = build_parser().parse_args(argv)
     if args.command == "api":
-        print(handle_json(sys.stdin.read()))
+        text = _read_stdin()
+        if text is None:
+            return 2
+        out = handle_json(text)
+        _emit(out, sys.stdout)
+        return 0 if json.loads(out)["ok"] else 2
+    if args.command == "describe":
+        from nmrcalc.api.params import describe, markdown_table
+        decl = _declarations()
+        _emit(markdown_table(decl) if args.markdown else json.dumps(describe(decl), indent=2, ensure_ascii=False),
+              sys.stdout)
         return 0
     if args.command == "demo":
-        for question, request in DEMO:
-            print(f"# {question}\n{render(handle(request))}\n")
-        return 0
-    if args.command in SPECIAL:
-        build, show = SPECIAL[args.command]
-        try:
-            request = build(args)
-        except OSError as e:  # identify --peaklist FILE that cannot be read
-            print(f"error [peaklist]: cannot read {args.peaklist}: {e.strerror}")
-            return 2
+        responses = [(question, handle(request)) for question, request in DEMO]
+        if args.json:
+            _emit(json.dumps([{"question": q, "response": r} for q, r in responses], indent=2, ensure_ascii=False),
+                  sys.stdout)
+        else:
+            for question, response in responses:
+                _emit(f"# {question}\n{render(response)}\n", sys.stdout)
+        return 0 if all(r["ok"] for _, r in responses) else 2
+    op = commands()[args.command]
+    try:
+        request = request_from_args(op, args)
+    except FileError as e:
+        _emit(str(e), sys.stderr)
+        return 2
+    except ValueError as e:
+        _emit(f"error: {e}", sys.stderr)
+        return 2
+    response = handle(request)
+    if args.json:
+        _emit(json.dumps(response, indent=2, ensure_ascii=False), sys.stdout)  # data: stdout, failed or not
+    elif response["ok"]:
+        _emit(RENDER.get(op.name, render)(response), sys.stdout)
     else:
-        op, arg_spec, _ = COMMANDS[args.command]
-        request = {"op": op}
-        for _, key, _ in arg_spec:
-            value = getattr(args, key)
-            if value is not None:
-                request[key] = value
-        show = render
-    response = handle(request)
-    print(json.dumps(response, indent=2, ensure_ascii=False) if args.json else show(response))
-    return 0 if response["ok"] else 2
-    if args.command == "identify":
-        try:
-            request = identify_request(args)
-        except OSError as e:
-            print(f"error [peaklist]: cannot read {args.peaklist}: {e.strerror}")
-            return 2
-        response = handle(request)
-        print(json.dumps(response, indent=2, ensure_ascii=False) if args.json else render_identify(response))
-        return 0 if response["ok"] else 2
-    if args.command == "spins":
-        response = handle(spin_system_request(args))
-        print(json.dumps(response, indent=2, ensure_ascii=False) if args.json else render_spin_system(response))
-        return 0 if response["ok"] else 2
-    op, arg_spec, _ = COMMANDS[args.command]
-    request = {"op": op}
-    for _, key, _ in arg_spec:
-        value = getattr(args, key)
-        if value is not None:
-            request[key] = value
-    response = handle(request)
-    print(json.dumps(response, indent=2, ensure_ascii=False) if args.json else render(response))
+        _emit(render_error(response), sys.stderr)
     return 0 if response["ok"] else 2

@@ -24,9 +24,12 @@ import reprlib
 import time
 
 import pytest
-from hypothesis import HealthCheck, assume, given, settings, strategies as st
+from hypothesis import HealthCheck, assume, given, settings
+from hypothesis import strategies as st
 
 from nmrcalc.api import MAX_REQUEST_CHARS, OPS, handle, handle_json
+from nmrcalc.api.describe_ops import declarations
+from nmrcalc.api.params import example_request
 
 CALL_BOUND_S = 5.0
 MAX_MESSAGE_CHARS = 10_000   # an error never echoes a huge input back
@@ -133,37 +136,11 @@ json_values = st.recursive(
     max_leaves=30)
 anything = extreme | json_values
 
-# One valid request per op; the fuzz replaces parts of it.
-TEMPLATES = {
-    "nuclide": {"query": "13C"},
-    "nuclides": {"search": "c", "include_spin_zero": True},
-    "frequency": {"spectrometer": "500 MHz", "spin_half_only": True, "min_abundance_percent": 1,
-                  "min_MHz": 10, "max_MHz": "600 MHz", "sort": "larmor_MHz", "descending": False,
-                  "scale": "unified"},
-    "ppm_hz": {"nucleus": "13C", "field": "11.74 T", "ppm": 77.16, "carrier_ppm": "100 ppm",
-               "scale": "biomolecular"},
-    "scale_coupling": {"J": "7 Hz", "from": "1H", "to": "2H", "partner": "13C"},
-    "energy": {"nucleus": "1H", "spectrometer": 400, "temperature": "25 °C", "wavelength": "254 nm"},
-    "sensitivity": {"nucleus": "15N", "relative_to": "1H", "enrichment_percent": 98},
-    "multiplet": {"observe": "1H", "spectrometer": 400, "center": 1.2, "spectrum": False, "linewidth": "1 Hz",
-                  "shape": "lorentzian", "min_share": 1e-4,
-                  "groups": [{"partner": "1H", "count": 2, "J": 7},
-                             {"partner": "B", "count": 1, "J": 80, "J_isotope": "11B", "quadrupolar": "resolved"},
-                             {"spin": "1/2", "count": 1, "J": "2 Hz"},
-                             {"partner": "D", "count": 1, "J": 1}]},
-    "spin_system": {"observe": "1H", "spectrometer": 400, "spectrum": False, "first_order": True,
-                    "linewidth": 0.5, "shape": "gaussian", "fields": ["300 MHz", 600],
-                    "spins": [{"nucleus": "1H", "shift": 1.0, "count": 2}, {"nucleus": "1H", "shift": "1.1 ppm"},
-                              {"nucleus": "19F", "shift": -70}],
-                    "couplings": [{"between": [0, 1], "J": 7}, {"between": [1, 2], "J": "48 Hz"}]},
-    "identify": {"observe": "1H", "spectrometer": 400, "unit": "Hz", "partners": ["1H", "1/2"],
-                 "tolerance": "0.5 Hz", "max_groups": 2, "max_count": 3, "top": 3,
-                 "lines": [{"position": -7.0, "intensity": 1}, [0.0, 2], {"position": "7 Hz", "height": 1}]},
-}
-EXTRA_KEYS = sorted({k for t in TEMPLATES.values() for k in t} | {
-    "op", "field", "spectrometer", "Hz", "wavenumber", "partner", "fields", "include_spin_zero",
-    "nucleus", "observe", "query", "lines", "peaklist", "unit", "partners", "tolerance", "abundance",
-    "factor_equivalence"})
+# One valid request per op, derived from its declaration (nmrcalc.api.params.example_request);
+# the fuzz replaces parts of it.
+DECLARATIONS = declarations()
+TEMPLATES = {name: {k: v for k, v in example_request(op).items() if k != "op"} for name, op in DECLARATIONS.items()}
+EXTRA_KEYS = sorted({p.key for op in DECLARATIONS.values() for p in op.params} | {"op"})
 # Kept out of the templates because they make every call slower (isotopologue mixtures,
 # element partners); swept here and drawn by the random tests.
 SLOW_VARIANTS = [("multiplet", ("abundance",), {"2H": 99.0}), ("identify", ("partners",), ["1H", "B", "1/2"])]
@@ -350,7 +327,9 @@ def test_handle_json_invalid_huge_and_deep_text():
     assert call_json('{"op": "nuclide", "query": ' + "[" * 1000 + "]" * 1000 + "}")["ok"] is False
     assert call_json(" " * (MAX_REQUEST_CHARS + 1))["error"]["code"] == "too_large"
     big = json.dumps({"op": "nuclide", "query": "13C", "pad": "x" * (MAX_REQUEST_CHARS - 100)})
-    assert len(big) <= MAX_REQUEST_CHARS and call_json(big)["ok"]
+    assert len(big) <= MAX_REQUEST_CHARS and call_json(big)["error"]["code"] == "unknown_key"
+    big = json.dumps({"op": "nuclides", "search": "", "pad": ""}) + " " * (MAX_REQUEST_CHARS - 100)
+    assert len(big) <= MAX_REQUEST_CHARS and call_json(big)["error"]["field"] == "pad"
     for op in sorted(OPS):
         call_json(json.dumps({**template(op), "spectrometer": "1e300 MHz", "query": "x" * 10**5}))
 
@@ -457,3 +436,78 @@ def test_identify_accepts_edge_values():
         r = handle({**IDENT, "lines": lines})
         assert r["ok"] or r["error"]["code"] != "internal", r
         json.dumps(r, allow_nan=False)
+
+
+# ---------- strict keys: every key that no declaration names is refused, at every level ----------
+
+def misspellings(key: str) -> list[str]:
+    """A dropped, a doubled and a swapped letter, and a changed case: the typos people make."""
+    out = {key[1:], key + key[-1], key[:1] + key[2:3] + key[1:2] + key[3:], key.swapcase(), key + "s"}
+    return sorted(k for k in out if k and k != key)
+
+
+def object_params(op):
+    return [p for p in DECLARATIONS[op].params if p.kind == "objects" and isinstance(TEMPLATES[op].get(p.key), list)
+            and TEMPLATES[op][p.key] and isinstance(TEMPLATES[op][p.key][0], dict)]
+
+
+@pytest.mark.parametrize("op", sorted(DECLARATIONS))
+def test_misspelled_keys_are_refused_with_their_path(op):
+    base = template(op)
+    declared_top = {p.key for p in DECLARATIONS[op].params} | {"op"}
+    for key in [k for k in base if k != "op"]:
+        for typo in misspellings(key):
+            if typo in declared_top:
+                continue
+            r = call({**base, typo: base[key]})
+            assert not r["ok"] and r["error"]["code"] == "unknown_key" and r["error"]["field"] == typo, (typo, r)
+    for p in object_params(op):
+        item_keys = {q.key for q in p.items}
+        for key in list(base[p.key][0]):
+            for typo in misspellings(key):
+                if typo in item_keys:
+                    continue
+                item = {**base[p.key][0], typo: base[p.key][0][key]}
+                r = call({**base, p.key: [item, *base[p.key][1:]]})
+                assert r["error"]["code"] == "unknown_key" and r["error"]["field"] == f"{p.key}.0.{typo}", (typo, r)
+
+
+@pytest.mark.parametrize("op", sorted(DECLARATIONS))
+def test_misplaced_keys_are_refused_and_their_home_named(op):
+    base = template(op)
+    for p in object_params(op):
+        item_keys = {q.key for q in p.items}
+        for key in [k for k in base if k != "op" and k not in item_keys]:
+            item = {**base[p.key][0], key: base[key]}
+            r = call({**base, p.key: [item, *base[p.key][1:]]})
+            assert r["error"]["code"] == "unknown_key" and r["error"]["field"] == f"{p.key}.0.{key}", r
+            assert "top level" in r["error"]["message"], r
+        for key in item_keys - {q.key for q in DECLARATIONS[op].params}:
+            r = call({**base, key: base[p.key][0].get(key, 1)})
+            assert r["error"]["code"] == "unknown_key" and r["error"]["field"] == key, r
+            assert f"'{p.key}'" in r["error"]["message"], r
+
+
+def test_the_issue_examples_of_silently_ignored_keys():
+    mult = template("multiplet")
+    for bad in ("enrichment", "abundances"):
+        r = call({**mult, bad: {"2H": 99.8}})
+        assert r["error"] == {**r["error"], "code": "unknown_key", "field": bad}
+    r = call({**mult, "abundnce": {"2H": 99.8}})
+    assert "did you mean 'abundance'" in r["error"]["message"]
+
+
+@settings(FUZZ, max_examples=150)
+@given(st.sampled_from(sorted(DECLARATIONS)), st.text(min_size=1, max_size=12), anything)
+def test_random_unknown_keys_anywhere(op, key, value):
+    base = template(op)
+    declared = {p.key for p in DECLARATIONS[op].params} | {"op"}
+    assume(key not in declared)
+    r = call({**base, key: value})
+    assert r["error"]["code"] == "unknown_key", r
+    for p in object_params(op):
+        if key in {q.key for q in p.items}:
+            continue
+        item = {**base[p.key][0], key: value}
+        r = call({**base, p.key: [item]})
+        assert r["error"]["code"] == "unknown_key" and r["error"]["field"].startswith(f"{p.key}.0."), r

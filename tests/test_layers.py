@@ -28,11 +28,25 @@ def modules():
         yield name, ast.parse(path.read_text())
 
 
+def imported(node) -> list[str]:
+    """The nmrcalc modules an import statement names: ``from x import y`` and ``import x``."""
+    if isinstance(node, ast.ImportFrom) and node.level == 0 and node.module:
+        return [node.module] if node.module.startswith("nmrcalc") else []
+    if isinstance(node, ast.Import):
+        return [a.name for a in node.names if a.name.split(".")[0] == "nmrcalc"]
+    return []
+
+
 def test_imports_point_down_only():
     for name, tree in modules():
         for node in ast.walk(tree):
-            if isinstance(node, ast.ImportFrom) and node.module and node.module.startswith("nmrcalc"):
-                assert RANK[layer(node.module)] <= RANK[layer(name)], (name, node.module)
+            for target in imported(node):
+                assert RANK[layer(target)] <= RANK[layer(name)], (name, target)
+
+
+def test_the_layer_check_sees_both_import_forms():
+    tree = ast.parse("import nmrcalc.api\nfrom nmrcalc.physics import larmor\nimport json")
+    assert [t for node in ast.walk(tree) for t in imported(node)] == ["nmrcalc.api", "nmrcalc.physics"]
 
 
 def test_stdlib_only_at_run_time():

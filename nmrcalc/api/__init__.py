@@ -11,22 +11,30 @@ from __future__ import annotations
 
 import importlib
 import json
+import re
 from collections.abc import Mapping
 
 from nmrcalc.api.fields import PROGRESS
+from nmrcalc.api.params import check
 from nmrcalc.errors import InputError
 
 # Each op and the module of this package that defines it (in that module's OPS).
 # A module is imported when one of its ops is first asked for, so a front end's
 # first result does not wait for the spin-system and pattern-finder code.
 OP_MODULES = {
-    **dict.fromkeys(["nuclide", "nuclides", "frequency", "ppm_hz", "scale_coupling", "energy", "sensitivity"],
+    **dict.fromkeys(["nuclide", "nuclides", "frequency", "ppm_hz", "scale_coupling", "energy", "sensitivity",
+                     "acquisition_window"],
                     "core_ops"),
     "multiplet": "multiplet_ops",
     "spin_system": "spin_system_ops",
     "identify": "identify_ops",
+    **dict.fromkeys(["read_spectrum", "pick_peaks", "fit_spin_system"], "spectrum_ops"),
+    "deuteration": "deuteration_ops",
+    "solvents": "solvent_ops",
+    "describe": "describe_ops",
 }
-MAX_REQUEST_CHARS = 1_000_000
+_SURROGATE = re.compile("[\ud800-\udfff]")  # one C-level scan: a spectrum's text is long
+MAX_REQUEST_CHARS = 16_000_000  # a measured spectrum (256k points, its file or its ordinates) travels as text
 
 
 class _Ops(Mapping):
@@ -34,6 +42,10 @@ class _Ops(Mapping):
 
     def __getitem__(self, name: str):
         return importlib.import_module(f"nmrcalc.api.{OP_MODULES[name]}").OPS[name]
+
+    def declaration(self, name: str):
+        """The op's declaration (``nmrcalc.api.params.Op``), from the ``DECLARED`` table of its module."""
+        return importlib.import_module(f"nmrcalc.api.{OP_MODULES[name]}").DECLARED[name]
 
     def __iter__(self):
         return iter(OP_MODULES)
@@ -62,9 +74,10 @@ def handle(request, progress=None) -> dict:
         op = request.get("op")
         if not isinstance(op, str) or not op:
             raise InputError(f"Name the calculation in 'op': one of {', '.join(sorted(OPS))}.", "op", "missing_field")
-        fn = OPS.get(op)
-        if fn is None:
+        if op not in OP_MODULES:
             raise InputError(f"Unknown op '{op[:40]}'; use one of {', '.join(sorted(OPS))}.", "op", "unknown_op")
+        fn = OPS[op]
+        request = check(OPS.declaration(op), request)
         warnings: list[str] = []
         result = fn(request, warnings)
         return {"ok": True, "result": result, "warnings": warnings}
@@ -78,13 +91,27 @@ def handle(request, progress=None) -> dict:
         PROGRESS.reset(token)
 
 
+def _check_unicode(text: str, request) -> None:
+    """Refuse text that is not valid Unicode (a lone surrogate, raw or written as an escape)."""
+    if "\\ud" in text.lower() or _SURROGATE.search(text):
+        try:
+            json.dumps(request, ensure_ascii=False).encode("utf-8")
+        except UnicodeEncodeError as e:
+            raise InputError(f"The request holds a lone surrogate (U+{ord(e.object[e.start]):04X}): "
+                             "not valid Unicode text; retype or re-save that value.", None, "bad_request") from None
+
+
 def handle_json(text: str, progress=None) -> str:
     """Text in, text out: the bridge used by the Web Worker and ``python -m nmrcalc api``."""
     try:
         if not isinstance(text, str) or len(text) > MAX_REQUEST_CHARS:
             response = _error("too_large", f"The request is longer than {MAX_REQUEST_CHARS} characters.")
         else:
-            response = handle(json.loads(text), progress)
+            request = json.loads(text)
+            _check_unicode(text, request)
+            response = handle(request, progress)
+    except InputError as e:
+        response = _error(e.code, e.message, e.field)
     except (ValueError, RecursionError):
         response = _error("bad_request", "The request is not valid JSON.")
     try:

@@ -29,12 +29,14 @@ from __future__ import annotations
 from fractions import Fraction
 
 from nmrcalc.api.fields import PROGRESS, flag, magnet, nucleus, quantity
+from nmrcalc.api.params import MAGNET, SPECTRUM, Op, Param
 from nmrcalc.errors import InputError
 from nmrcalc.nuclides import Nuclide
 from nmrcalc.physics import larmor, lineshape
 from nmrcalc.physics.multiplet import multiplet
 from nmrcalc.physics.spin_system import (MAX_COUNT, Site, clusters, equivalence_caveats, first_order_checks,
                                          transitions)
+from nmrcalc.units import split_list
 
 MAX_FIELDS = 12
 MAX_SPINS = 64  # spin entries in one request; each may stand for up to MAX_COUNT equivalent nuclei
@@ -124,6 +126,8 @@ def _spin_ref(x, labels: list[str], field: str) -> int:
 
 def _magnets(req, warnings) -> list[tuple[float, float]]:
     fields = req.get("fields")
+    if isinstance(fields, str):  # typed text: "400, 600 MHz" (units.split_list)
+        fields = split_list(fields, "fields") if fields.strip() else []
     if fields in (None, []):
         return [magnet(req, warnings)]
     if not isinstance(fields, list):
@@ -223,5 +227,35 @@ def op_spin_system(req, warnings):
         return {"observe": observe.symbol, "fields": blocks}
     return {"observe": observe.symbol, **blocks[0]}
 
+
+DECLARED = {"spin_system": Op(
+    "spin_system", "exact (second-order) spectrum of a coupled spin system, at one or several magnets", cli="spins",
+    one_of=(("spectrometer", "field"),), limits=f"{MAX_SPINS} spin entries; {MAX_FIELDS} fields", params=(
+        Param("observe", "nuclide", default="1H", label="Observed nucleus", help="e.g. 1H", example="1H"),
+        Param("spins", "objects", required=True, label="Spins", max_items=MAX_SPINS,
+              help="each NUCLEUS,SHIFT_PPM[,COUNT], e.g. 1H,7.10", cli="--spin", cli_order=("nucleus", "shift", "count"),
+              example=[{"nucleus": "1H", "shift": 1.0, "count": 2}, {"nucleus": "1H", "shift": "1.1 ppm"},
+                       {"nucleus": "19F", "shift": -70}], items=(
+            Param("nucleus", "nuclide", required=True, label="Nucleus", help="e.g. 1H"),
+            Param("shift", "quantity", unit="shift", required=True, label="Shift", help="in ppm"),
+            Param("count", "integer", default=1, bounds=(1, MAX_COUNT), label="Count", help="equivalent nuclei"),
+        )),
+        Param("couplings", "objects", label="Couplings", max_items=MAX_SPINS * MAX_SPINS,
+              help="each I,J,HZ with spins numbered from 0, e.g. 0,1,8.0", cli="--coupling",
+              cli_order=("between", "between", "J"),
+              example=[{"between": [0, 1], "J": 7}, {"between": [1, 2], "J": "48 Hz"}], items=(
+            Param("between", "pair", required=True, label="Between", help="the two spins, e.g. [0, 1]"),
+            Param("J", "quantity", unit="coupling", required=True, label="J", help="the coupling in Hz"),
+        )),
+        *MAGNET,
+        Param("fields", "quantities", unit="magnet_MHz", max_items=MAX_FIELDS, label="Several magnets",
+              help="several 1H frequencies, e.g. '300, 600 MHz' (instead of spectrometer)",
+              example=["300 MHz", 600]),
+        Param("factor_equivalence", "flag", default=True, label="Factor equivalent spins",
+              help="use magnetic equivalence to shrink the problem (same answer, faster)"),
+        Param("first_order", "flag", default=False, label="First-order overlay",
+              help="also return the first-order lines for comparison"),
+        *SPECTRUM,
+    ))}
 
 OPS = {"spin_system": op_spin_system}

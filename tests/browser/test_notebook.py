@@ -62,7 +62,7 @@ def test_notebook_and_crash_recovery(dist, open_page, tmp_path):
     expect(pins.nth(1).locator(".pin-note-text")).to_have_text(HOSTILE_NOTE)
     assert page.locator("#notebook-pins img, main img").count() == 0
     expect(pins.nth(1).locator(".pin-results")).to_contain_text("J_Hz")
-    expect(pins.nth(1).locator(".pin-inputs")).to_contain_text("32 Hz")
+    expect(pins.nth(1).locator(".pin-inputs")).to_contain_text("32")  # the J field as typed (unit: issue 11 §5)
 
     # pins survive a reload
     page.reload()

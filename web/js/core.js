@@ -124,7 +124,7 @@ const NMR = (() => {
     } else if (message.type === "boot-error") {
       window.nmrcalcStatus.state = "failed";
       window.nmrcalcStatus.error = message.message;
-      setBoot(1, "Could not start Python in this browser. Reload the page; if it persists, try another browser.", "failed");
+      setBoot(1, message.advice || "Could not start Python in this browser. Reload the page; if it persists, try another browser.", "failed");
       console.error(message.message);
       // calls sent to this worker (e.g. after a restart) would never be answered
       failWaiting("python_unavailable", "Python could not start in this browser, so nothing can be calculated. Reload the page to try again.");
@@ -139,6 +139,7 @@ const NMR = (() => {
       const resolve = waiting.get(message.id);
       waiting.delete(message.id);
       window.nmrcalcStatus.pending = waiting.size;
+      window.nmrcalcStatus.wasmBytes = message.wasmBytes;
       if (resolve) resolve(JSON.parse(message.text));
     }
   }
@@ -212,11 +213,42 @@ const NMR = (() => {
     startWorker();
   }
 
+  // ---------- the ops' declared parameters (embedded at build time from {"op": "describe"}) ----------
+  const DECLARED = (() => {
+    const node = document.getElementById("nmrcalc-params");
+    try {
+      return new Map(JSON.parse(node ? node.textContent : "{}").ops.map((op) => [op.op, op]));
+    } catch (err) {
+      return new Map();
+    }
+  })();
+  /** The declaration of "op.key" or "op.list.key" (an item key of a list), or null. */
+  function param(path) {
+    const [opName, ...keys] = path.split(".");
+    let params = DECLARED.has(opName) ? DECLARED.get(opName).params : [];
+    let found = null;
+    for (const key of keys) {
+      found = params.find((p) => p.key === key) || null;
+      if (!found) return null;
+      params = found.items || [];
+    }
+    return found;
+  }
+  /** A field's label, hint and default from its declaration (field.param, e.g. 'frequency.min_MHz'); the field's own win. */
+  function declaredField(field) {
+    const decl = field.param ? param(field.param) : null;
+    if (!decl) return field;
+    const unit = decl.unit && decl.unit !== "%" ? ` (${decl.unit})` : decl.unit === "%" ? " (%)" : "";
+    const value = decl.default === null || decl.default === undefined || typeof decl.default === "object" ? undefined : decl.default;
+    return { label: `${decl.label}${unit}`, hint: decl.help, value, ...field };
+  }
+
   // ---------- forms ----------
   // A field: {id, label, kind: "text"|"select"|"checkbox", value, keys, hint,
   //           options: [[value, label]], units: [{unit, label, key}], list, inputmode}
   // keys: the request keys whose errors belong beside this field.
-  function buildField(form, field) {
+  function buildField(form, spec) {
+    const field = declaredField(spec);
     const inputId = `${form.id}-${field.id}`;
     const storeKey = `${form.id}.${field.id}`;
     const saved = store[storeKey];
@@ -542,10 +574,12 @@ const NMR = (() => {
     }), 0));
   }
 
-  /** Request keys for a magnet field with units MHz (1H frequency) or T / kG / G. */
+  /** Request keys for a magnet field: the text as typed; the unit chosen beside it only
+   * names a bare number (MHz ¹H → spectrometer, T → field, kG/G said with the number). */
   function magnetRequest(value) {
     const key = value.unit === "MHz" ? "spectrometer" : "field";
-    return { [key]: value.value === "" ? "" : `${value.value} ${value.unit}` };
+    const bare = /^[\s\d.eE+\-\u2212]*$/.test(value.value);
+    return { [key]: bare && value.value !== "" && (value.unit === "kG" || value.unit === "G") ? `${value.value} ${value.unit}` : value.value };
   }
 
   const MAGNET_UNITS = [
@@ -623,7 +657,7 @@ const NMR = (() => {
 
   return {
     api, ready, el, fmt, fixed, calculation, nuclideLabel, numberNode, form, sharedField, resultList, sortableTable,
-    registerPanel, whenShown, start, timings, magnetRequest, MAGNET_UNITS, remember, recall, cancel,
+    registerPanel, whenShown, start, timings, magnetRequest, MAGNET_UNITS, remember, recall, cancel, param,
     forms, selectTab: (id) => selectTab(id, false), panelIds: () => panels.map((p) => p.id), panelOf, notice,
     // test hook: the live worker, so a browser test can send it a message it fails on
     debugWorker: () => worker,
