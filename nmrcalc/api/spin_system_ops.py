@@ -90,7 +90,10 @@ def _spins(req) -> list[tuple[Nuclide, float, int]]:
     return out
 
 
-def _couplings(req, labels: list[str]) -> list[tuple[int, int, float]]:
+def _couplings(req, labels: list[str] | int) -> list[tuple[int, int, float]]:
+    """Couplings as (i, j, J_Hz); ``labels`` names the spins (an int n: the default labels of n spins)."""
+    if isinstance(labels, int):
+        labels = [_auto_label(i) for i in range(labels)]
     items = req.get("couplings", [])
     if not isinstance(items, list):
         raise InputError("'couplings' must be a list.", "couplings")
@@ -239,12 +242,14 @@ DECLARED = {"spin_system": Op(
             Param("nucleus", "nuclide", required=True, label="Nucleus", help="e.g. 1H"),
             Param("shift", "quantity", unit="shift", required=True, label="Shift", help="in ppm"),
             Param("count", "integer", default=1, bounds=(1, MAX_COUNT), label="Count", help="equivalent nuclei"),
+            Param("label", "text", max_chars=MAX_LABEL, label="Label",
+                  help="the spin's name, e.g. H-3 (default A, B, C… in order)"),
         )),
         Param("couplings", "objects", label="Couplings", max_items=MAX_SPINS * MAX_SPINS,
-              help="each I,J,HZ with spins numbered from 0, e.g. 0,1,8.0", cli="--coupling",
+              help="each I,J,HZ with spins named by label or numbered from 0, e.g. A,B,8.0", cli="--coupling",
               cli_order=("between", "between", "J"),
               example=[{"between": [0, 1], "J": 7}, {"between": [1, 2], "J": "48 Hz"}], items=(
-            Param("between", "pair", required=True, label="Between", help="the two spins, e.g. [0, 1]"),
+            Param("between", "pair", required=True, label="Between", help="the two spins, e.g. [\"A\", \"B\"] or [0, 1]"),
             Param("J", "quantity", unit="coupling", required=True, label="J", help="the coupling in Hz"),
         )),
         *MAGNET,
@@ -253,6 +258,8 @@ DECLARED = {"spin_system": Op(
               example=["300 MHz", 600]),
         Param("factor_equivalence", "flag", default=True, label="Factor equivalent spins",
               help="use magnetic equivalence to shrink the problem (same answer, faster)"),
+        Param("exact", "flag", default=False, label="Exact only",
+              help="solve weak links between clusters exactly too (no first-order treatment)"),
         Param("first_order", "flag", default=False, label="First-order overlay",
               help="also return the first-order lines for comparison"),
         *SPECTRUM,
