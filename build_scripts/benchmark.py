@@ -465,6 +465,45 @@ def spin_section(bench: Bench) -> list:
     out.append(f"  largest chain within {SPIN_LIMIT_S:g} s: factored {best[True]} nuclei"
                + (" (still under the limit at k = 8, the largest tried)" if going[True] else "")
                + f", expanded {best[False]} nuclei")
+    return out + _molecule_rows(bench, base)
+
+
+def _aryl_butyl() -> tuple[list, list]:
+    """Made-up 4-butylphenyl fragment: AA'BB' ring + CH2CH2CH2CH3 (16 nuclei), 0.6 Hz benzylic links."""
+    spins = [{"nucleus": "1H", "shift": s, "label": n} for s, n in
+             ((7.10, "H-2"), (7.10, "H-6"), (7.05, "H-3"), (7.05, "H-5"))]
+    spins += [{"nucleus": "1H", "shift": s, "count": c, "label": n} for s, c, n in
+              ((2.58, 2, "H-1'"), (1.58, 2, "H-2'"), (1.35, 2, "H-3'"), (0.92, 3, "H-4'"))]
+    J = [(("H-2", "H-3"), 8.2), (("H-6", "H-5"), 8.2), (("H-2", "H-5"), 0.4), (("H-6", "H-3"), 0.4),
+         (("H-2", "H-6"), 2.1), (("H-3", "H-5"), 2.6), (("H-1'", "H-2'"), 7.7), (("H-2'", "H-3'"), 7.4),
+         (("H-3'", "H-4'"), 7.3), (("H-2", "H-1'"), 0.6), (("H-6", "H-1'"), 0.6)]
+    return spins, [{"between": list(p), "J": j} for p, j in J]
+
+
+def _molecule_rows(bench: Bench, base: dict) -> list:
+    """16-nucleus two-cluster molecule (weak links) and 10 all-coupled spins: page, CPython pure, numpy."""
+    from nmrcalc.api import handle
+    from nmrcalc.physics import spin_system
+
+    out = ["  issue 14 targets: page vs CPython (pure Python and numpy.linalg.eigh), one run (s)"]
+    rows = []
+    for name, (spins, couplings), limit in (("aryl + butyl, 16 nuclei, weak links", _aryl_butyl(), 1.0),
+                                            ("10 all-coupled spins-1/2, exact", _all_coupled(10), 5.0)):
+        req = {**base, "spins": spins, "couplings": couplings}
+        page, why = page_call_or_refused(bench, req, 3 * limit)
+        times = []
+        for use_numpy in (False, True):
+            solver = spin_system._solver
+            spin_system._solver = lambda _u, use_numpy=use_numpy: solver(use_numpy)
+            try:
+                times.append(statistics.median(cpython_times(lambda: handle(req), 1)) / 1000)
+            finally:
+                spin_system._solver = solver
+        rows.append([name, page if why is None else why, times[0], times[1],
+                     (page / times[0]) if why is None else "-", (page / times[1]) if why is None else "-"])
+        if why is None:
+            _target(bench, f"{name} in the page", page, limit, "s")
+    out += _table(["system", "page s", "CPython pure s", "CPython numpy s", "page/pure", "page/numpy"], rows)
     return out
 
 

@@ -117,3 +117,71 @@ def test_progress_is_reported_across_fields():
     del req["spectrometer"]
     assert handle(req, progress=seen.append)["ok"]
     assert seen and seen == sorted(seen) and seen[-1] == 1.0 and 0 < seen[0] <= 0.5
+
+
+def test_labels_name_spins_in_couplings_checks_and_transitions():
+    req = {**AB, "spins": [{**AB["spins"][0], "label": "H-3"}, AB["spins"][1]],
+           "couplings": [{"between": ["H-3", "B"], "J": "8.0 Hz"}]}
+    r = run(req)
+    assert r["lines"] == run(AB)["lines"]  # same system, spins named by label instead of index
+    assert r["checks"][0]["labels"] == ["H-3", "B"] and r["first_order_threshold"] == 10.0
+    # AB: the lower pair belongs mostly to the lower-shift spin B (PSB 1959: mixing sin²θ < 1/2)
+    assert [t["label"] for t in r["transitions"]] == ["B", "B", "H-3", "H-3"]
+    assert [t["Hz"] for t in r["transitions"]] == [line["Hz"] for line in r["lines"]]
+    bad = handle({**req, "couplings": [{"between": ["H-3", "H-9"], "J": 1}]})
+    assert bad["error"]["field"] == "couplings.0.between" and "H-9" in bad["error"]["message"]
+    assert "0 to" not in bad["error"]["message"]
+    dup = handle({**req, "spins": [{**AB["spins"][0], "label": "B"}, AB["spins"][1]]})
+    assert dup["error"]["field"] == "spins.1.label"
+
+
+def test_disconnected_clusters_sum_exactly():
+    # sites with no coupling path have commuting Hamiltonians: the spectrum is the exact sum
+    # of each cluster's spectrum, weighted by its share of Σ I(I+1) (PSB 1959, ch. 6)
+    ethyl = [{"nucleus": "1H", "shift": 1.2, "count": 3}, {"nucleus": "1H", "shift": 3.6, "count": 2}]
+    vinyl = [{"nucleus": "1H", "shift": 6.1}, {"nucleus": "1H", "shift": 5.9}]
+    both = run({"op": "spin_system", "observe": "1H", "spectrometer": "400 MHz", "spins": ethyl + vinyl,
+                "couplings": [{"between": [0, 1], "J": 7}, {"between": [2, 3], "J": 12}]})
+    alone = [run({"op": "spin_system", "observe": "1H", "spectrometer": "400 MHz", "spins": part,
+                  "couplings": [{"between": [0, 1], "J": J}]}) for part, J in ((ethyl, 7), (vinyl, 12))]
+    assert [(c["spins"], c["method"], c["error_Hz"]) for c in both["clusters"]] == [
+        ([0, 1], "exact", 0.0), ([2, 3], "exact", 0.0)]
+    expected = sorted([(l["Hz"], l["intensity"] * 5 / 7) for l in alone[0]["lines"]]
+                      + [(l["Hz"], l["intensity"] * 2 / 7) for l in alone[1]["lines"]])
+    got = [(l["Hz"], l["intensity"]) for l in both["lines"]]
+    assert len(got) == len(expected)
+    # equal to rounding (the merge's weighted mean and the 6/(D Σ I(I+1)) scale round differently)
+    assert all(abs(a[0] - b[0]) < 1e-9 and math.isclose(a[1], b[1], rel_tol=1e-12) for a, b in zip(got, expected))
+
+
+def test_seven_coupled_protons_with_narrow_lines_are_drawn():
+    # the sampled spectrum counts the evaluations it makes, so 0.8 Hz lines of seven coupled 1H draw
+    spins = [{"nucleus": "1H", "shift": 7.0 - 0.15 * k} for k in range(7)]
+    couplings = [{"between": [i, j], "J": 7.5 - (j - i)} for i in range(7) for j in range(i + 1, 7)]
+    r = run({"op": "spin_system", "observe": "1H", "spectrometer": "400 MHz", "spins": spins,
+             "couplings": couplings, "spectrum": True, "linewidth": "0.8 Hz"})
+    assert len(r["lines"]) > 1000 and len(r["spectrum"]["y"]) == len(r["spectrum"]["x_ppm"])
+
+
+def test_weak_links_split_unless_exact():
+    # made-up 4-ethylphenyl fragment at 400 MHz: the 0.6 Hz benzylic links (Δν = 1800 Hz) are weak
+    spins = [{"nucleus": "1H", "shift": s, "label": name} for s, name in
+             ((7.10, "H-2"), (7.10, "H-6"), (7.00, "H-3"), (7.00, "H-5"))]
+    spins += [{"nucleus": "1H", "shift": 2.60, "count": 2, "label": "CH2"},
+              {"nucleus": "1H", "shift": 1.20, "count": 3, "label": "CH3"}]
+    couplings = [{"between": a, "J": J} for a, J in ((["H-2", "H-3"], 8.2), (["H-6", "H-5"], 8.2),
+                                                      (["H-2", "H-5"], 0.4), (["H-6", "H-3"], 0.4),
+                                                      (["H-2", "H-6"], 2.1), (["H-3", "H-5"], 2.6),
+                                                      (["CH2", "CH3"], 7.6), (["H-2", "CH2"], 0.6),
+                                                      (["H-6", "CH2"], 0.6))]
+    req = {"op": "spin_system", "observe": "1H", "spectrometer": "400 MHz", "spins": spins, "couplings": couplings}
+    split, exact = run(req), run({**req, "exact": True})
+    assert [(c["labels"], c["method"]) for c in split["clusters"]] == [
+        (["H-2", "H-6", "H-3", "H-5"], "weak-link"), (["CH2", "CH3"], "weak-link")]
+    assert [c["method"] for c in exact["clusters"]] == ["exact"] and exact["weak_link_tol_Hz"] is None
+    bound = max(c["error_Hz"] for c in split["clusters"])
+    assert bound < 0.01
+    exact_Hz = [l["Hz"] for l in exact["lines"]]
+    for line in split["lines"]:
+        if line["intensity"] > 1e-3:
+            assert min(abs(line["Hz"] - x) for x in exact_Hz) <= bound + 2e-3  # 2e-3: merge tolerances

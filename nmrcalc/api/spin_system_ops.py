@@ -2,6 +2,20 @@
 the first-order check of every coupled pair, the first-order pattern for
 comparison, and the same system at several fields.
 
+Spins carry chemists' labels: ``label`` per spin (e.g. "H-3", at most
+``MAX_LABEL`` characters), else A, B, C… in input order; messages and the
+page name spins by label, and ``between`` accepts labels or 0-based indices.
+
+Result: ``lines`` (observed transitions, merged), ``transitions`` (the same
+lines with ``spin``, the index of the observed spin each mostly belongs to, and
+its label), ``clusters`` (sites joined by coupling paths, each solved alone and
+summed — exact, since their Hamiltonians commute; clusters joined only by weak
+links, |Δν| >= 20 |J| and J²/|Δν| <= ``WEAK_LINK_TOL_HZ`` in Hz at the chosen
+field, are solved apart with those links to first order, ``method``
+"weak-link" and ``error_Hz`` the estimate of ``spin_system.clusters``;
+``"exact": true`` solves every link exactly) and ``first_order_threshold``
+(the Δν/J used by ``checks``).
+
 ``factor_equivalence`` (default true) lets the solver use groups of equivalent
 spins (total spin of each group); false expands every nucleus (same lines,
 larger matrices; for benchmarks and cross-checks).
@@ -20,11 +34,37 @@ from nmrcalc.errors import InputError
 from nmrcalc.nuclides import Nuclide
 from nmrcalc.physics import larmor, lineshape
 from nmrcalc.physics.multiplet import multiplet
-from nmrcalc.physics.spin_system import MAX_COUNT, Site, equivalence_caveats, first_order_checks, simulate
+from nmrcalc.physics.spin_system import (MAX_COUNT, Site, clusters, equivalence_caveats, first_order_checks,
+                                         transitions)
 from nmrcalc.units import split_list
 
 MAX_FIELDS = 12
 MAX_SPINS = 64  # spin entries in one request; each may stand for up to MAX_COUNT equivalent nuclei
+MAX_LABEL = 24
+WEAK_LINK_TOL_HZ = 0.01  # J²/|Δν| of a link treated to first order (Hz)
+FIRST_ORDER_THRESHOLD = 10.0  # Δν/|J| at or above which a pair is called first order (rule of thumb)
+
+
+def _auto_label(i: int) -> str:
+    """A, B, … Z, then A1, B1, …: letters in input order, as spin systems are written."""
+    letter = chr(ord("A") + i % 26)
+    return letter if i < 26 else f"{letter}{i // 26}"
+
+
+def _labels(req) -> list[str]:
+    out = []
+    for i, s in enumerate(req["spins"]):
+        label = s.get("label")
+        if label is None or label == "":
+            label = _auto_label(i)
+        elif not isinstance(label, str) or len(label.strip()) == 0 or len(label) > MAX_LABEL:
+            raise InputError(f"label must be text of 1 to {MAX_LABEL} characters, e.g. \"H-3\".",
+                             f"spins.{i}.label")
+        label = label.strip()
+        if label in out:
+            raise InputError(f"The label {label} is used for two spins.", f"spins.{i}.label")
+        out.append(label)
+    return out
 
 
 def _spins(req) -> list[tuple[Nuclide, float, int]]:
@@ -50,7 +90,10 @@ def _spins(req) -> list[tuple[Nuclide, float, int]]:
     return out
 
 
-def _couplings(req, n: int) -> list[tuple[int, int, float]]:
+def _couplings(req, labels: list[str] | int) -> list[tuple[int, int, float]]:
+    """Couplings as (i, j, J_Hz); ``labels`` names the spins (an int n: the default labels of n spins)."""
+    if isinstance(labels, int):
+        labels = [_auto_label(i) for i in range(labels)]
     items = req.get("couplings", [])
     if not isinstance(items, list):
         raise InputError("'couplings' must be a list.", "couplings")
@@ -60,20 +103,28 @@ def _couplings(req, n: int) -> list[tuple[int, int, float]]:
         if not isinstance(c, dict):
             raise InputError("Each coupling is an object with between [i, j] and J.", f"couplings.{k}")
         pair = c.get("between")
-        if (not isinstance(pair, list) or len(pair) != 2
-                or not all(isinstance(x, int) and not isinstance(x, bool) for x in pair)):
-            raise InputError("between must be two spin numbers, e.g. [0, 1].", where + "between")
-        i, j = pair
-        if not (0 <= i < n and 0 <= j < n):
-            raise InputError(f"between must name spins 0 to {n - 1}.", where + "between")
+        if not isinstance(pair, list) or len(pair) != 2:
+            raise InputError(f"between must name two spins, e.g. [\"{labels[0]}\", \"{labels[-1]}\"].",
+                             where + "between")
+        i, j = (_spin_ref(x, labels, where + "between") for x in pair)
         if i == j:
-            raise InputError("A spin has no coupling with itself.", where + "between")
+            raise InputError(f"Spin {labels[i]} has no coupling with itself.", where + "between")
         key = (min(i, j), max(i, j))
         if key in seen:
-            raise InputError(f"The coupling between spins {i} and {j} is given twice.", where + "between")
+            raise InputError(f"The coupling between {labels[i]} and {labels[j]} is given twice.", where + "between")
         seen.add(key)
         out.append((key[0], key[1], quantity(c, "J", "coupling", prefix=where)))
     return out
+
+
+def _spin_ref(x, labels: list[str], field: str) -> int:
+    """A spin named by its label or by its 0-based index in ``spins``."""
+    if isinstance(x, str) and x.strip() in labels:
+        return labels.index(x.strip())
+    if isinstance(x, int) and not isinstance(x, bool) and 0 <= x < len(labels):
+        return x
+    raise InputError(f"between must name spins by label ({', '.join(labels[:6])}"
+                     f"{'…' if len(labels) > 6 else ''}) or index; {x!r} is neither.", field)
 
 
 def _magnets(req, warnings) -> list[tuple[float, float]]:
@@ -119,18 +170,27 @@ def _line_dicts(lines, ref_MHz):
     return [{"Hz": x, "ppm": x / ref_MHz, "intensity": y} for x, y in lines]
 
 
-def _block(spins, couplings, observe, field_T, proton_MHz, req, progress=None) -> dict:
+def _block(spins, labels, couplings, observe, field_T, proton_MHz, req, progress=None) -> dict:
     sites = [Site(nuc.symbol, nuc.spin, shift * _ref_MHz(nuc, field_T, proton_MHz), count)
              for nuc, shift, count in spins]
-    lines = simulate(sites, couplings, observe.symbol, factor_equivalence=flag(req, "factor_equivalence", True),
-                     progress=progress)
+    tol = None if flag(req, "exact") else WEAK_LINK_TOL_HZ
+    found = transitions(sites, couplings, observe.symbol, factor_equivalence=flag(req, "factor_equivalence", True),
+                        progress=progress, weak_link_tol_Hz=tol)
+    lines = [(x, y) for x, y, _ in found]
     ref = _ref_MHz(observe, field_T, proton_MHz)
-    checks = [{"pair": list(c["pair"]), "nucleus": c["nucleus"], "delta_nu_Hz": c["delta_nu_Hz"], "J_Hz": c["J_Hz"],
+    checks = [{"pair": list(c["pair"]), "labels": [labels[k] for k in c["pair"]], "nucleus": c["nucleus"],
+               "delta_nu_Hz": c["delta_nu_Hz"], "J_Hz": c["J_Hz"],
                "delta_nu_over_J": c["delta_nu_over_J"], "first_order": c["first_order"],
                "first_order_from_MHz": c.get("threshold_1H_MHz")}
-              for c in first_order_checks(sites, couplings, spectrometer_1H_MHz=proton_MHz)]
+              for c in first_order_checks(sites, couplings, threshold=FIRST_ORDER_THRESHOLD,
+                                          spectrometer_1H_MHz=proton_MHz)]
+    groups = [{"spins": c["spins"], "labels": [labels[k] for k in c["spins"]], "method": c["method"],
+               "error_Hz": c["error_Hz"]} for c in clusters(sites, couplings, observe.symbol, tol)]
     block = {"spectrometer_MHz": proton_MHz, "field_T": field_T, "observe_MHz": ref,
-             "lines": _line_dicts(lines, ref), "checks": checks}
+             "lines": _line_dicts(lines, ref), "checks": checks, "first_order_threshold": FIRST_ORDER_THRESHOLD,
+             "clusters": groups, "weak_link_tol_Hz": tol,
+             "transitions": [{"Hz": x, "ppm": x / ref, "intensity": y, "spin": k, "label": labels[k]}
+                             for x, y, k in found]}
     first = _first_order_lines(sites, couplings, observe.symbol)
     if flag(req, "first_order"):
         block["first_order_lines"] = _line_dicts(first, ref)
@@ -154,15 +214,16 @@ def op_spin_system(req, warnings):
     spins = _spins(req)
     if not any(nuc.symbol == observe.symbol for nuc, _, _ in spins):
         raise InputError(f"No {observe.symbol} among the spins: nothing to observe.", "observe")
-    couplings = _couplings(req, len(spins))
+    labels = _labels(req)
+    couplings = _couplings(req, labels)
     magnets = _magnets(req, warnings)
     report = PROGRESS.get()
     blocks = []
     for k, (f, p) in enumerate(magnets):
         step = None if report is None else (lambda x, k=k: report((k + x) / len(magnets)))
-        blocks.append(_block(spins, couplings, observe, f, p, req, step))
+        blocks.append(_block(spins, labels, couplings, observe, f, p, req, step))
     offsets0 = [Site(nuc.symbol, nuc.spin, shift, count) for nuc, shift, count in spins]
-    warnings.extend(equivalence_caveats(offsets0, couplings))
+    warnings.extend(equivalence_caveats(offsets0, couplings, labels=labels))
     if any(nuc.quadrupolar and nuc.symbol != "2H" for nuc, _, _ in spins):
         warnings.append("A quadrupolar spin is treated as sharp: fast relaxation often collapses its couplings.")
     if req.get("fields") not in (None, []):
@@ -181,12 +242,14 @@ DECLARED = {"spin_system": Op(
             Param("nucleus", "nuclide", required=True, label="Nucleus", help="e.g. 1H"),
             Param("shift", "quantity", unit="shift", required=True, label="Shift", help="in ppm"),
             Param("count", "integer", default=1, bounds=(1, MAX_COUNT), label="Count", help="equivalent nuclei"),
+            Param("label", "text", max_chars=MAX_LABEL, label="Label",
+                  help="the spin's name, e.g. H-3 (default A, B, C… in order)"),
         )),
         Param("couplings", "objects", label="Couplings", max_items=MAX_SPINS * MAX_SPINS,
-              help="each I,J,HZ with spins numbered from 0, e.g. 0,1,8.0", cli="--coupling",
+              help="each I,J,HZ with spins named by label or numbered from 0, e.g. A,B,8.0", cli="--coupling",
               cli_order=("between", "between", "J"),
               example=[{"between": [0, 1], "J": 7}, {"between": [1, 2], "J": "48 Hz"}], items=(
-            Param("between", "pair", required=True, label="Between", help="the two spins, e.g. [0, 1]"),
+            Param("between", "pair", required=True, label="Between", help="the two spins, e.g. [\"A\", \"B\"] or [0, 1]"),
             Param("J", "quantity", unit="coupling", required=True, label="J", help="the coupling in Hz"),
         )),
         *MAGNET,
@@ -195,6 +258,8 @@ DECLARED = {"spin_system": Op(
               example=["300 MHz", 600]),
         Param("factor_equivalence", "flag", default=True, label="Factor equivalent spins",
               help="use magnetic equivalence to shrink the problem (same answer, faster)"),
+        Param("exact", "flag", default=False, label="Exact only",
+              help="solve weak links between clusters exactly too (no first-order treatment)"),
         Param("first_order", "flag", default=False, label="First-order overlay",
               help="also return the first-order lines for comparison"),
         *SPECTRUM,

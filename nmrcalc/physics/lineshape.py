@@ -21,8 +21,12 @@ Sampling
 The grid is even with ``points_per_fwhm`` points per line width (default
 ``DEFAULT_POINTS_PER_FWHM``).  If that would need more than ``max_points``
 points the step widens, but never below ``MIN_POINTS_PER_FWHM`` points per
-width; past that, and past ``MAX_EVALUATIONS`` line-times-point evaluations,
-``InputError(code="too_large")`` is raised.  The automatic window is the stick
+width; past that ``InputError(code="too_large")`` is raised.  The work is
+counted as the profile evaluations actually made (each line on every point, or,
+for Lorentzians on a long grid, on the knots plus its near window; for
+Gaussians on its ``GAUSS_CUTOFF_SIGMA`` reach); above ``MAX_EVALUATIONS`` the
+density drops to ``MIN_POINTS_PER_FWHM`` first, and only then is the request
+refused, with the size and the remedy in the message.  The automatic window is the stick
 extent plus ``margin_fwhm`` widths on each side.  Pure Python lists, ascending
 in Hz.  Gaussian tails beyond ``GAUSS_CUTOFF_SIGMA`` standard deviations (a
 relative height below 1e-31) are not evaluated.
@@ -168,9 +172,15 @@ def sample_spectrum(
                 field="fwhm_Hz",
                 code="too_large",
             )
-    if count * len(lines) > MAX_EVALUATIONS:
+    work = _evaluations(len(lines), count, span / (count - 1), fwhm, shape)
+    if work > MAX_EVALUATIONS and density > MIN_POINTS_PER_FWHM:
+        # fewer points per line width before refusing (never below MIN_POINTS_PER_FWHM)
+        count = min(count, math.ceil(span / fwhm * MIN_POINTS_PER_FWHM) + 1)
+        work = _evaluations(len(lines), count, span / (count - 1), fwhm, shape)
+    if work > MAX_EVALUATIONS:
         raise InputError(
-            f"{len(lines)} lines x {count} points exceeds the limit of {MAX_EVALUATIONS} evaluations",
+            f"{len(lines)} lines on {count} points need about {work} evaluations, above the limit of "
+            f"{MAX_EVALUATIONS}: use a wider line width or a narrower window (the line list is complete)",
             field="sticks",
             code="too_large",
         )
@@ -192,6 +202,15 @@ def sample_spectrum(
                 d = x_Hz[i] - x0
                 y[i] += peak * math.exp(-d * d * inv)
     return SampledSpectrum(x_Hz, y, step)
+
+
+def _evaluations(n_lines: int, count: int, step: float, fwhm: float, shape: str) -> int:
+    """Profile evaluations the sampling will make (the same near/far decision as ``_lorentzian_sum``)."""
+    if shape == "gaussian":
+        return n_lines * min(count, 2 * math.ceil(GAUSS_CUTOFF_SIGMA * fwhm * _FWHM_TO_SIGMA / step) + 1)
+    reach = math.ceil(NEAR_FWHM * fwhm / step)
+    every = max(1, round(KNOT_FWHM * fwhm / step))
+    return n_lines * min(count, count // every + 3 * (2 * reach + 1))
 
 
 def _lorentzian_sum(lines: list[tuple[float, float]], fwhm: float, x_Hz: list[float], step: float) -> list[float]:

@@ -47,6 +47,8 @@ Public interface::
     simulate(sites, couplings, observe, *, use_numpy=None, factor_equivalence=True,
              merge_tol_Hz=1e-3, min_rel_intensity=1e-6, progress=None)
         -> list[tuple[float, float]]   # (freq_Hz, intensity), ascending freq_Hz
+    transitions(same arguments) -> list[tuple[float, float, int]]  # plus the site each line mostly belongs to
+    components(n_sites, couplings) -> list[list[int]]   # sites joined by coupling paths
     first_order_checks(sites, couplings, threshold=10.0, spectrometer_1H_MHz=None)
         -> list[dict]
     equivalence_caveats(sites, couplings, shift_tol_Hz=1e-6, J_tol_Hz=1e-6) -> list[str]
@@ -236,6 +238,68 @@ class _Unit:
     site: int
 
 
+WEAK_LINK_MIN_RATIO = 20.0  # |Δν|/|J| a weak link needs besides J²/|Δν| <= tolerance
+
+
+def _split_links(sites, J, observe, tol_Hz):
+    """(strong, weak) couplings: weak = like observed spins with |Δν| >= 20|J| and J²/|Δν| <= tol_Hz."""
+    if tol_Hz is None:
+        return J, {}
+    strong, weak = {}, {}
+    for (i, j), J_ij in J.items():
+        delta = abs(sites[i].offset_Hz - sites[j].offset_Hz)
+        if (sites[i].nucleus == sites[j].nucleus == observe and delta >= WEAK_LINK_MIN_RATIO * abs(J_ij)
+                and J_ij * J_ij <= tol_Hz * delta):
+            weak[(i, j)] = J_ij
+        else:
+            strong[(i, j)] = J_ij
+    # a weak link inside one strongly joined cluster gains nothing: it is solved exactly there
+    roots = {s: k for k, group in enumerate(_components(len(sites), strong)) for s in group}
+    for pair in [p for p in weak if roots[p[0]] == roots[p[1]]]:
+        strong[pair] = weak.pop(pair)
+    return strong, weak
+
+
+def clusters(sites, couplings, observe: str, weak_link_tol_Hz: float | None = None) -> list[dict]:
+    """Clusters solved apart: {"spins", "method" ("exact" | "weak-link"), "error_Hz", "links"}.
+
+    Sites joined by no coupling path are exact apart.  With ``weak_link_tol_Hz``
+    a coupling between like observed sites with |Δν| >= 20 |J| and J²/|Δν| <=
+    ``weak_link_tol_Hz`` (both in Hz at the chosen field) is a weak link, treated to
+    first order.  The neglected flip-flop terms J/2 (F_+ F_− + F_− F_+) between
+    the clusters shift each level by second-order perturbation theory by at most
+    (Σ_links |J| c_i c_j)² / (4 |Δν|) (the amplitudes of one cluster's links can
+    add; c = (n + 1)/2 bounds a ladder element of a group of n spins-½; for one
+    AB pair this is J²/(4Δν), the AB quartet's C = √(Δν² + J²) ≈ Δν + J²/(2Δν)),
+    so a line moves by about twice that.  ``error_Hz`` is that times 4, a margin
+    for energy denominators of strongly coupled clusters spread below Δν and for
+    near-degenerate lines: 2 (Σ_links |J| c_i c_j)² / min |Δν|.  The margin is
+    set by the dense numpy reference (tests/test_spin_clusters.py: at 60 MHz a
+    strongly coupled ethyl line moved 0.013 Hz against an unmargined 0.006 Hz).
+    """
+    sites = _checked_sites(sites)
+    J = _checked_couplings(couplings, len(sites))
+    _checked_observe(sites, observe)
+    if weak_link_tol_Hz is not None:
+        weak_link_tol_Hz = _checked_real(weak_link_tol_Hz, "weak_link_tol_Hz")
+    strong, weak = _split_links(sites, J, observe, weak_link_tol_Hz)
+    out = []
+    for group in _components(len(sites), strong):
+        links = [(i, j, J_ij) for (i, j), J_ij in sorted(weak.items()) if i in group or j in group]
+        c = [(sites[k].count * float(2 * sites[k].spin) + 1) / 2 for k in range(len(sites))]
+        amplitude = sum(abs(J_ij) * c[i] * c[j] for i, j, J_ij in links)
+        error = 2 * amplitude ** 2 / min((abs(sites[i].offset_Hz - sites[j].offset_Hz) for i, j, _ in links),
+                                     default=1.0)
+        out.append({"spins": group, "method": "weak-link" if links else "exact", "error_Hz": error,
+                    "links": links})
+    return out
+
+
+def components(n_sites: int, couplings) -> list[list[int]]:
+    """Sites joined by chains of non-zero couplings (solved separately and summed: exact)."""
+    return _components(n_sites, _checked_couplings(couplings, n_sites))
+
+
 def _components(n_sites: int, J: dict[tuple[int, int], float]) -> list[list[int]]:
     """Connected components of the coupling graph (non-zero J only), each sorted."""
     parent = list(range(n_sites))
@@ -382,8 +446,36 @@ def _block_hamiltonian(states, index, nu, two_fs, pairs) -> list[list[float]]:
     return H
 
 
-def _composition_lines(units, spins, J_units, observe, weight, solve, emit, tick):
-    """Diagonalize every block of one composition and emit (freq_Hz, raw intensity)."""
+def _expectations(states, V, link_pos, n_linked):
+    """<Σ I_z> of each linked site in every eigenvector of one block (tuples in ``link_pos`` order)."""
+    if not n_linked:
+        return None
+    if not link_pos:  # every linked group of this composition has total spin 0
+        return [(0.0,) * n_linked] * len(states)
+    if hasattr(V, "shape"):
+        import numpy
+
+        W = V * V  # columns: eigenvectors
+        z = numpy.zeros((W.shape[1], n_linked))
+        for a, slot in link_pos:
+            z[:, slot] += numpy.array([st[a] / 2 for st in states]) @ W
+        return [tuple(row) for row in z.tolist()]
+    out = []
+    for v in V:
+        z = [0.0] * n_linked
+        for a, slot in link_pos:
+            z[slot] += sum(c * c * st[a] for c, st in zip(v, states)) / 2
+        out.append(tuple(z))
+    return out
+
+
+def _composition_lines(units, spins, J_units, observe, weight, solve, emit, tick, linked=None, record=None):
+    """Diagonalize every block of one composition and emit (freq_Hz, raw intensity, site, Δ<I_z>).
+
+    ``linked`` maps every weakly linked site (of all clusters) to a slot; then each line also carries
+    the change of <Σ I_z> of every linked site (final − initial eigenstate) and
+    ``record(weight, z)`` receives every eigenstate's <Σ I_z> per slot.
+    """
     nuclei = list(dict.fromkeys(units[k].nucleus for k, _ in spins))
     nuc_of = [nuclei.index(units[k].nucleus) for k, _ in spins]
     obs = nuclei.index(observe) if observe in nuclei else None
@@ -397,10 +489,15 @@ def _composition_lines(units, spins, J_units, observe, weight, solve, emit, tick
             Jab = J_units(spins[a][0], spins[b][0])
             if Jab != 0.0:
                 pairs.append((a, b, Jab, nuc_of[a] == nuc_of[b]))
-    solved = {}
+    link_pos = [(a, linked[units[k].site]) for a, (k, _) in enumerate(spins) if linked and units[k].site in linked]
+    solved, expect = {}, {}
     for key, states in _blocks(two_fs, nuc_of, len(nuclei)).items():
         index = {s: i for i, s in enumerate(states)}
         solved[key] = (states, index, solve(_block_hamiltonian(states, index, nu, two_fs, pairs)))
+        expect[key] = _expectations(states, solved[key][2][1], link_pos, len(linked or ()))
+        if record is not None and linked:
+            for z in expect[key]:
+                record(weight, z)
         tick(len(states) ** 3)
     obs_spins = [a for a in range(len(spins)) if nuc_of[a] == obs]
     for key, (states, _, (E_i, V_i)) in solved.items():
@@ -409,35 +506,50 @@ def _composition_lines(units, spins, J_units, observe, weight, solve, emit, tick
         if tuple(target) not in solved:
             continue
         f_states, f_index, (E_f, V_f) = solved[tuple(target)]
-        entries = []  # (row in i block, row in f block, <t|F_+|s>)
+        entries = []  # (row in i block, row in f block, <t|I_+a|s>, site of spin a)
         for si, s in enumerate(states):
             for a in obs_spins:
                 if s[a] < two_fs[a]:
                     t = list(s)
                     t[a] += 2
-                    entries.append((si, f_index[tuple(t)], _ladder(two_fs[a], s[a], True)))
-        for freq, amp in _transition_amplitudes(entries, len(f_states), E_i, V_i, E_f, V_f):
-            emit(freq, 0.25 * weight * amp * amp)
+                    entries.append((si, f_index[tuple(t)], _ladder(two_fs[a], s[a], True), units[spins[a][0]].site))
+        z_i, z_f = expect[key], expect[tuple(target)]
+        for freq, amp, site, fa, ib in _transition_amplitudes(entries, len(f_states), E_i, V_i, E_f, V_f):
+            d = () if z_i is None else tuple(x - y for x, y in zip(z_f[fa], z_i[ib]))
+            emit(freq, 0.25 * weight * amp * amp, site, d)
 
 
 def _transition_amplitudes(entries, dim_f, E_i, V_i, E_f, V_f):
-    """Yield (E_f[a] − E_i[b], <f_a|F_+|i_b>) for every eigenpair across two blocks."""
+    """Yield (E_f[a] − E_i[b], <f_a|F_+|i_b>, site, a, b) for every eigenpair across two blocks.
+
+    ``site`` is the observed site whose own I_+ gives the largest part
+    |<f_a|Σ_site I_+|i_b>|² of the amplitude: the spin the line "mostly belongs to".
+    """
+    sites = sorted({tag for *_, tag in entries})
     if hasattr(V_i, "shape"):  # numpy arrays: columns are eigenvectors
         import numpy
 
-        P = numpy.zeros((dim_f, len(E_i)))
-        for si, ti, c in entries:
-            P[ti, si] += c
-        A = V_f.T @ P @ V_i
+        parts = []
+        for site in sites:
+            P = numpy.zeros((dim_f, len(E_i)))
+            for si, ti, c, tag in entries:
+                if tag == site:
+                    P[ti, si] += c
+            parts.append(V_f.T @ P @ V_i)
+        A = sum(parts)
+        owner = numpy.argmax(numpy.stack([p * p for p in parts]), axis=0)
         freqs = E_f[:, None] - E_i[None, :]
-        yield from zip(freqs.ravel().tolist(), A.ravel().tolist())
+        n_i = len(E_i)
+        for k, (f, a, o) in enumerate(zip(freqs.ravel().tolist(), A.ravel().tolist(), owner.ravel().tolist())):
+            yield f, a, sites[o], k // n_i, k % n_i
         return
-    for Eb, vb in zip(E_i, V_i):
-        w = [0.0] * dim_f
-        for si, ti, c in entries:
-            w[ti] += c * vb[si]
-        for Ea, va in zip(E_f, V_f):
-            yield Ea - Eb, sum(map(mul, va, w))
+    for ib, (Eb, vb) in enumerate(zip(E_i, V_i)):
+        ws = {site: [0.0] * dim_f for site in sites}
+        for si, ti, c, tag in entries:
+            ws[tag][ti] += c * vb[si]
+        for fa, (Ea, va) in enumerate(zip(E_f, V_f)):
+            parts = {site: sum(map(mul, va, w)) for site, w in ws.items()}
+            yield Ea - Eb, sum(parts.values()), max(parts, key=lambda k: parts[k] ** 2), fa, ib
 
 
 def _solver(use_numpy):
@@ -453,19 +565,24 @@ def _solver(use_numpy):
     return lambda H: numpy.linalg.eigh(numpy.array(H, dtype=float))
 
 
-def _merge(lines, tol_Hz: float) -> list[tuple[float, float]]:
-    """Join lines whose position is within ``tol_Hz`` of the running weighted mean."""
-    merged: list[list[float]] = []
-    for freq, inten in sorted(lines):
+def _merge(lines, tol_Hz: float) -> list[tuple[float, float, int]]:
+    """Join lines whose position is within ``tol_Hz`` of the running weighted mean.
+
+    Each line is (freq, intensity, site); a merged line keeps the site of its strongest part.
+    """
+    merged: list[list] = []
+    for freq, inten, site in sorted(lines):
         if merged and freq - merged[-1][0] <= tol_Hz:
             last = merged[-1]
             total = last[1] + inten
             if total > 0.0:
                 last[0] = (last[0] * last[1] + freq * inten) / total
             last[1] = total
+            if inten > last[3]:
+                last[2], last[3] = site, inten
         else:
-            merged.append([freq, inten])
-    return [(f, i) for f, i in merged]
+            merged.append([freq, inten, site, inten])
+    return [(f, i, site) for f, i, site, _ in merged]
 
 
 def _count_text(n: int) -> str:
@@ -479,6 +596,26 @@ def simulate(sites, couplings, observe: str, *, use_numpy: bool | None = None,
              factor_equivalence: bool = True, merge_tol_Hz: float = 1e-3,
              min_rel_intensity: float = 1e-6, progress=None) -> list[tuple[float, float]]:
     """Lines (freq_Hz, intensity) of the ``observe`` nuclide, ascending in frequency.
+
+    Same arguments as ``transitions``, which also names the site of each line.
+    """
+    return [(f, i) for f, i, _ in transitions(
+        sites, couplings, observe, use_numpy=use_numpy, factor_equivalence=factor_equivalence,
+        merge_tol_Hz=merge_tol_Hz, min_rel_intensity=min_rel_intensity, progress=progress)]
+
+
+def transitions(sites, couplings, observe: str, *, use_numpy: bool | None = None,
+                factor_equivalence: bool = True, merge_tol_Hz: float = 1e-3,
+                min_rel_intensity: float = 1e-6, progress=None,
+                weak_link_tol_Hz: float | None = None) -> list[tuple[float, float, int]]:
+    """Lines (freq_Hz, intensity, site) of the ``observe`` nuclide, ascending in frequency.
+
+    ``weak_link_tol_Hz``: None = exact; otherwise couplings that pass the weak-link
+    test of ``clusters`` are treated to first order (each cluster's lines split by
+    the other cluster's eigenstates, module docstring) and the rest exactly.
+
+    ``site`` is the index of the observed site the line mostly belongs to
+    (largest share of its transition amplitude, ``_transition_amplitudes``).
 
     ``use_numpy``: None = numpy.linalg.eigh when importable, False = pure Python,
     True = require numpy.  Lines closer than ``merge_tol_Hz`` are merged at their
@@ -499,6 +636,9 @@ def simulate(sites, couplings, observe: str, *, use_numpy: bool | None = None,
     if progress is not None and not callable(progress):
         raise InputError("progress must be callable", field="progress")
     solve = _solver(use_numpy)
+    if weak_link_tol_Hz is not None:
+        weak_link_tol_Hz = _checked_real(weak_link_tol_Hz, "weak_link_tol_Hz")
+    J, weak = _split_links(sites, J, observe, weak_link_tol_Hz)
 
     plan = _plan(sites, J, observe, factor_equivalence)
     largest, total_dim, work = _size_report(plan)
@@ -525,7 +665,10 @@ def simulate(sites, couplings, observe: str, *, use_numpy: bool | None = None,
         if progress is not None:
             progress(min(1.0, done[0] / work))
 
-    raw: list[tuple[float, float]] = []
+    raw: list[tuple[float, float, int]] = []
+    linked_sites = sorted({s for pair in weak for s in pair})
+    slot = {site: k for k, site in enumerate(linked_sites)}
+    held = []  # per weakly linked cluster: (its lines with Δ<I_z>, its eigenstates' weight and <I_z>)
     for component, units, _ in plan:
         full_dim = math.prod(int(2 * sites[s].spin + 1) ** sites[s].count for s in component)
         scale = 6.0 / (float(full_dim) * sum_rule)
@@ -535,18 +678,54 @@ def simulate(sites, couplings, observe: str, *, use_numpy: bool | None = None,
                 if ua.site != ub.site:
                     unit_J[a][b] = J.get((min(ua.site, ub.site), max(ua.site, ub.site)), 0.0)
 
-        def emit(freq, inten, scale=scale):
-            raw.append((freq, inten * scale))
+        linked = {s: slot[s] for s in component if s in slot}
+        own: list = []
+        states: list = []
+
+        def emit(freq, inten, site, d, scale=scale, own=own):
+            if linked:
+                if inten > 0.0:
+                    own.append((freq, inten * scale, site, d))
+            else:
+                raw.append((freq, inten * scale, site))
+
+        def record(weight, z, states=states, full_dim=full_dim):
+            states.append((weight / full_dim, z))
 
         for spins, weight in _compositions(units):
             _composition_lines(units, spins, lambda a, b: unit_J[a][b], observe,
-                               float(weight), solve, emit, tick)
+                               float(weight), solve, emit, tick, slot if linked else None, record)
+        if linked:
+            held.append((set(component), own, states))
+
+    for component, own, _ in held:
+        partners = []
+        for other, _, states in held:
+            if other is component:
+                continue
+            links = [(slot[a], slot[b], J_ab) for (i, j), J_ab in weak.items()
+                     for a, b in ((i, j), (j, i)) if a in component and b in other]
+            if links:
+                partners.append((links, states))
+        spreads: dict = {}
+        for freq, inten, site, d in own:
+            # first order: the other cluster's eigenstate shifts this line by Σ J d_a <I_zb>; lines with
+            # the same Δ<I_z> (to 1e-9) share one distribution of shifts
+            key = tuple(round(x, 9) for x in d)
+            if key not in spreads:
+                shifts = [(0.0, 1.0)]
+                for links, states in partners:
+                    spread = _merge([(sum(J_ab * d[a] * z[b] for a, b, J_ab in links), p, 0)
+                                     for p, z in states], merge_tol_Hz / 10)
+                    shifts = [(x + y, w * p) for x, w in shifts for y, p, _ in spread]
+                spreads[key] = shifts
+            raw.extend((freq + x, w * inten, site) for x, w in spreads[key])
 
     if progress is not None:
         progress(1.0)
     lines = _merge(raw, merge_tol_Hz)
-    strongest = max((i for _, i in lines), default=0.0)
-    return [(f, i) for f, i in lines if i > 0.0 and i >= min_rel_intensity * strongest]
+    strongest = max((i for _, i, _ in lines), default=0.0)
+    return [(f, i, site) for f, i, site in lines if i > 0.0 and i >= min_rel_intensity * strongest]
 
 
 # ------------------------------------------------------------ diagnostics
@@ -592,14 +771,16 @@ def first_order_checks(sites, couplings, threshold: float = 10.0,
     return out
 
 
-def equivalence_caveats(sites, couplings, shift_tol_Hz: float = 1e-6, J_tol_Hz: float = 1e-6) -> list[str]:
+def equivalence_caveats(sites, couplings, shift_tol_Hz: float = 1e-6, J_tol_Hz: float = 1e-6,
+                        labels: list[str] | None = None) -> list[str]:
     """Warn about chemically equivalent but magnetically inequivalent site pairs.
 
     Two sites of one nucleus at the same shift (within ``shift_tol_Hz``) whose
     couplings to some third site differ (by more than ``J_tol_Hz``) form an
     AA′XX′-type system: its spectrum is second order at every field, because the
     A/A′ shift difference that would have to exceed J is zero (Pople, Schneider &
-    Bernstein 1959, ch. 6, AA′BB′ / AA′XX′ systems).
+    Bernstein 1959, ch. 6, AA′BB′ / AA′XX′ systems).  ``labels`` names the sites
+    in the messages (default "site 1", "site 2", … counted from 1).
     """
     sites = _checked_sites(sites)
     J = _checked_couplings(couplings, len(sites))
@@ -609,19 +790,21 @@ def equivalence_caveats(sites, couplings, shift_tol_Hz: float = 1e-6, J_tol_Hz: 
     def coupling(a, b):
         return J.get((min(a, b), max(a, b)), 0.0)
 
+    names = labels if labels is not None else [f"site {k + 1}" for k in range(len(sites))]
+
     out = []
     for i, j in itertools.combinations(range(len(sites)), 2):
         si, sj = sites[i], sites[j]
         if si.nucleus != sj.nucleus or abs(si.offset_Hz - sj.offset_Hz) > shift_tol_Hz:
             continue
         diffs = [
-            f"site {k}: {coupling(i, k):g} Hz vs {coupling(j, k):g} Hz"
+            f"{names[k]}: {coupling(i, k):g} Hz vs {coupling(j, k):g} Hz"
             for k in range(len(sites))
             if k not in (i, j) and abs(coupling(i, k) - coupling(j, k)) > J_tol_Hz
         ]
         if diffs:
             out.append(
-                f"sites {i} and {j} ({si.nucleus}, same shift) couple differently to "
+                f"{names[i]} and {names[j]} ({si.nucleus}, same shift) couple differently to "
                 + "; ".join(diffs)
                 + ": magnetically inequivalent (AA′XX′-type): never first order"
             )

@@ -286,7 +286,7 @@ NMR.registerPanel({
       spectrum.update({ traces }, true);
       spectrum.setXLabel(`δ(${r.observe}) / ppm`);
       const columns = [
-        { key: "pair", label: "Pair", value: (c) => c.pair[0] * 100 + c.pair[1], show: (c) => `${c.pair[0]}–${c.pair[1]} (${c.nucleus})` },
+        { key: "pair", label: "Pair", value: (c) => c.pair[0] * 100 + c.pair[1], show: (c) => `${c.labels[0]}–${c.labels[1]} (${c.nucleus})` },
         { key: "dnu", label: "Δν (Hz)", numeric: true, value: (c) => c.delta_nu_Hz, show: (c) => NMR.fixed(c.delta_nu_Hz, 1) },
         { key: "J", label: "J (Hz)", numeric: true, value: (c) => c.J_Hz, show: (c) => NMR.fixed(c.J_Hz, 2) },
         { key: "ratio", label: "Δν/J", numeric: true, value: (c) => c.delta_nu_over_J, show: (c) => (c.delta_nu_over_J === null ? "—" : NMR.fixed(c.delta_nu_over_J, 2)) },
@@ -294,8 +294,17 @@ NMR.registerPanel({
         { key: "from", label: "1st order from (MHz)", numeric: true, value: (c) => c.first_order_from_MHz, show: (c) => (c.first_order_from_MHz === null || c.first_order_from_MHz === undefined ? "—" : fmt(c.first_order_from_MHz, 4)) },
       ];
       checkBox.replaceChildren(
-        el("h3", { class: "sub-title" }, "First-order check, pair by pair"),
+        el("h3", { class: "sub-title" }, `First-order check, pair by pair (first order when Δν/J ≥ ${r.first_order_threshold})`),
         r.checks.length ? NMR.sortableTable(columns, r.checks, "Coupled pairs: Δν/J and the magnet where it reaches the first-order limit") : el("p", { class: "hint" }, "No coupled pairs of like nuclides: only those are checked; a coupling between different nuclides (e.g. ¹H–¹⁹F) is treated as first order."),
+        el("h3", { class: "sub-title" }, "Clusters"),
+        el("ul", { id: "spins-clusters" }, ...r.clusters.map((c) => el("li", {}, `${c.labels.join(", ")}: ${c.method === "exact" ? "exact" : `weak links to first order, positions within about ${fmt(c.error_Hz, 2)} Hz`}`))),
+        el("h3", { class: "sub-title" }, "Transitions"),
+        NMR.sortableTable([
+          { key: "ppm", label: "δ (ppm)", numeric: true, value: (t) => t.ppm, show: (t) => NMR.fixed(t.ppm, 4) },
+          { key: "Hz", label: "ν (Hz)", numeric: true, value: (t) => t.Hz, show: (t) => NMR.fixed(t.Hz, 2) },
+          { key: "intensity", label: "Intensity", numeric: true, value: (t) => t.intensity, show: (t) => fmt(t.intensity, 4) },
+          { key: "spin", label: "Mostly spin", value: (t) => t.spin, show: (t) => t.label },
+        ], r.transitions, "Every observed transition: position, intensity and the spin it mostly belongs to"),
       );
     }
     function renderFields(r) {

@@ -1,0 +1,110 @@
+"""Clusters joined by weak links (first order between them) against a dense numpy reference.
+
+The reference builds the full Hamiltonian of every nucleus (no factoring, no blocks, no
+clusters) from Kronecker products of the spin-½ matrices and diagonalizes it with
+numpy.linalg.eigh: H = Σ ν_k I_zk + Σ J_kl I_k·I_l (PSB 1959 = Pople, Schneider &
+Bernstein, High-resolution NMR, ch. 6); lines |<f|F_x|i>|² with ν = E_f − E_i.
+"""
+
+import itertools
+import math
+from fractions import Fraction
+
+import numpy
+import pytest
+
+from nmrcalc.physics.spin_system import Site, clusters, transitions
+
+HALF = Fraction(1, 2)
+SX = numpy.array([[0, 0.5], [0.5, 0]])
+SY = numpy.array([[0, -0.5j], [0.5j, 0]])
+SZ = numpy.array([[0.5, 0], [0, -0.5]])
+
+
+def dense_lines(offsets, couplings, merge_Hz=1e-4):
+    """(freq_Hz, intensity) of n spins-½ (one nuclide), intensities summing to 1; numpy.linalg.eigh."""
+    n = len(offsets)
+
+    def op(single, k):
+        out = numpy.array([[1.0]])
+        for m in range(n):
+            out = numpy.kron(out, single if m == k else numpy.eye(2))
+        return out
+
+    X, Y, Z = ([op(s, k) for k in range(n)] for s in (SX, SY, SZ))
+    H = sum(nu * Z[k] for k, nu in enumerate(offsets))
+    for i, j, J in couplings:
+        H = H + J * (X[i] @ X[j] + Y[i] @ Y[j] + Z[i] @ Z[j])
+    E, V = numpy.linalg.eigh(H)
+    Fplus = sum(X) + 1j * sum(Y)
+    A = V.conj().T @ Fplus @ V  # A[f, i] = <f|F_+|i>
+    inten = numpy.abs(A) ** 2
+    f_idx, i_idx = numpy.nonzero(inten > 1e-12 * inten.max())
+    raw = sorted(zip((E[f_idx] - E[i_idx]).tolist(), inten[f_idx, i_idx].tolist()))
+    total = sum(w for _, w in raw)
+    merged = []
+    for x, w in raw:
+        if merged and x - merged[-1][0] <= merge_Hz:
+            m = merged[-1]
+            m[0], m[1] = (m[0] * m[1] + x * w) / (m[1] + w), m[1] + w
+        else:
+            merged.append([x, w])
+    return [(x, w / total) for x, w in merged]
+
+
+def aryl_ethyl(proton_MHz, benzylic_J):
+    """A made-up 4-ethylphenyl fragment: AA′BB′ ring (7.10/7.00 ppm) + CH2 (2.60) + CH3 (1.20)."""
+    ppm = [7.10, 7.10, 7.00, 7.00, 2.60, 1.20]
+    counts = [1, 1, 1, 1, 2, 3]
+    J = [(0, 2, 8.2), (1, 3, 8.2), (0, 3, 0.4), (1, 2, 0.4), (0, 1, 2.1), (2, 3, 2.6),
+         (4, 5, 7.6), (0, 4, benzylic_J), (1, 4, benzylic_J)]
+    sites = [Site("1H", HALF, p * proton_MHz, c) for p, c in zip(ppm, counts)]
+    spins = [k for k, c in enumerate(counts) for _ in range(c)]  # nucleus → site
+    expanded = [(a, b, Jab) for i, j, Jab in J for a, b in itertools.product(range(9), repeat=2)
+                if spins[a] == i and spins[b] == j]
+    return sites, J, [sites[s].offset_Hz for s in spins], expanded
+
+
+def group_sums(a, b, gap):
+    """Intensity of a and of b in each run of positions (of both lists) with no gap wider than ``gap``."""
+    marked = sorted([(x, w, 0) for x, w in a] + [(x, w, 1) for x, w in b])
+    sums, last = [], None
+    for x, w, which in marked:
+        if last is None or x - last > gap:
+            sums.append([0.0, 0.0])
+        sums[-1][which] += w
+        last = x
+    return sums
+
+
+@pytest.mark.parametrize("proton_MHz, benzylic_J, tol", [(400.0, 0.6, 0.01), (60.0, 0.6, 0.01), (60.0, 2.0, 0.5)])
+def test_weak_link_against_dense_reference(proton_MHz, benzylic_J, tol):
+    sites, J, offsets, expanded = aryl_ethyl(proton_MHz, benzylic_J)
+    found = clusters(sites, J, "1H", weak_link_tol_Hz=tol)
+    assert [(c["spins"], c["method"]) for c in found] == [([0, 1, 2, 3], "weak-link"), ([4, 5], "weak-link")]
+    # stated bound (clusters docstring): 2 (Σ_links |J| c_i c_j)² / |Δν|, c = 1 for one H and 3/2 for CH2,
+    # i.e. it scales as (J/Δν)·J; here Δν = 4.5 ppm × field
+    dnu = 4.5 * proton_MHz
+    bound = max(c["error_Hz"] for c in found)
+    assert math.isclose(bound, 2 * (2 * benzylic_J * 1.5) ** 2 / dnu)
+    approx = [(x, w) for x, w, _ in transitions(sites, J, "1H", weak_link_tol_Hz=tol, merge_tol_Hz=1e-4,
+                                                min_rel_intensity=0)]
+    exact = dense_lines(offsets, expanded)  # numpy.linalg.eigh of the full 512 × 512 Hamiltonian
+    assert math.isclose(sum(w for _, w in approx), 1.0, rel_tol=1e-9)
+    intensity_bound = 2 * benzylic_J / dnu  # Σ |J|/|Δν| over the links: first-order mixing of the states
+    for x, w in approx:
+        if w >= 1e-4:
+            assert min(abs(x - y) for y, _ in exact) <= bound + 2e-4, x  # 2e-4: the merge tolerances
+    for ours, ref in group_sums(approx, exact, 2 * bound + 2e-4):
+        assert abs(ours - ref) <= intensity_bound + 1e-9
+
+
+def test_weak_links_are_not_used_when_exact():
+    sites, J, offsets, expanded = aryl_ethyl(400.0, 0.6)
+    assert [c["method"] for c in clusters(sites, J, "1H")] == ["exact"]  # no tolerance: one exact cluster
+    exact = [(x, w) for x, w, _ in transitions(sites, J, "1H", merge_tol_Hz=1e-4)]
+    reference = dense_lines(offsets, expanded)  # numpy.linalg.eigh
+    strong = [(x, w) for x, w in reference if w > 1e-6]
+    ours = [(x, w) for x, w in exact if w > 1e-6]
+    assert len(ours) == len(strong)
+    assert all(abs(a[0] - b[0]) < 1e-6 and abs(a[1] - b[1]) < 1e-9 for a, b in zip(ours, strong))
