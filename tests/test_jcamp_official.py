@@ -13,6 +13,7 @@ their headers only.
 
 import os
 import pathlib
+import tempfile
 import re
 import subprocess
 import sys
@@ -33,7 +34,8 @@ JCAMP_LIBRARY_FAILS = {"TESTSPEC.DX", "TEST32.DX", "TESTNTUP.DX", "o05.jdx", "o0
 
 @pytest.fixture(scope="session")
 def data_dir(request) -> pathlib.Path:
-    cache = pathlib.Path(request.config.cache.mkdir("jcamp_sdist"))
+    store = getattr(request.config, "cache", None)  # absent when pytest runs with -p no:cacheprovider
+    cache = pathlib.Path(store.mkdir("jcamp_sdist") if store else tempfile.mkdtemp(prefix="jcamp_sdist"))
     found = sorted(cache.glob("jcamp-1.3.2/data"))
     if found:
         return found[0]
