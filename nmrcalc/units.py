@@ -80,11 +80,11 @@ def normalise(text: str) -> str:
     return _EXPONENT.sub(lambda m: "e" + (m.group(1) or m.group(2).translate(_SUPERSCRIPT)), text)
 
 
-def _too_long(field: str):
+def _too_long(field: str) -> InputError:
     return InputError(f"{field}: this text is too long to be a quantity.", field, "too_large")
 
 
-def split_number(value, kind: str, field: str) -> tuple[float, str]:
+def split_number(value: object, kind: str, field: str) -> tuple[float, str]:
     """(number, unit text as typed) from a number or a string; the unit may be ''."""
     if isinstance(value, bool) or value is None:
         raise InputError(f"{field}: give a number (in {_DEFAULT[kind]}) or a number with a unit.", field)
@@ -125,7 +125,7 @@ def unit_factor(unit: str, kind: str) -> float | None:
     return plain.get(compact.lower())
 
 
-def _unit_error(value, unit: str, kind: str, field: str) -> InputError:
+def _unit_error(value: object, unit: str, kind: str, field: str) -> InputError:
     what, allowed, table = _KINDS[kind]
     typed = value.strip() if isinstance(value, str) else f"{value} {unit}"
     close = sorted({s for s in table if s.lower() == unit.replace(" ", "").lower()})
@@ -135,7 +135,7 @@ def _unit_error(value, unit: str, kind: str, field: str) -> InputError:
     return InputError(f"{field}: '{typed}' for {what}: give {allowed}.", field)
 
 
-def parse_quantity(value, kind: str, field: str) -> float:
+def parse_quantity(value: object, kind: str, field: str) -> float:
     """Return ``value`` as a finite float in the default unit of ``kind``."""
     if kind in ("magnet_MHz", "magnet_T"):
         return _magnet_as(value, kind, field)
@@ -156,7 +156,7 @@ def scaled(number: float, factor: float) -> float:
     return number / inverse if factor < 1 and abs(inverse * factor - 1) < 1e-12 else number * factor
 
 
-def parse_positive(value, kind: str, field: str) -> float:
+def parse_positive(value: object, kind: str, field: str) -> float:
     """Like :func:`parse_quantity`, but the value must be greater than zero."""
     x = parse_quantity(value, kind, field)
     if x <= 0:
@@ -164,7 +164,7 @@ def parse_positive(value, kind: str, field: str) -> float:
     return x
 
 
-def parse_magnet(value, field: str) -> tuple[str, float]:
+def parse_magnet(value: object, field: str) -> tuple[str, float]:
     """A magnet as typed: ``("T", field in T)`` or ``("MHz", ¹H frequency in MHz)``.
 
     T, mT, G, kG give the field; Hz, kHz, MHz, GHz the ¹H frequency.  A bare
@@ -182,7 +182,7 @@ def parse_magnet(value, field: str) -> tuple[str, float]:
                      f"field in T, mT, G or kG, or the ¹H frequency in MHz.{hint}", field)
 
 
-def _magnet_as(value, kind: str, field: str) -> float:
+def _magnet_as(value: object, kind: str, field: str) -> float:
     """A magnet typed either way, as its ¹H frequency (``magnet_MHz``) or field (``magnet_T``):
     ν_H = γ_H B0 / 2π with the tabulated γ(¹H) (IUPAC 2001; the TMS proton's shielding is
     neglected, as when a magnet is called "500 MHz"; nmrcalc.physics.larmor does the same)."""
@@ -197,7 +197,7 @@ def _magnet_as(value, kind: str, field: str) -> float:
 _ITEM = re.compile(rf"({_NUMBER})\s*([^\d\s,;+\-.][^\s,;]*(?:\s[^\d\s,;+\-.][^\s,;]*)?)?")
 
 
-def split_list(value, field: str = "list") -> list[str | float]:
+def split_list(value: object, field: str = "list") -> list[str | float]:
     """Items of a list typed as text ("400, 500, 600 MHz", "7.26 ppm; 1.2 ppm").
 
     Items are separated by commas, semicolons or spaces.  A unit may follow
@@ -232,7 +232,7 @@ def split_list(value, field: str = "list") -> list[str | float]:
     return [f"{n} {u or common}".strip() for n, u in items]
 
 
-def parse_list(value, kind: str, field: str) -> list[float]:
+def parse_list(value: object, kind: str, field: str) -> list[float]:
     """:func:`split_list`, each item read by :func:`parse_quantity` (in the default unit)."""
     return [parse_quantity(item, kind, f"{field}.{k}") for k, item in enumerate(split_list(value, field))]
 

@@ -40,11 +40,11 @@ def nuclide_record(nuc: Nuclide) -> dict:
     }
 
 
-def op_nuclide(req, warnings):
+def op_nuclide(req: dict, warnings: list[str]) -> dict:
     return nuclide_record(nucleus({"query": require(req, "query")}, "query", magnetic=False))
 
 
-def op_nuclides(req, warnings):
+def op_nuclides(req: dict, warnings: list[str]) -> dict:
     text = req.get("search", "")
     spin_zero = flag(req, "include_spin_zero")
     rows = [nuclide_record(n) for n in search(text) if n.magnetic or spin_zero]
@@ -76,7 +76,7 @@ DIFFERENCE_NOTE = ("0 ppm − bare nucleus: the shielding of the nucleus in its 
 _SORT_KEYS = ("symbol", "reference_MHz", "larmor_MHz", "abundance_percent", "receptivity_C", "spin")
 
 
-def op_frequency(req, warnings):
+def op_frequency(req: dict, warnings: list[str]) -> dict:
     field_T, proton_MHz = magnet(req, warnings)
     scale = _scale(req)
     base = {"field_T": field_T, "field_G": field_T * 1e4, "proton_MHz": proton_MHz, "scale": scale,
@@ -114,7 +114,7 @@ def _sortable(value):
     return value if value is not None else 0
 
 
-def op_ppm_hz(req, warnings):
+def op_ppm_hz(req: dict, warnings: list[str]) -> dict:
     nuc = nucleus(req, "nucleus")
     field_T, proton_MHz = magnet(req, warnings)
     ref = zero_ppm_MHz(nuc, field_T, proton_MHz, warnings, _scale(req))
@@ -136,7 +136,7 @@ def op_ppm_hz(req, warnings):
     return result
 
 
-def op_scale_coupling(req, warnings):
+def op_scale_coupling(req: dict, warnings: list[str]) -> dict:
     J = quantity(req, "J", "coupling")
     src, dst = nucleus(req, "from", magnetic=False), nucleus(req, "to", magnetic=False)
     ratio, source = coupling.isotope_ratio(src, dst)
@@ -161,7 +161,7 @@ def op_scale_coupling(req, warnings):
     return result
 
 
-def op_energy(req, warnings):
+def op_energy(req: dict, warnings: list[str]) -> dict:
     has_nuc = req.get("nucleus") not in (None, "")
     has_wl, has_wn = req.get("wavelength") not in (None, ""), req.get("wavenumber") not in (None, "")
     if has_wl and has_wn:
@@ -191,7 +191,7 @@ def op_energy(req, warnings):
     return result
 
 
-def op_sensitivity(req, warnings):
+def op_sensitivity(req: dict, warnings: list[str]) -> dict:
     nuc = nucleus(req, "nucleus")
     ref = nucleus(req, "relative_to", magnetic=True) if req.get("relative_to") not in (None, "") else lookup("13C")
     enrich = None
@@ -210,7 +210,7 @@ def op_sensitivity(req, warnings):
 MAX_POINTS = 1 << 24  # complex points in one acquisition window
 
 
-def op_acquisition_window(req, warnings):
+def op_acquisition_window(req: dict, warnings: list[str]) -> dict:
     """Window for a ppm range of one nucleus; with a 90° pulse length, what that pulse excites."""
     nuc = nucleus(req, "nucleus")
     field_T, proton_MHz = magnet(req, warnings)

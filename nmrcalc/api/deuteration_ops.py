@@ -74,7 +74,7 @@ def _read(req: dict) -> dict:
     return out
 
 
-def op_deuteration(req, warnings):
+def op_deuteration(req: dict, warnings: list[str]) -> dict:
     a = _read(req)
     n = a["positions"]
     result = {"positions": n, "model": MODEL, "routes": {}}

@@ -7,6 +7,7 @@ from __future__ import annotations
 
 from contextvars import ContextVar
 from fractions import Fraction
+from typing import Any
 
 from nmrcalc.errors import InputError
 from nmrcalc.nuclides import Nuclide, lookup, lookup_magnetic
@@ -26,13 +27,15 @@ MAX_MAGNITUDE = 1e12
 MIN_MAGNITUDE = 1e-12
 
 
-def require(req: dict, key: str, prefix: str = ""):
+def require(req: dict, key: str, prefix: str = "") -> Any:
     if key not in req or req[key] is None or req[key] == "":
         raise InputError(f"'{key}' is missing.", prefix + key, "missing_field")
     return req[key]
 
 
-def quantity(req: dict, key: str, kind: str, *, positive: bool = False, default=None, prefix: str = ""):
+def quantity(
+    req: dict, key: str, kind: str, *, positive: bool = False, default: float | None = None, prefix: str = ""
+) -> float:
     if key not in req or req[key] is None or req[key] == "":
         if default is not None:
             return default
@@ -40,7 +43,7 @@ def quantity(req: dict, key: str, kind: str, *, positive: bool = False, default=
     return bounded(req[key], kind, prefix + key, positive)
 
 
-def bounded(value, kind: str, field: str, positive: bool = False) -> float:
+def bounded(value: object, kind: str, field: str, positive: bool = False) -> float:
     """Parse ``value`` as a ``kind`` quantity that is 0 or has a magnitude in
     [MIN_MAGNITUDE, MAX_MAGNITUDE] (in the default unit); else InputError naming ``field``."""
     try:

@@ -235,7 +235,7 @@ def _satellite_elements(lines: list[tuple[float, float]], tol: float) -> list[di
             for f in found[:SATELLITE_ELEMENTS] if f["miss"] < math.log(1.5)]
 
 
-def op_identify(req, warnings):
+def op_identify(req: dict, warnings: list[str]) -> dict:
     notes: list[str] = []
     observe = nucleus(req, "observe") if req.get("observe") not in (None, "") else None
     unit_key = req.get("unit")

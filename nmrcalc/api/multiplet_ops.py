@@ -301,7 +301,7 @@ def _collapsed(grid, others, relaxing, width: float, shape: str):
     return lineshape.SampledSpectrum(grid.x_Hz, y, grid.step_Hz)
 
 
-def op_multiplet(req, warnings):
+def op_multiplet(req: dict, warnings: list[str]) -> dict:
     observe = nucleus(req, "observe")
     groups = req.get("groups", [])
     if not isinstance(groups, list):

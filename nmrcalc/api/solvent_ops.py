@@ -56,7 +56,7 @@ def _matches_name(row: dict, text: str) -> bool:
     return any(text in _key(name) for name in names)
 
 
-def op_solvents(req, warnings):
+def op_solvents(req: dict, warnings: list[str]) -> dict:
     q = _read(req)
     found = []
     for row in SOLVENTS:

@@ -54,7 +54,7 @@ def _unit(req, key="x_unit", default=None):
     return u
 
 
-def op_read_spectrum(req, warnings):
+def op_read_spectrum(req: dict, warnings: list[str]) -> dict:
     text = require(req, "text")
     name = req.get("filename", "")
     default_unit = _unit(req)
@@ -96,7 +96,7 @@ def op_read_spectrum(req, warnings):
     return out
 
 
-def op_pick_peaks(req, warnings):
+def op_pick_peaks(req: dict, warnings: list[str]) -> dict:
     first_x, last_x = _number(req, "first_x"), _number(req, "last_x")
     x_unit = _unit(req) or require(req, "x_unit")
     y = require(req, "y")
@@ -135,7 +135,7 @@ def _line_Hz(line, k, ref_MHz):
     return quantity(line, "position", "shift", prefix=f"lines.{k}.") * ref_MHz
 
 
-def op_fit_spin_system(req, warnings):
+def op_fit_spin_system(req: dict, warnings: list[str]) -> dict:
     observe = nucleus(req, "observe")
     spins = _spins(req)
     couplings = _couplings(req, len(spins))

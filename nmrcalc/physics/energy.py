@@ -13,8 +13,15 @@ from __future__ import annotations
 import math
 from fractions import Fraction
 
-from nmrcalc.constants import (AVOGADRO_PER_MOL, BOLTZMANN_J_PER_K, CALORIE_J,
-                               ELEMENTARY_CHARGE_C, HBAR_J_S, PLANCK_J_S, SPEED_OF_LIGHT_M_PER_S)
+from nmrcalc.constants import (
+    AVOGADRO_PER_MOL,
+    BOLTZMANN_J_PER_K,
+    CALORIE_J,
+    ELEMENTARY_CHARGE_C,
+    HBAR_J_S,
+    PLANCK_J_S,
+    SPEED_OF_LIGHT_M_PER_S,
+)
 
 
 def energy_units(freq_Hz: float) -> dict[str, float]:

@@ -109,7 +109,7 @@ import itertools
 import math
 from collections.abc import Iterable, Sequence
 from fractions import Fraction
-from functools import lru_cache
+from functools import lru_cache, partial
 from typing import NamedTuple
 
 from nmrcalc.errors import InputError
@@ -174,7 +174,7 @@ def spin_option(spin: Fraction) -> PartnerOption:
 
 class Group(NamedTuple):
     option: PartnerOption
-    count: int
+    count: int  # type: ignore[assignment]  # shadows tuple.count on purpose, like multiplet.SpinGroup
     J_Hz: float
 
 
@@ -544,7 +544,8 @@ def identify(lines: Iterable, tol_Hz: float, options: Sequence[PartnerOption] | 
     center0 = (xs[0] + xs[-1]) / 2
     notes: list[str] = []
     if len(obs) == 1 or xs[-1] - xs[0] <= tol_Hz:
-        single = Candidate((), 0.0, 0.0, 0.0, 0, "s", [(0.0, 1.0)], sum(x * y for x, y in obs) / sum(y for _, y in obs), 1.0)
+        center = sum(x * y for x, y in obs) / sum(y for _, y in obs)
+        single = Candidate((), 0.0, 0.0, 0.0, 0, "s", [(0.0, 1.0)], center, 1.0)
         notes.append("Only one resolved line: a singlet (no resolved coupling).")
         return Identification([single], notes, 0, True)
 
@@ -620,12 +621,12 @@ def identify(lines: Iterable, tol_Hz: float, options: Sequence[PartnerOption] | 
                     groups = tuple(Group(opt, n, J) for sp, J in zip(choice, Js) for opt, n in sp.parts)
                     if len(groups) > max_groups or (table is not one_group and len(groups) == len(Js)):
                         continue
-                    evaluate(groups, lambda: score_on_layout(groups, [sp.comb for sp in choice], layout, fixed, cost))
+                    evaluate(groups, partial(score_on_layout, groups, choice, layout, fixed, cost))
         return True
 
-    def score_on_layout(groups, combs, layout, fixed: Assignment | None, cost: float) -> Candidate:
+    def score_on_layout(groups, choice, layout, fixed: Assignment | None, cost: float) -> Candidate:
         """``score_model`` for plain groups on a shared ``_layout`` (and its ``fixed`` assignment, if any)."""
-        pred = _layout_lines(layout, combs)
+        pred = _layout_lines(layout, [sp.comb for sp in choice])
         return _rate(obs, tol_Hz, groups, pred, fixed or _assign(obs, [x for x, _ in pred], center0, tol_Hz), cost)
 
     def search_levels(max_sets: int, table) -> bool:

@@ -113,11 +113,16 @@ def _parse_abundance(value: object) -> Fraction:
             if not math.isfinite(value):
                 raise ValueError
             value = repr(value)
-        share = Fraction(value.strip() if isinstance(value, str) else value)
+        # other types raise TypeError, caught below
+        share = Fraction(value.strip() if isinstance(value, str) else value)  # type: ignore[call-overload]
     except (TypeError, ValueError, ZeroDivisionError):
-        raise InputError(f"abundance must be a fraction between 0 and 1, got {value!r}", field="abundance") from None
+        raise InputError(
+            f"abundance must be a fraction between 0 and 1, got {value!r}", field="abundance"
+        ) from None
     if not 0 <= share <= 1:
-        raise InputError(f"abundance must lie between 0 and 1 (a fraction, not a percentage), got {value}", field="abundance")
+        raise InputError(
+            f"abundance must lie between 0 and 1 (a fraction, not a percentage), got {value}", field="abundance"
+        )
     return share
 
 
@@ -142,12 +147,13 @@ def _parse_isotope(item: Any) -> Isotope:
 
 def _is_zero(spin: object) -> bool:
     try:
-        return Fraction(spin.strip() if isinstance(spin, str) else spin) == 0
+        # other types raise TypeError, caught below
+        return Fraction(spin.strip() if isinstance(spin, str) else spin) == 0  # type: ignore[call-overload]
     except (TypeError, ValueError, ZeroDivisionError, OverflowError):
         return False
 
 
-def validate_sites(sites: Iterable) -> list[PartnerSite]:
+def validate_sites(sites: Iterable[Any]) -> list[PartnerSite]:
     """Check ``(positions, isotopes)`` pairs; rescale each site's abundances to sum exactly 1.
 
     Errors name ``sites.<i>.positions`` or ``sites.<i>.isotopes.<j>.label|spin|abundance|J_Hz``.
@@ -159,7 +165,9 @@ def validate_sites(sites: Iterable) -> list[PartnerSite]:
     if not items:
         raise InputError("at least one partner element site is needed", field="sites")
     if len(items) > MAX_SITES:
-        raise InputError(f"at most {MAX_SITES} partner elements are allowed, got {len(items)}", field="sites", code="too_large")
+        raise InputError(
+            f"at most {MAX_SITES} partner elements are allowed, got {len(items)}", field="sites", code="too_large"
+        )
     out: list[PartnerSite] = []
     for i, item in enumerate(items):
         where = f"sites.{i}"
@@ -181,7 +189,7 @@ def validate_sites(sites: Iterable) -> list[PartnerSite]:
                 parsed.append(_parse_isotope(isotope))
             except InputError as err:
                 raise err.at(f"{where}.isotopes.{j}") from None
-        total = sum(iso.abundance for iso in parsed)
+        total = sum((iso.abundance for iso in parsed), Fraction(0))
         if abs(total - 1) > ABUNDANCE_SUM_TOL:
             raise InputError(
                 f"abundances must add up to 1 (within {ABUNDANCE_SUM_TOL}), they add up to {float(total):.6g}",
@@ -226,7 +234,9 @@ def _site_label(site: PartnerSite, counts: tuple[int, ...]) -> str:
     return " ".join(parts)
 
 
-def isotopologue_spectrum(sites: Iterable, groups: Iterable = (), min_share: float = DEFAULT_MIN_SHARE) -> IsotopologueSpectrum:
+def isotopologue_spectrum(
+    sites: Iterable[Any], groups: Iterable[Any] = (), min_share: float = DEFAULT_MIN_SHARE
+) -> IsotopologueSpectrum:
     """First-order spectrum of an observed nucleus averaged over partner isotopologues.
 
     ``sites``: ``(positions, [(label, spin, abundance, J_Hz[, shift_Hz]), ...])``
@@ -252,7 +262,11 @@ def isotopologue_spectrum(sites: Iterable, groups: Iterable = (), min_share: flo
         present = [k for k, iso in enumerate(site.isotopes) if iso.abundance > 0]
         count *= math.comb(site.positions + len(present) - 1, len(present) - 1)
         if count > MAX_COMPOSITIONS:
-            raise InputError(f"more than {MAX_COMPOSITIONS} isotopologues would be needed (the limit)", field="sites", code="too_large")
+            raise InputError(
+                f"more than {MAX_COMPOSITIONS} isotopologues would be needed (the limit)",
+                field="sites",
+                code="too_large",
+            )
         options = []
         for sub_counts, share in composition_shares(site.positions, [site.isotopes[k].abundance for k in present]):
             counts = [0] * len(site.isotopes)

@@ -39,8 +39,9 @@ from __future__ import annotations
 
 import math
 import reprlib
+from collections.abc import Iterable
 from fractions import Fraction
-from typing import Iterable, NamedTuple
+from typing import Any, NamedTuple, TypeVar
 
 from nmrcalc.errors import InputError
 
@@ -59,7 +60,7 @@ class SpinGroup(NamedTuple):
     """``count`` magnetically equivalent nuclei of spin ``spin`` coupled with ``J_Hz``."""
 
     spin: Fraction
-    count: int
+    count: int  # type: ignore[assignment]  # shadows tuple.count on purpose: the field name is the API's
     J_Hz: float
 
 
@@ -74,9 +75,11 @@ def parse_spin(value: object) -> Fraction:
     try:
         if isinstance(value, float) and not math.isfinite(value):
             raise ValueError
-        spin = Fraction(value) if not isinstance(value, str) else Fraction(value.strip())
+        spin = Fraction(value) if not isinstance(value, str) else Fraction(value.strip())  # type: ignore[call-overload]  # other types raise TypeError, caught below
     except (TypeError, ValueError, ZeroDivisionError):
-        raise InputError(f"spin must be a number such as 1/2, 1 or 3/2, got {reprlib.repr(value)}", field="spin") from None
+        raise InputError(
+            f"spin must be a number such as 1/2, 1 or 3/2, got {reprlib.repr(value)}", field="spin"
+        ) from None
     if spin <= 0 or (2 * spin).denominator != 1:
         raise InputError(f"spin must be a positive multiple of 1/2, got {spin}", field="spin")
     return spin
@@ -97,7 +100,7 @@ def _parse_J(value: object) -> float:
     if isinstance(value, bool):
         raise InputError("J_Hz must be a number in Hz", field="J_Hz")
     try:
-        J = float(value)
+        J = float(value)  # type: ignore[arg-type]  # other types raise TypeError, caught below
     except (TypeError, ValueError):
         raise InputError(f"J_Hz must be a number in Hz, got {value!r}", field="J_Hz") from None
     if not math.isfinite(J):
@@ -109,7 +112,7 @@ def _too_large(what: str) -> InputError:
     return InputError(what, field="groups", code="too_large")
 
 
-def validate_groups(groups: Iterable) -> list[SpinGroup]:
+def validate_groups(groups: Iterable[Any]) -> list[SpinGroup]:
     """Check ``(spin, count, J_Hz)`` triples and the size limits; return ``SpinGroup`` s.
 
     Errors name the field as ``groups.<index>.spin|count|J_Hz`` (index from 0),
@@ -164,14 +167,17 @@ def group_coefficients(spin: Fraction, count: int) -> list[int]:
     return coeffs
 
 
-def merge_lines(lines: Iterable[tuple[float, object]], tol_Hz: float) -> list[tuple[float, object]]:
+_W = TypeVar("_W", int, float)
+
+
+def merge_lines(lines: Iterable[tuple[float, _W]], tol_Hz: float) -> list[tuple[float, _W]]:
     """Sort ``(offset_Hz, weight)`` pairs and merge those within ``tol_Hz`` of a cluster's first line.
 
     Weights are added (ints stay ints); the merged offset is the
     weight-averaged offset (the plain mean if the weights sum to zero).
     """
     ordered = sorted(lines, key=lambda line: line[0])
-    merged: list[tuple[float, object]] = []
+    merged: list[tuple[float, _W]] = []
     start = 0
     while start < len(ordered):
         end = start + 1
@@ -195,7 +201,7 @@ def merge_tolerance_Hz(groups: Iterable[SpinGroup]) -> float:
     return MERGE_REL_TOL * max([1.0] + [abs(g.J_Hz) for g in groups])
 
 
-def multiplet(groups: Iterable) -> list[tuple[float, int]]:
+def multiplet(groups: Iterable[Any]) -> list[tuple[float, int]]:
     """Stick pattern of a line split by first-order coupling groups.
 
     ``groups`` holds ``(spin, count, J_Hz)`` triples (``SpinGroup`` or plain
@@ -255,7 +261,7 @@ def _group_text(group: SpinGroup, long: bool) -> str:
     return f"{ratio} {_WORD[lines] if long else _SHORT.get(lines, fallback)}"
 
 
-def multiplet_label(groups: Iterable) -> str:
+def multiplet_label(groups: Iterable[Any]) -> str:
     """Readable multiplicity of the pattern made by ``groups``.
 
     Convention:
