@@ -178,7 +178,8 @@ def lookup(query: str, field: str = "nucleus") -> Nuclide:
         return ALL[_ONE_NUCLIDE_OF[el]]
     if el is not None:
         known = ", ".join(n.symbol for n in isotopes_of(el)) or "none"
-        what = f"{a}{el} is not in the table" if a is not None else f"{el} ({NAME_OF_SYMBOL.get(el, el)}) is an element, not one isotope"
+        what = (f"{a}{el} is not in the table" if a is not None
+                else f"{el} ({NAME_OF_SYMBOL.get(el, el)}) is an element, not one isotope")
         raise InputError(f"{what}; isotopes of {el} known here: {known}.", field, "unknown_nucleus")
     import difflib  # only when a name is not found (costly to import, rarely needed)
 

@@ -4,6 +4,8 @@ warnings list and returns the result dict (JSON types only)."""
 
 from __future__ import annotations
 
+from typing import Any
+
 from nmrcalc.api.fields import flag, magnet, nucleus, quantity, require, spin_text, zero_ppm_MHz
 from nmrcalc.api.params import MAGNET, Op, Param
 from nmrcalc.data.elements import NAME_OF_SYMBOL
@@ -120,7 +122,8 @@ def op_ppm_hz(req: dict, warnings: list[str]) -> dict:
     ref = zero_ppm_MHz(nuc, field_T, proton_MHz, warnings, _scale(req))
     has_ppm, has_hz = req.get("ppm") not in (None, ""), req.get("Hz") not in (None, "")
     if has_ppm == has_hz:
-        raise InputError("Give exactly one of 'ppm' or 'Hz'.", "ppm", "missing_field" if not has_ppm else "invalid_value")
+        raise InputError("Give exactly one of 'ppm' or 'Hz'.", "ppm",
+                         "missing_field" if not has_ppm else "invalid_value")
     if has_ppm:
         shift = quantity(req, "ppm", "shift")
         off = larmor.offset_Hz(ref, shift)
@@ -173,14 +176,15 @@ def op_energy(req: dict, warnings: list[str]) -> dict:
         photon = energy.energy_units(f)
     if not has_nuc:
         if photon is None:
-            raise InputError("Give a 'nucleus' with a magnet, or a 'wavelength' or 'wavenumber'.", "nucleus", "missing_field")
+            raise InputError("Give a 'nucleus' with a magnet, or a 'wavelength' or 'wavenumber'.", "nucleus",
+                             "missing_field")
         return photon
     nuc = nucleus(req, "nucleus")
     field_T, _ = magnet(req, warnings)
     T = quantity(req, "temperature", "temperature", positive=True, default=298.15)
     if T > 1000 or T < 1:
         warnings.append(f"{T:g} K is outside the range of liquid-state NMR; check the value.")
-    result = energy.energy_units(larmor.larmor_MHz(nuc, field_T) * 1e6)
+    result: dict[str, Any] = energy.energy_units(larmor.larmor_MHz(nuc, field_T) * 1e6)
     pops = energy.populations(nuc.spin, nuc.gamma_rad_per_s_per_T, field_T, T)
     result.update({"nucleus": nuc.symbol, "field_T": field_T, "temperature_K": T,
                    "populations": [{"m": str(m), "fraction": p} for m, p in pops],
@@ -202,7 +206,8 @@ def op_sensitivity(req: dict, warnings: list[str]) -> dict:
     D = sensitivity.relative_receptivity(nuc, ref, enrich)
     warnings.append("Receptivity compares equal numbers of molecules under equal conditions; relaxation, "
                     "line width, NOE and probe tuning change real sensitivity.")
-    return {"nucleus": nuc.symbol, "relative_to": ref.symbol, "abundance_percent": enrich if enrich else nuc.abundance_percent,
+    return {"nucleus": nuc.symbol, "relative_to": ref.symbol,
+            "abundance_percent": enrich if enrich else nuc.abundance_percent,
             "receptivity": D, "time_factor": sensitivity.time_factor(D),
             "receptivity_H": receptivity(nuc, "1H", enrich), "receptivity_C": receptivity(nuc, "13C", enrich)}
 

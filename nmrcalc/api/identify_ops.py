@@ -30,12 +30,13 @@ from __future__ import annotations
 import math
 import re
 from fractions import Fraction
+from typing import Any
 
 from nmrcalc.api.fields import bounded, in_range, magnet, nucleus, quantity, zero_ppm_MHz
 from nmrcalc.api.params import MAGNET, Op, Param
 from nmrcalc.api.peaklist import parse_peaklist
 from nmrcalc.errors import InputError
-from nmrcalc.nuclides import MAGNETIC, element_of, isotopes_of, lookup_magnetic
+from nmrcalc.nuclides import MAGNETIC, Nuclide, element_of, isotopes_of, lookup_magnetic
 from nmrcalc.physics import coupling, larmor
 from nmrcalc.physics.identify import (
     DEFAULT_SPINS,
@@ -71,6 +72,11 @@ TOLERANCE_PER_WIDTH = 0.25  # with a line width: tolerance = that fraction of th
 _SPIN_TEXT = re.compile(r"\s*(?:spin\s*=?|i\s*=)?\s*(\d+(?:/2)?)\s*", re.IGNORECASE)
 
 
+def _percent(n: Nuclide) -> float:
+    """Natural abundance of ``n`` in percent (0 where the table gives none)."""
+    return n.abundance_percent or 0.0
+
+
 def _partner_option(text, where: str, notes: list[str]) -> PartnerOption:
     if isinstance(text, (int, float)) and not isinstance(text, bool):
         text = str(text)
@@ -89,15 +95,16 @@ def _partner_option(text, where: str, notes: list[str]) -> PartnerOption:
     natural = [n for n in isotopes_of(el) if n.abundance_percent]
     magnetic = [n for n in natural if n.magnetic]
     if not magnetic:
-        raise InputError(f"{el} has no magnetic isotope at natural abundance: it gives no splitting.", where, "not_magnetic")
-    ref = max(magnetic, key=lambda n: n.abundance_percent)
-    total = sum(n.abundance_percent for n in natural)
-    if ref.abundance_percent / total >= PLAIN_ELEMENT_SHARE:
+        raise InputError(f"{el} has no magnetic isotope at natural abundance: it gives no splitting.", where,
+                         "not_magnetic")
+    ref = max(magnetic, key=_percent)
+    total = sum(_percent(n) for n in natural)
+    if _percent(ref) / total >= PLAIN_ELEMENT_SHARE:
         notes.append(f"Partner {el} is taken as {ref.symbol} ({ref.abundance_percent:g} % of {el}).")
         return PartnerOption(ref.symbol, "nuclide", ((ref.symbol, ref.spin, Fraction(1), 1.0),))
-    isotopes = [(n.symbol, n.spin, Fraction(repr(n.abundance_percent / total)),
+    isotopes = [(n.symbol, n.spin, Fraction(repr(_percent(n) / total)),
                  abs(coupling.gamma_ratio(ref, n))) for n in magnetic]
-    spin0 = sum(n.abundance_percent for n in natural if not n.magnetic) / total
+    spin0 = sum(_percent(n) for n in natural if not n.magnetic) / total
     if spin0 > 0:
         isotopes.append((f"spin-0 {el}", Fraction(0), Fraction(repr(spin0)), 0.0))
     if len(magnetic) > 1:
@@ -220,11 +227,11 @@ def _satellite_elements(lines: list[tuple[float, float]], tol: float) -> list[di
     if any(y > min(ya, yb) for y in others):
         return []  # stronger lines beside the centre: a multiplet, not satellites of one line
     observed = (ya + yb) / 2 / y0
-    found = []
+    found: list[dict[str, Any]] = []
     for el in sorted({n.element for n in MAGNETIC.values()}):
         natural = [n for n in isotopes_of(el) if n.abundance_percent]
-        half = sum(n.abundance_percent for n in natural if n.magnetic and n.spin == Fraction(1, 2))
-        magnetic = sum(n.abundance_percent for n in natural if n.magnetic)
+        half = sum(_percent(n) for n in natural if n.magnetic and n.spin == Fraction(1, 2))
+        magnetic = sum(_percent(n) for n in natural if n.magnetic)
         if not 0 < half < 50 or magnetic >= 99:
             continue
         expected = half / 2 / (100 - magnetic)
@@ -257,7 +264,8 @@ def op_identify(req: dict, warnings: list[str]) -> dict:
         if not INTENSITY_RANGE[0] <= y <= INTENSITY_RANGE[1]:
             raise InputError(f"An intensity must lie between {INTENSITY_RANGE[0]:g} and {INTENSITY_RANGE[1]:g}.", where)
         if y < MIN_RELATIVE_INTENSITY * strongest:
-            raise InputError(f"A line is weaker than {MIN_RELATIVE_INTENSITY:g} of the strongest one; remove it.", where)
+            raise InputError(f"A line is weaker than {MIN_RELATIVE_INTENSITY:g} of the strongest one; remove it.",
+                             where)
 
     ref_MHz = None
     if has_magnet:
@@ -272,7 +280,8 @@ def op_identify(req: dict, warnings: list[str]) -> dict:
     units = {u for *_, u in raw}
     if len(units) > 1:
         notes.append("Positions mix ppm and Hz: ppm are converted with the observed nuclide's reference frequency.")
-    lines_Hz = [(larmor.offset_Hz(ref_MHz, x) if u == "ppm" else x, y) for x, y, u in raw]
+    # ppm positions without ref_MHz were refused above
+    lines_Hz = [(larmor.offset_Hz(ref_MHz, x) if u == "ppm" else x, y) for x, y, u in raw]  # type: ignore[arg-type]
 
     partners = req.get("partners")
     if partners in (None, "", []):
@@ -294,7 +303,7 @@ def op_identify(req: dict, warnings: list[str]) -> dict:
     limits = {"max_groups": _small_int(req, "max_groups", 1, MAX_GROUPS, MAX_GROUPS),
               "max_count": _small_int(req, "max_count", 1, MAX_COUNT, MAX_COUNT),
               "top": _small_int(req, "top", 1, 20, 5)}
-    satellites = []
+    satellites: list[dict[str, Any]] = []
     if options is None and (observe is None or observe.symbol in SPIN_HALF_FIRST):
         satellites = _satellite_elements(lines_Hz, tol)
         extra = [_partner_option(sat["element"], "partners", []) for sat in satellites]
@@ -336,7 +345,8 @@ def op_identify(req: dict, warnings: list[str]) -> dict:
                            "lines": predicted})
     best = found.candidates[0]
     return {"observe": observe.symbol if observe else None,
-            "observed": [{"Hz": x, "intensity": y, **({"ppm": larmor.shift_ppm(ref_MHz, x)} if ref_MHz else {})} for x, y in lines_Hz],
+            "observed": [{"Hz": x, "intensity": y, **({"ppm": larmor.shift_ppm(ref_MHz, x)} if ref_MHz else {})}
+                         for x, y in lines_Hz],
             "unit": sorted(units)[0] if len(units) == 1 else "mixed",
             "tolerance_Hz": tol, "candidates": candidates, "label": best.label,
             "center_Hz": best.center_Hz, "center_ppm": larmor.shift_ppm(ref_MHz, best.center_Hz) if ref_MHz else None,
@@ -373,9 +383,11 @@ DECLARED = {"identify": Op(
               help="if known, Hz per point: the default tolerance is at least one point", example="0.3 Hz"),
         Param("max_groups", "integer", bounds=(1, MAX_GROUPS), default=MAX_GROUPS, example=2, label="Most groups",
               help="at most this many partner groups"),
-        Param("max_count", "integer", bounds=(1, MAX_COUNT), default=MAX_COUNT, example=3, label="Most partners a group",
+        Param("max_count", "integer", bounds=(1, MAX_COUNT), default=MAX_COUNT, example=3,
+              label="Most partners a group",
               help="at most this many equivalent partners in a group"),
-        Param("top", "integer", bounds=(1, 20), default=5, example=3, label="Candidates", help="how many candidates to list"),
+        Param("top", "integer", bounds=(1, 20), default=5, example=3, label="Candidates",
+              help="how many candidates to list"),
     ))}
 
 OPS = {"identify": op_identify}

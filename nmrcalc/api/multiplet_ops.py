@@ -14,6 +14,7 @@ from __future__ import annotations
 import math
 import re
 from fractions import Fraction
+from typing import Any
 
 from nmrcalc.api.fields import bounded, flag, in_range, magnet, nucleus, quantity, spin_text, zero_ppm_MHz
 from nmrcalc.api.params import MAGNET, SPECTRUM, Op, Param
@@ -78,15 +79,20 @@ def _min_share(req: dict) -> float:
     return share
 
 
+def _percent(n: Nuclide) -> float:
+    """Natural abundance of ``n`` in percent (0 where the table gives none)."""
+    return n.abundance_percent or 0.0
+
+
 def _element_mixture(el: str, overrides: dict[str, float]) -> list[tuple[Nuclide, float]]:
     """(isotope, fraction) for an element: natural, with any user abundances; the rest keeps natural proportions."""
     isos = [n for n in isotopes_of(el) if n.abundance_percent]
     fixed = {n.symbol: overrides[n.symbol] for n in isotopes_of(el) if n.symbol in overrides}
     free = [n for n in isos if n.symbol not in fixed]
     rest = 100.0 - sum(fixed.values())
-    natural_free = sum(n.abundance_percent for n in free)
+    natural_free = sum(_percent(n) for n in free)
     mix = [(lookup(s), pct / 100) for s, pct in fixed.items()]
-    mix += [(n, rest / 100 * n.abundance_percent / natural_free) for n in free if natural_free > 0]
+    mix += [(n, rest / 100 * _percent(n) / natural_free) for n in free if natural_free > 0]
     return [(n, f) for n, f in mix if f > 0]
 
 
@@ -185,7 +191,7 @@ def _read_group(g, i: int, observe: Nuclide, overrides, ref_MHz, notes, rules, s
     site_abundance = _abundances(g.get("abundance"), f"{where}.abundance", overrides)
     el = element_of(partner)
     named = lookup_magnetic(partner, f"{where}.partner") if el is None else None
-    el = el or named.element
+    el = el or named.element  # type: ignore[union-attr]  # named is looked up whenever el is None
     equivalent = g.get("equivalent")
     if equivalent is None:
         equivalent = named is None and el == observe.element
@@ -222,7 +228,7 @@ def _read_group(g, i: int, observe: Nuclide, overrides, ref_MHz, notes, rules, s
             raise InputError(f"{el} has no magnetic isotope at natural abundance: no splitting.",
                              f"{where}.partner", "not_magnetic")
         if g.get("J_isotope") in (None, ""):
-            j_iso = max(magnetic, key=lambda x: x.abundance_percent)
+            j_iso = max(magnetic, key=_percent)
             if len(magnetic) > 1 or equivalent:
                 notes.add(f"J of the {el} group is taken as J to {j_iso.symbol} (the most abundant magnetic "
                           f"isotope{' other than the observed one' if equivalent else ''}).")
@@ -244,7 +250,7 @@ def _read_group(g, i: int, observe: Nuclide, overrides, ref_MHz, notes, rules, s
         if sym not in present:
             raise InputError(f"{sym} is not present in this group's isotope mixture, so its shift would never apply.",
                              f"{where}.isotope_shift.{sym}")
-    isotopes = []
+    isotopes: list[tuple[str, Fraction | int, float, float, float]] = []
     for nuc, fraction in mixture:
         shift = shifts.get(nuc.symbol, 0.0)
         if equivalent and nuc is observe:  # present, but never splits the line
@@ -306,7 +312,8 @@ def op_multiplet(req: dict, warnings: list[str]) -> dict:
     groups = req.get("groups", [])
     if not isinstance(groups, list):
         raise InputError("'groups' must be a list of partner groups.", "groups")
-    ref_MHz = center = None
+    ref_MHz: float | None = None
+    center: float | None = None
     has_magnet = req.get("spectrometer") not in (None, "") or req.get("field") not in (None, "")
     if has_magnet:
         field_T, proton_MHz = magnet(req, warnings)
@@ -321,7 +328,9 @@ def op_multiplet(req: dict, warnings: list[str]) -> dict:
     notes: set[str] = set()
     rules: list[str] = []
     suggestions: list[dict] = []
-    plain, sites, relaxing = [], [], []
+    plain: list[Any] = []
+    sites: list[Any] = []
+    relaxing: list[Any] = []
     for i, g in enumerate(groups):
         kind, value = _read_group(g, i, observe, overrides, ref_MHz, notes, rules, suggestions)
         {"plain": plain, "site": sites, "relaxing": relaxing}[kind].append(value)
@@ -331,7 +340,7 @@ def op_multiplet(req: dict, warnings: list[str]) -> dict:
     others = list(plain)
     plain = plain + [(spin, 1, J) for spin, J, _, _ in relaxing]
 
-    result = {"observe": observe.symbol,
+    result: dict[str, Any] = {"observe": observe.symbol,
               "groups": [{"spin": spin_text(Fraction(s)), "count": c, "J_Hz": j} for s, c, j in plain],
               "rules": rules, "isotope_shift_suggestions": suggestions}
     if sites:
@@ -344,7 +353,8 @@ def op_multiplet(req: dict, warnings: list[str]) -> dict:
         result["isotopologues"] = [
             {"label": s.label, "share": float(s.share), "multiplet": s.multiplet_label,
              "ratio": ratio_string(s.sticks), "center_Hz": s.center_Hz, "atoms": list(s.atoms),
-             "center_ppm": None if center is None else center + larmor.shift_ppm(ref_MHz, s.center_Hz),
+             # a centre is only read once the magnet has given ref_MHz
+             "center_ppm": None if center is None else center + larmor.shift_ppm(ref_MHz, s.center_Hz),  # type: ignore[arg-type]
              "lines": _line_dicts(s.lines, ref_MHz, center)}
             for s in spec.species]
         result["dropped_share"] = float(spec.dropped_share)
@@ -377,10 +387,11 @@ def op_multiplet(req: dict, warnings: list[str]) -> dict:
                        "y": [share * v for v in lineshape.sample_spectrum(ls, width, shape, window_Hz=window).y]}
                       for lab, share, ls in species_traces]
         except InputError as e:
-            raise InputError(e.message, {"fwhm_Hz": "linewidth"}.get(e.field, e.field), e.code) from None
+            renamed: dict[str | None, str | None] = {"fwhm_Hz": "linewidth"}
+            raise InputError(e.message, renamed.get(e.field, e.field), e.code) from None
         spectrum = {"x_Hz": total.x_Hz, "y": total.y, "traces": traces, "linewidth_Hz": width, "shape": shape}
         if center is not None:
-            spectrum["x_ppm"] = lineshape.hz_to_ppm(total.x_Hz, ref_MHz, center)
+            spectrum["x_ppm"] = lineshape.hz_to_ppm(total.x_Hz, ref_MHz, center)  # type: ignore[arg-type]  # as above
         result["spectrum"] = spectrum
     if relaxing:
         spin, J, T1, i = relaxing[0]

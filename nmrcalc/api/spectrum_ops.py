@@ -21,6 +21,7 @@ from __future__ import annotations
 
 import math
 import re
+from typing import Any
 
 from nmrcalc.api.fields import in_range, magnet, nucleus, quantity, require
 from nmrcalc.api.params import MAGNET, Op, Param
@@ -68,9 +69,10 @@ def op_read_spectrum(req: dict, warnings: list[str]) -> dict:
     ref = None if reference is None else (_number(reference, "x", "reference."),
                                           _number(reference, "shift_ppm", "reference."))
     s = read_jcamp(text) if re.search(r"^\s*##TITLE\s*=", text, re.M) else read_two_column(text, default_unit)
-    out = {"title": s.title or name, "nucleus": s.nucleus, "observe_MHz": s.observe_MHz, "npoints": s.npoints,
-           "x_unit": s.x_unit, "first_x": s.first_x, "last_x": s.last_x, "y": s.y, "checks": s.checks,
-           "reference": None}
+    out: dict[str, Any] = {
+        "title": s.title or name, "nucleus": s.nucleus, "observe_MHz": s.observe_MHz, "npoints": s.npoints,
+        "x_unit": s.x_unit, "first_x": s.first_x, "last_x": s.last_x, "y": s.y, "checks": s.checks,
+        "reference": None}
     if s.imaginary is not None:
         out["imaginary"] = s.imaginary
     if s.peaks is not None:
@@ -166,14 +168,14 @@ def op_fit_spin_system(req: dict, warnings: list[str]) -> dict:
     if err is None:
         warnings.append("As many parameters as lines: the standard errors are undefined.")
     fitted = dict(zip(shift_sites, p))
-    out_spins = []
+    out_spins: list[dict[str, Any]] = []
     for i, (nuc, shift, count) in enumerate(spins):
         k = shift_sites.index(i) if i in fitted else None
         out_spins.append({"nucleus": nuc.symbol, "count": count,
                           "shift_ppm": fitted[i] / refs[i] if k is not None else shift,
                           "error_ppm": (err[k] / refs[i] if err else None) if k is not None else None,
                           "fitted": k is not None})
-    out_couplings = []
+    out_couplings: list[dict[str, Any]] = []
     for c, (a, b, J) in enumerate(couplings):
         k = len(shift_sites) + coupling_idx.index(c) if c in coupling_idx else None
         out_couplings.append({"between": [a, b], "J_Hz": p[k] if k is not None else J,

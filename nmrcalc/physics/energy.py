@@ -36,10 +36,14 @@ def energy_units(freq_Hz: float) -> dict[str, float]:
 def photon_freq_Hz(wavelength_nm: float | None = None, wavenumber_cm: float | None = None) -> float:
     if wavelength_nm is not None:
         return SPEED_OF_LIGHT_M_PER_S / (wavelength_nm * 1e-9)
+    if wavenumber_cm is None:  # the same TypeError the product with None raised before
+        raise TypeError("photon_freq_Hz needs wavelength_nm or wavenumber_cm")
     return SPEED_OF_LIGHT_M_PER_S * wavenumber_cm * 100
 
 
-def populations(spin: Fraction, gamma_rad_per_s_per_T: float, field_T: float, temperature_K: float) -> list[tuple[Fraction, float]]:
+def populations(
+    spin: Fraction, gamma_rad_per_s_per_T: float, field_T: float, temperature_K: float
+) -> list[tuple[Fraction, float]]:
     """Boltzmann fraction of each Zeeman level m, lowest energy first."""
     ms = [spin - k for k in range(int(2 * spin) + 1)]
     energies = {m: -float(m) * gamma_rad_per_s_per_T * HBAR_J_S * field_T for m in ms}

@@ -16,10 +16,12 @@ Recipes*, 3rd ed., §15.5), undefined when m ≤ n.
 from __future__ import annotations
 
 import math
+from collections.abc import Sequence
 from dataclasses import replace
+from typing import Any
 
 from nmrcalc.errors import InputError
-from nmrcalc.physics.spin_system import simulate
+from nmrcalc.physics.spin_system import Site, simulate
 
 MIN_ASSIGN = 0.02
 TOL_HZ = 1e-7
@@ -51,9 +53,10 @@ def _solve(a: list[list[float]], b: list[float]) -> list[float] | None:
 def _inverse(a):
     n = len(a)
     cols = [_solve(a, [1.0 if i == j else 0.0 for i in range(n)]) for j in range(n)]
-    if any(c is None for c in cols):
+    solved = [c for c in cols if c is not None]
+    if len(solved) < n:
         return None
-    return [[cols[j][i] for j in range(n)] for i in range(n)]
+    return [[solved[j][i] for j in range(n)] for i in range(n)]
 
 
 class _Model:
@@ -115,7 +118,9 @@ def _positions(lines, index, reference) -> list[float]:
     return [min((f for f, _ in lines), key=lambda f: abs(f - t)) for t in reference[1]]
 
 
-def fit(sites, couplings, observe, measured, shift_sites, coupling_idx) -> dict:
+def fit(sites: Sequence[Site], couplings: Sequence[tuple[int, int, float]], observe: str,
+        measured: Sequence[tuple[float, float]], shift_sites: Sequence[int],
+        coupling_idx: Sequence[int]) -> dict[str, Any]:
     """Fit offsets (Hz) of ``shift_sites`` and J (Hz) of ``couplings[k]`` for k in ``coupling_idx``.
 
     ``measured``: [(position_Hz, intensity)].  Returns {"params", "errors" (None if
