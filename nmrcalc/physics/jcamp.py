@@ -28,6 +28,7 @@ from __future__ import annotations
 
 import math
 import re
+from collections.abc import Iterator
 from dataclasses import dataclass, field
 from itertools import accumulate
 
@@ -73,6 +74,9 @@ class Spectrum:
         return len(self.peaks) if self.peaks is not None else len(self.y)
 
 
+_Record = tuple[str, str, int, list[tuple[int, str]]]  # label, value, line number, data lines
+
+
 def _norm(label: str) -> str:
     """Label names ignore case, blanks, '-', '/', '_' (the standard's rule)."""
     return re.sub(r"[\s\-/_]", "", label).upper()
@@ -83,9 +87,9 @@ def _strip_comment(text: str) -> str:
     return text if i < 0 else text[:i]
 
 
-def _records(text: str):
+def _records(text: str) -> Iterator[_Record]:
     """Yield (label, value, line number, data lines [(line number, text)]) in file order."""
-    current = None
+    current: _Record | None = None
     for n, raw in enumerate(text.splitlines(), 1):
         m = _LABEL.match(raw)
         if m:
@@ -98,9 +102,10 @@ def _records(text: str):
         yield current
 
 
-def _blocks(text: str) -> list[list]:
+def _blocks(text: str) -> list[list[_Record]]:
     """Split into blocks (TITLE … END); a compound LINK block's children are blocks of their own."""
-    blocks, stack = [], []
+    blocks: list[list[_Record]] = []
+    stack: list[list[_Record]] = []
     for rec in _records(text):
         if rec[0] == "TITLE":
             stack.append([])
@@ -143,7 +148,8 @@ def decode_line(text: str, line: int) -> tuple[list[float], bool, int]:
         bad = next((c for c in text if not _ALLOWED.fullmatch(c)), "E")
         what = "a missing value ('?')" if bad == "?" else f"the character '{bad}'"
         raise InputError(f"Line {line}: {what} is not allowed in spectrum data.", "text")
-    first = re.match(r"[+-]?[0-9]*\.?[0-9]*(?:[Ee][+-][0-9]+)?", text).group(0)
+    # every part of the pattern is optional, so it always matches
+    first = re.match(r"[+-]?[0-9]*\.?[0-9]*(?:[Ee][+-][0-9]+)?", text).group(0)  # type: ignore[union-attr]
     decimals = len(first.split(".")[1].split("e")[0].split("E")[0]) if "." in first else 0
     try:
         if _EXPONENT.search(text):  # AFFN with exponents: plain numbers only
@@ -373,7 +379,7 @@ def _peaks(recs, meta) -> Spectrum:
     yf = float(meta["YFACTOR"][0]) if "YFACTOR" in meta else 1.0
     pairs = [(x * xf, y * yf) for x, y in pairs]
     checks = [f"{len(pairs)} peaks read"]
-    if "NPOINTS" in meta and int(_num(*meta["NPOINTS"][:1], "NPOINTS", meta["NPOINTS"][1])) != len(pairs):
+    if "NPOINTS" in meta and int(_num(meta["NPOINTS"][0], "NPOINTS", meta["NPOINTS"][1])) != len(pairs):
         raise InputError(f"The peak table holds {len(pairs)} peaks but NPOINTS says {meta['NPOINTS'][0]}.", "text")
     xs = [x for x, _ in pairs]
     return Spectrum(x_unit=x_unit, first_x=xs[0], last_x=xs[-1], y=[], peaks=pairs, checks=checks, **_common(meta))
