@@ -9,7 +9,7 @@ so the page can show the message beside the input that caused it.
 class InputError(ValueError):
     """Bad or unusable input, with the request field it belongs to."""
 
-    def __init__(self, message: str, field: str | None = None, code: str = "invalid_value"):
+    def __init__(self, message: str, field: str | None = None, code: str = "invalid_value") -> None:
         super().__init__(message)
         self.message = message
         self.field = field

@@ -65,7 +65,7 @@ def _frequency_row(nuc: Nuclide, field_T: float, proton_MHz: float, scale: str) 
             "receptivity_C": receptivity(nuc, "13C")}
 
 
-def _scale(req) -> str:
+def _scale(req: dict) -> str:
     scale = req.get("scale", "unified")
     if scale not in ("unified", "biomolecular"):
         raise InputError("'scale' must be 'unified' (IUPAC 2001) or 'biomolecular' (DSS, IUPAC 2008).", "scale")
@@ -109,7 +109,7 @@ def op_frequency(req: dict, warnings: list[str]) -> dict:
     return {**base, "table": rows, "count": len(rows)}
 
 
-def _sortable(value):
+def _sortable(value: object) -> Any:
     if isinstance(value, str) and "/" in value or isinstance(value, str) and value.isdigit():
         num, _, den = value.partition("/")
         return float(num) / float(den or 1)

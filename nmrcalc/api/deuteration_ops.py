@@ -19,7 +19,7 @@ MODEL = ("Binomial (random) labelling: share of k D = C(n,k) p^k (1-p)^(n-k) (Fe
          "vol. 1, ch. VI); χ² test at 5 %. Integrals must be quantitative (full relaxation; on 13C also equal NOE).")
 
 
-def _number(value, field: str, *, positive: bool = False) -> float:
+def _number(value: object, field: str, *, positive: bool = False) -> float:
     if isinstance(value, str):
         value = bounded(value, "percent", field)
     if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value):

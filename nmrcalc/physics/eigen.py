@@ -45,7 +45,7 @@ def eigh(matrix: list[list[float]]) -> tuple[list[float], list[list[float]]]:
     return [d[k] for k in order], [z[k] for k in order]
 
 
-def _checked_copy(matrix) -> list[list[float]]:
+def _checked_copy(matrix: list[list[float]]) -> list[list[float]]:
     """Validate squareness, finiteness and symmetry; return the symmetric part as floats."""
     try:
         rows = [[float(x) for x in row] for row in matrix]
@@ -66,7 +66,7 @@ def _checked_copy(matrix) -> list[list[float]]:
     return rows
 
 
-def _householder_tridiagonal(a: list[list[float]]):
+def _householder_tridiagonal(a: list[list[float]]) -> tuple[list[float], list[float], list[list[float]]]:
     """Reduce symmetric ``a`` (modified in place) to tridiagonal form.
 
     Step k reflects rows/columns k+1..n-1 with H = I - β v vᵀ (β = 2 / vᵀv) so

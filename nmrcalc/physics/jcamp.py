@@ -31,6 +31,7 @@ import re
 from collections.abc import Iterator
 from dataclasses import dataclass, field
 from itertools import accumulate
+from typing import Any, Literal, overload
 
 from nmrcalc.errors import InputError
 
@@ -75,6 +76,7 @@ class Spectrum:
 
 
 _Record = tuple[str, str, int, list[tuple[int, str]]]  # label, value, line number, data lines
+_Meta = dict[str, tuple[str, int]]  # label: (value, line number)
 
 
 def _norm(label: str) -> str:
@@ -175,7 +177,7 @@ def decode_line(text: str, line: int) -> tuple[list[float], bool, int]:
     return out, bool(last and last.group(1) in _DIF), decimals
 
 
-def decode_xy_table(lines, first_x: float, last_x: float, npoints: int, x_factor: float,
+def decode_xy_table(lines: list[tuple[int, str]], first_x: float, last_x: float, npoints: int, x_factor: float,
                     checks: list[str]) -> list[float]:
     """Raw ordinates of an (X++(Y..Y)) table, X checks and DIF Y checks enforced."""
     if npoints < 1 or npoints > MAX_POINTS:
@@ -222,7 +224,7 @@ def _scaled(raw: list[float], factor: float) -> list[float]:
     return y
 
 
-def _peak_table(lines) -> list[tuple[float, float]]:
+def _peak_table(lines: list[tuple[int, str]]) -> list[tuple[float, float]]:
     values = []
     for n, text in lines:
         for part in re.split(r"[\s;]+", _strip_comment(text).strip()):
@@ -265,11 +267,11 @@ def _header_check(name: str, text: str | None, actual: float, factor: float, che
     checks.append(f"{name} = {stated:.6g} holds")
 
 
-def _meta(recs) -> dict:
+def _meta(recs: list[_Record]) -> _Meta:
     return {label: (value, n) for label, value, n, _ in recs}
 
 
-def _common(meta: dict) -> dict:
+def _common(meta: _Meta) -> dict[str, Any]:
     nucleus = meta.get(".OBSERVENUCLEUS", ("", 0))[0].replace("^", "").strip() or None
     obs = meta.get(".OBSERVEFREQUENCY")
     observe = None
@@ -290,8 +292,8 @@ def _common(meta: dict) -> dict:
             "shift_reference": ref}
 
 
-def _xydata(recs, meta) -> Spectrum:
-    def get(label, default=None):
+def _xydata(recs: list[_Record], meta: _Meta) -> Spectrum:
+    def get(label: str, default: float | None = None) -> float:
         if label in meta:
             return _num(meta[label][0], label, meta[label][1])
         if default is None:
@@ -316,17 +318,21 @@ def _columns(text: str) -> list[str]:
     return [c.strip() for c in text.split(",")]
 
 
-def _ntuples(recs, meta) -> Spectrum:
+def _ntuples(recs: list[_Record], meta: _Meta) -> Spectrum:
     names = [c.upper() for c in _columns(meta.get("VARNAME", ("", 0))[0])]
     symbols = [c.upper() for c in _columns(meta.get("SYMBOL", ("", 0))[0])]
     if any("FID" in c or c in ("TIME",) for c in names) or "FID" in meta.get("NTUPLES", ("", 0))[0].upper():
         _unit("SECONDS")
 
-    def text_of(label, i):
+    def text_of(label: str, i: int) -> str | None:
         cols = _columns(meta.get(label, ("", 0))[0])
         return cols[i] if i < len(cols) else None
 
-    def column(label, i, needed=True):
+    @overload
+    def column(label: str, i: int, needed: Literal[True] = True) -> float: ...
+    @overload
+    def column(label: str, i: int, needed: bool) -> float | None: ...
+    def column(label: str, i: int, needed: bool = True) -> float | None:
         cols = _columns(meta.get(label, ("", 0))[0])
         if i < len(cols) and cols[i]:
             return _num(cols[i], label, meta[label][1])
@@ -366,7 +372,7 @@ def _ntuples(recs, meta) -> Spectrum:
                     checks=checks, **_common(meta))
 
 
-def _peaks(recs, meta) -> Spectrum:
+def _peaks(recs: list[_Record], meta: _Meta) -> Spectrum:
     x_unit = _unit(meta.get("XUNITS", ("", 0))[0])
     lines = next(r[3] for r in recs if r[0] == "PEAKTABLE")
     form = meta["PEAKTABLE"][0].upper().replace(" ", "")
@@ -385,7 +391,7 @@ def _peaks(recs, meta) -> Spectrum:
     return Spectrum(x_unit=x_unit, first_x=xs[0], last_x=xs[-1], y=[], peaks=pairs, checks=checks, **_common(meta))
 
 
-def _kind(recs, meta) -> str | None:
+def _kind(recs: list[_Record], meta: _Meta) -> str | None:
     labels = {r[0] for r in recs}
     dtype = meta.get("DATATYPE", ("", 0))[0].upper()
     if "NTUPLES" in labels:
