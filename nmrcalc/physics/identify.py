@@ -107,10 +107,10 @@ from __future__ import annotations
 
 import itertools
 import math
-from collections.abc import Iterable, Sequence
+from collections.abc import Callable, Iterable, Iterator, Sequence
 from fractions import Fraction
 from functools import lru_cache, partial
-from typing import NamedTuple
+from typing import Any, NamedTuple
 
 from nmrcalc.errors import InputError
 from nmrcalc.physics.isotopologues import isotopologue_spectrum
@@ -199,7 +199,7 @@ class Identification(NamedTuple):
     complete: bool
 
 
-def _check_lines(lines: Iterable) -> list[tuple[float, float]]:
+def _check_lines(lines: Iterable[Any]) -> list[tuple[float, float]]:
     try:
         items = list(lines)
     except TypeError:
@@ -261,7 +261,7 @@ def _comb_positions(Js: Sequence[float], ms: Sequence[int]) -> list[float]:
     return sorted(points)
 
 
-def _explains_all(xs, left: float, points: list[float], tol: float) -> bool:
+def _explains_all(xs: Sequence[float], left: float, points: list[float], tol: float) -> bool:
     """True if every observed position (ascending) lies within ``tol`` of some ``left + point`` (ascending)."""
     j, n = 0, len(points)
     for x in xs:
@@ -273,12 +273,14 @@ def _explains_all(xs, left: float, points: list[float], tol: float) -> bool:
     return True
 
 
-def _step_vectors(Js: Sequence[float], width: float, tol: float, n_obs: int, max_steps: int):
+def _step_vectors(
+    Js: Sequence[float], width: float, tol: float, n_obs: int, max_steps: int
+) -> Iterator[tuple[int, ...]]:
     """Step counts ``m_k >= 1`` with ``width - 2 tol <= sum m J <= 2 width + 2 tol`` and few comb points."""
     lo, hi = width - 2 * tol, 2 * width + 2 * tol
     max_points = 3 * n_obs + 6
 
-    def rec(k, so_far, points, acc):
+    def rec(k: int, so_far: float, points: int, acc: list[int]) -> Iterator[tuple[int, ...]]:
         if k == len(Js):
             if lo <= so_far <= hi:
                 yield tuple(acc)
@@ -313,7 +315,7 @@ class Split(NamedTuple):
 def _splits(m: int, options: Sequence[PartnerOption], max_count: int, pairs: bool) -> list[Split]:
     """Ways to make ``m`` steps of one J: one group, and with ``pairs`` two groups of different spin
     (1:2:2:1 from I = 1/2 and I = 1 with one J)."""
-    def ways(opt):
+    def ways(opt: PartnerOption) -> list[tuple[int, int]]:
         twice = int(2 * opt.spin)
         return [(n, n * twice) for n in range(1, max_count + 1) if n * twice <= m]
 
@@ -379,7 +381,7 @@ def _layout(Js: Sequence[float], ms: Sequence[int], tol: float) -> list[list[tup
     return clusters
 
 
-def _layout_lines(layout, combs: Sequence[Sequence[float]]) -> list[tuple[float, float]]:
+def _layout_lines(layout: list[list[tuple[float, int]]], combs: Sequence[Sequence[float]]) -> list[tuple[float, float]]:
     """Lines on a ``_layout`` with the groups' normalized combs: successive splitting, then cluster sums."""
     weights = [1.0]
     for comb in combs:
@@ -440,7 +442,7 @@ class Assignment(NamedTuple):
         return self.position + W_INTENSITY * math.sqrt(self.lost / n_obs) + UNMATCHED_PENALTY * self.unmatched
 
 
-def _assign(obs, offsets: Sequence[float], center0: float, tol: float) -> Assignment:
+def _assign(obs: Sequence[tuple[float, float]], offsets: Sequence[float], center0: float, tol: float) -> Assignment:
     """Match, move the centre by the weighted mean Δx, match again; the position-only score parts."""
     xs = [x for x, _ in obs]
     pairs = _match(xs, offsets, center0, tol)
@@ -457,7 +459,8 @@ def _assign(obs, offsets: Sequence[float], center0: float, tol: float) -> Assign
     return Assignment(pairs, center, position, lost, len(obs) - len(pairs))
 
 
-def _rate(obs, tol: float, groups: Sequence[Group], pred, fit: Assignment, complexity: float) -> Candidate:
+def _rate(obs: Sequence[tuple[float, float]], tol: float, groups: Sequence[Group], pred: list[tuple[float, float]],
+          fit: Assignment, complexity: float) -> Candidate:
     """Score of predicted lines ``pred`` (offsets, intensities) on an assignment (see the module docstring)."""
     pairs, center = fit.pairs, fit.center
     if not pairs:
@@ -481,7 +484,7 @@ def _rate(obs, tol: float, groups: Sequence[Group], pred, fit: Assignment, compl
     return Candidate(tuple(groups), score, fit.position, intensity, fit.unmatched, "", pred, center, s)
 
 
-def score_model(obs, tol: float, groups: Sequence[Group], center0: float) -> Candidate:
+def score_model(obs: Sequence[tuple[float, float]], tol: float, groups: Sequence[Group], center0: float) -> Candidate:
     """Score one model against observed lines (see the module docstring)."""
     if all(g.option.plain for g in groups):
         pred = _plain_lines(groups, tol)
@@ -520,7 +523,7 @@ def _describe(groups: Sequence[Group]) -> str:
     return " + ".join(f"{g.count}×{g.option.label} (J {g.J_Hz:.3g} Hz)" for g in groups) or "no coupling"
 
 
-def identify(lines: Iterable, tol_Hz: float, options: Sequence[PartnerOption] | None = None, *,
+def identify(lines: Iterable[Any], tol_Hz: float, options: Sequence[PartnerOption] | None = None, *,
              max_groups: int = MAX_GROUPS, max_count: int = MAX_COUNT, top: int = 5,
              max_evals: int = DEFAULT_MAX_EVALS, work_budget: int = DEFAULT_WORK_BUDGET) -> Identification:
     """Rank first-order explanations of observed ``(position_Hz, intensity)`` lines, best first.
@@ -562,7 +565,7 @@ def identify(lines: Iterable, tol_Hz: float, options: Sequence[PartnerOption] | 
     look_alikes: dict[tuple, Candidate] = {}
     store = results
 
-    def evaluate(groups: tuple[Group, ...], scorer=None) -> None:
+    def evaluate(groups: tuple[Group, ...], scorer: Callable[[], Candidate] | None = None) -> None:
         """Score (``scorer()``, or ``score_model``) and store a model not seen before."""
         nonlocal evaluated
         key = tuple((g.option.label, g.count, round(g.J_Hz, 6)) for g in groups)
@@ -596,7 +599,8 @@ def identify(lines: Iterable, tol_Hz: float, options: Sequence[PartnerOption] | 
     def best_fit() -> float:
         return best["fit"]
 
-    def try_set(Js: tuple[float, ...], slack: float, n_lines: int | None = None, table=one_group) -> bool:
+    def try_set(Js: tuple[float, ...], slack: float, n_lines: int | None = None,
+                table: dict[int, list[Split]] = one_group) -> bool:
         """Score the models on one J set with the splits in ``table`` (with ``one_group`` only, otherwise
         only models with a shared-J pair; only layouts of ``n_lines`` lines, if given); False when out of budget."""
         for ms in _step_vectors(Js, width, tol_Hz, len(obs), max_steps):
@@ -624,12 +628,13 @@ def identify(lines: Iterable, tol_Hz: float, options: Sequence[PartnerOption] | 
                     evaluate(groups, partial(score_on_layout, groups, choice, layout, fixed, cost))
         return True
 
-    def score_on_layout(groups, choice, layout, fixed: Assignment | None, cost: float) -> Candidate:
+    def score_on_layout(groups: tuple[Group, ...], choice: tuple[Split, ...], layout: list[list[tuple[float, int]]],
+                        fixed: Assignment | None, cost: float) -> Candidate:
         """``score_model`` for plain groups on a shared ``_layout`` (and its ``fixed`` assignment, if any)."""
         pred = _layout_lines(layout, [sp.comb for sp in choice])
         return _rate(obs, tol_Hz, groups, pred, fixed or _assign(obs, [x for x, _ in pred], center0, tol_Hz), cost)
 
-    def search_levels(max_sets: int, table) -> bool:
+    def search_levels(max_sets: int, table: dict[int, list[Split]]) -> bool:
         """One J more at a time (see step 2 of the search); False when the budget ran out."""
         for k in range(1, max_sets + 1):
             if best_fit() < LEVEL_GATE:
