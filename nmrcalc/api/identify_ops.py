@@ -77,7 +77,7 @@ def _percent(n: Nuclide) -> float:
     return n.abundance_percent or 0.0
 
 
-def _partner_option(text, where: str, notes: list[str]) -> PartnerOption:
+def _partner_option(text: object, where: str, notes: list[str]) -> PartnerOption:
     if isinstance(text, (int, float)) and not isinstance(text, bool):
         text = str(text)
     if not isinstance(text, str) or not text.strip():
@@ -113,7 +113,7 @@ def _partner_option(text, where: str, notes: list[str]) -> PartnerOption:
     return PartnerOption(el, "element", tuple(isotopes))
 
 
-def _position(value, unit: str, where: str) -> tuple[float, str]:
+def _position(value: object, unit: str, where: str) -> tuple[float, str]:
     """(number, 'Hz' or 'ppm'): a string with ppm is ppm, other units are Hz-like, bare numbers take ``unit``."""
     if isinstance(value, str) and value.strip().lower().endswith("ppm"):
         return bounded(value, "shift", where), "ppm"
@@ -154,7 +154,9 @@ def _read_lines(req: dict, unit: str) -> list[tuple[float, float, str]]:
     return out
 
 
-def _read_peaklist(req: dict, unit_key: str | None, has_magnet: bool, notes: list[str]):
+def _read_peaklist(
+    req: dict, unit_key: str | None, has_magnet: bool, notes: list[str]
+) -> list[tuple[float, float, str]]:
     parsed = parse_peaklist(req.get("peaklist"))
     if len(parsed.peaks) > MAX_INPUT_LINES:
         raise InputError(f"At most {MAX_INPUT_LINES} peaks can be analysed, the list has {len(parsed.peaks)}.",

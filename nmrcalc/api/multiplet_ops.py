@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import math
 import re
+from collections.abc import Iterable
 from fractions import Fraction
 from typing import Any
 
@@ -44,7 +45,7 @@ def _count(g: dict, where: str) -> int:
     return n
 
 
-def _abundances(raw, field: str, base: dict[str, float] | None = None) -> dict[str, float]:
+def _abundances(raw: object, field: str, base: dict[str, float] | None = None) -> dict[str, float]:
     """Isotope → percent from ``raw`` (a request's or a group's ``abundance``), over ``base``."""
     raw = raw or {}
     if not isinstance(raw, dict):
@@ -151,7 +152,7 @@ _TIME_UNITS = {"s": 1.0, "ms": 1e-3, "us": 1e-6, "µs": 1e-6, "μs": 1e-6}
 MAX_COLLAPSE_POINTS = 20000
 
 
-def _seconds(value, field: str) -> float:
+def _seconds(value: object, field: str) -> float:
     """A time such as ``"2 ms"`` (s, ms, µs; a bare number is seconds) in seconds, > 0."""
     text = value.strip() if isinstance(value, str) else value
     unit = "s"
@@ -165,7 +166,8 @@ def _seconds(value, field: str) -> float:
     return in_range(float(text) * _TIME_UNITS[unit], field)
 
 
-def _read_group(g, i: int, observe: Nuclide, overrides, ref_MHz, notes, rules, suggestions) -> tuple[str, object]:
+def _read_group(g: Any, i: int, observe: Nuclide, overrides: dict[str, float], ref_MHz: float | None,
+                notes: set[str], rules: list[str], suggestions: list[dict]) -> tuple[str, Any]:
     """('plain', (spin, count, J_Hz)) or ('site', (positions, isotopes)); all of a group's keys are read here."""
     where = f"groups.{i}"
     if not isinstance(g, dict):
@@ -270,17 +272,19 @@ def _read_group(g, i: int, observe: Nuclide, overrides, ref_MHz, notes, rules, s
     return "site", (n, [(lab, s, repr(f), j, sh) for lab, s, f, j, sh in lumped])
 
 
-def _line_dicts(lines, ref_MHz, center_ppm):
+def _line_dicts(
+    lines: Iterable[tuple[float, float]], ref_MHz: float | None, center_ppm: float | None
+) -> list[dict[str, float]]:
     out = []
     for x, y in lines:
         d = {"Hz": x, "intensity": y}
         if center_ppm is not None:
-            d["ppm"] = center_ppm + larmor.shift_ppm(ref_MHz, x)
+            d["ppm"] = center_ppm + larmor.shift_ppm(ref_MHz, x)  # type: ignore[arg-type]  # a centre comes with ref_MHz
         out.append(d)
     return out
 
 
-def _tree(plain_groups) -> list[list[float]] | None:
+def _tree(plain_groups: Iterable[tuple[Fraction, int, float]]) -> list[list[float]] | None:
     ordered = sorted((g for g in plain_groups if g[2] != 0), key=lambda g: -abs(g[2]))
     levels = [[0.0]]
     for k in range(1, len(ordered) + 1):
@@ -291,7 +295,8 @@ def _tree(plain_groups) -> list[list[float]] | None:
     return levels
 
 
-def _collapsed(grid, others, relaxing, width: float, shape: str):
+def _collapsed(grid: lineshape.SampledSpectrum, others: list[Any], relaxing: tuple[Fraction, float, float, int],
+               width: float, shape: str) -> lineshape.SampledSpectrum:
     """The sampled spectrum with the relaxing partner's pattern (Lorentzian lines only) instead of sticks."""
     spin, J, T1, i = relaxing
     if shape != "lorentzian":

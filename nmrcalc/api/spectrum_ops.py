@@ -39,14 +39,14 @@ MAX_LINES = 64
 MAX_ORDINATE = 1e100  # any intensity unit, but sums of squares stay finite
 
 
-def _number(req, key, prefix=""):
+def _number(req: dict, key: str, prefix: str = "") -> float:
     value = require(req, key, prefix)
     if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value):
         raise InputError(f"'{key}' must be a number.", prefix + key)
     return in_range(float(value), prefix + key)
 
 
-def _unit(req, key="x_unit", default=None):
+def _unit(req: dict, key: str = "x_unit", default: str | None = None) -> str | None:
     u = req.get(key, default)
     if u is None:
         return None
@@ -130,7 +130,7 @@ def op_pick_peaks(req: dict, warnings: list[str]) -> dict:
             "threshold": float(m.group(1))}
 
 
-def _line_Hz(line, k, ref_MHz):
+def _line_Hz(line: Any, k: int, ref_MHz: float) -> float:
     pos = line.get("position") if isinstance(line, dict) else None
     if isinstance(pos, str) and pos.strip().lower().endswith("hz"):
         return quantity(line, "position", "coupling", prefix=f"lines.{k}.")
