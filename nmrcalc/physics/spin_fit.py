@@ -50,7 +50,7 @@ def _solve(a: list[list[float]], b: list[float]) -> list[float] | None:
     return x
 
 
-def _inverse(a):
+def _inverse(a: list[list[float]]) -> list[list[float]] | None:
     n = len(a)
     cols = [_solve(a, [1.0 if i == j else 0.0 for i in range(n)]) for j in range(n)]
     solved = [c for c in cols if c is not None]
@@ -60,15 +60,16 @@ def _inverse(a):
 
 
 class _Model:
-    def __init__(self, sites, couplings, observe, shift_sites, coupling_idx):
+    def __init__(self, sites: Sequence[Site], couplings: Sequence[tuple[int, int, float]], observe: str,
+                 shift_sites: Sequence[int], coupling_idx: Sequence[int]) -> None:
         self.sites, self.couplings, self.observe = list(sites), list(couplings), observe
         self.shift_sites, self.coupling_idx = shift_sites, coupling_idx
 
-    def params(self):
+    def params(self) -> list[float]:
         return ([self.sites[i].offset_Hz for i in self.shift_sites]
                 + [self.couplings[k][2] for k in self.coupling_idx])
 
-    def lines(self, p):
+    def lines(self, p: Sequence[float]) -> list[tuple[float, float]]:
         sites = list(self.sites)
         for v, i in zip(p, self.shift_sites):
             sites[i] = replace(sites[i], offset_Hz=v)
@@ -79,7 +80,7 @@ class _Model:
         return simulate(sites, couplings, self.observe, merge_tol_Hz=1e-6, min_rel_intensity=0.0)
 
 
-def _assign(measured, lines) -> list[int]:
+def _assign(measured: Sequence[tuple[float, float]], lines: Sequence[tuple[float, float]]) -> list[int]:
     """Index of one computed transition per measured line, in the same order along the
     axis (an order-keeping match minimizing Σ (x − ν)², by dynamic programming); lines are
     taken from those with at least MIN_ASSIGN of the strongest, and from all if too few."""
@@ -110,7 +111,9 @@ def _assign(measured, lines) -> list[int]:
     return out
 
 
-def _positions(lines, index, reference) -> list[float]:
+def _positions(
+    lines: Sequence[tuple[float, float]], index: Sequence[int], reference: tuple[int, list[float]]
+) -> list[float]:
     """Positions of the transitions ``index``; if the line count changed (lines merged),
     each is followed to the nearest line of the reference positions instead."""
     if len(lines) == reference[0]:
@@ -161,7 +164,9 @@ def fit(sites: Sequence[Site], couplings: Sequence[tuple[int, int, float]], obse
             "assigned_Hz": calc, "iterations": it, "converged": converged}
 
 
-def _jacobian(model, p, index, reference):
+def _jacobian(
+    model: _Model, p: list[float], index: Sequence[int], reference: tuple[int, list[float]]
+) -> list[list[float]]:
     jac = []
     for j in range(len(p)):
         up, down = p[:], p[:]
@@ -173,7 +178,7 @@ def _jacobian(model, p, index, reference):
     return jac
 
 
-def _normal(jac, m, n):
+def _normal(jac: list[list[float]], m: int, n: int) -> list[list[float]]:
     return [[sum(jac[a][i] * jac[b][i] for i in range(m)) for b in range(n)] for a in range(n)]
 
 
