@@ -44,7 +44,7 @@ def test_build_export_zoom_and_errors(dist, open_page):
     page.click("#form-mult button[type=submit]")
 
     want = handle(REQUEST)["result"]
-    assert want["ratio"] == "1:3:6:7:6:3:1"  # Pascal-type triangle for three spin-1 nuclei, from memory
+    assert want["ratio"] == "1:3:6:7:6:3:1"  # three 1:1:1 triplets convolved (hand calculation)
     expect(page.locator("#mult-ratio")).to_contain_text(want["ratio"])
     rows = page.locator("#mult-lines tbody tr")
     expect(rows).to_have_count(len(want["lines"]))
