@@ -277,7 +277,7 @@ NMR.registerPanel({
       return i === 0 ? "" : ` — ${role(r, i)}`;
     }
 
-    function render(r, warnings) {
+    function render(r, warnings, sent) {
       headline.textContent = r.label;
       ratio.textContent = r.ratio ? `Intensity ratio ${r.ratio}` : "Several isotopologues: see the table below for each pattern and share.";
       warn.replaceChildren(...warnings.map((text) => el("li", {}, text)));
@@ -332,7 +332,7 @@ NMR.registerPanel({
         { key: "Hz", label: "Offset (Hz)", numeric: true, value: (l) => l.Hz, show: (l) => NMR.fixed(l.Hz, 3) },
         { key: "intensity", label: "Relative intensity", numeric: true, value: (l) => l.intensity, show: (l) => short(l.intensity, 5) },
       ];
-      const csv = ["ppm,Hz,intensity", ...r.lines.map((l) => `${l.ppm === undefined ? "" : l.ppm},${l.Hz},${l.intensity}`)].join("\n") + "\n";
+      const csv = NMRNotebook.linesCSV(sent, r.lines);
       const tsv = ["ppm\tHz\tintensity", ...r.lines.map((l) => `${l.ppm === undefined ? "" : l.ppm}\t${l.Hz}\t${l.intensity}`)].join("\n");
       const copy = el("button", { type: "button", class: "small-button", id: "mult-copy" }, "Copy table");
       const note = el("span", { class: "hint", "aria-live": "polite" });
@@ -365,7 +365,7 @@ NMR.registerPanel({
           return;
         }
         out.classList.remove("stale");
-        render(response.result, response.warnings || []);
+        render(response.result, response.warnings || [], sent);
         pin.update({ request: sent, result: response.result });
       },
     });
