@@ -199,3 +199,24 @@ def test_png_export_folder_build_and_offline_ready(site_url, open_page):
     page.wait_for_function("() => (window.nmrcalcStatus.offline || '').startsWith('Ready for offline use')", timeout=60_000)
     page.click("#tab-about")
     expect(page.locator("#offline-status")).to_contain_text("Ready for offline use")
+
+
+def test_svg_caption_print_and_safety(dist, open_page):
+    rec = open_page((dist / "nmrcalc.html").resolve().as_uri(), offline=True)
+    page = rec.page
+    page.click("#tab-multiplet")
+    page.fill("#mult-linewidth", "1.5")
+    page.click("#form-mult button[type=submit]")
+    page.wait_for_function("() => window.nmrcalcStatus.pending === 0")
+    with page.expect_download() as info:
+        page.locator("#card-mult .plot-tool[aria-label='Export SVG']").first.click()
+    svg = open(info.value.path(), encoding="utf-8").read()
+    caption = svg[svg.rindex("<rect"):]  # the caption block appended under the plot
+    for part in ("nmrcalc 0.", "13C", "Line width", "1.5 Hz", "400 MHz"):
+        assert part in caption, (part, caption)
+    page.emulate_media(media="print")
+    assert not page.locator("#card-mult .plot > figcaption").first.is_visible()  # no zoom hints on paper
+    page.emulate_media(media="screen")
+    page.click("#tab-about")
+    expect(page.locator("#safety-title + ul")).to_contain_text("5 G line (0.5 mT)")
+    expect(page.locator("#panel-about")).to_contain_text("file://")

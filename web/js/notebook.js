@@ -215,13 +215,32 @@ const NMRNotebook = (() => {
   }
 
   // ---------- values as a chemist files them ----------
-  const UNIT_SUFFIX = { T: "T", G: "G", mT: "mT", Hz: "Hz", kHz: "kHz", MHz: "MHz", ppm: "ppm", K: "K", C: "°C",
-    s: "s", ms: "ms", us: "µs", pct: "%", percent: "%", J: "J", eV: "eV", rad: "rad" };
-  /** "field_T" -> ["field", "T"], "difference_ppm" -> ["difference", "ppm"], "J (count)" -> ["J (count)", ""]. */
+  const UNIT_SUFFIX = { T: "T", G: "G", mT: "mT", Hz: "Hz", kHz: "kHz", MHz: "MHz", ppm: "ppm", K: "K",
+    s: "s", ms: "ms", us: "µs", percent: "%", eV: "eV" };
+  // Result keys as a chemist reads them: [label, unit]; other keys fall back to "name_unit" -> "Name (unit)".
+  const RESULT_LABELS = {
+    field_T: ["Magnetic field", "T"], field_G: ["Magnetic field", "G"], proton_MHz: ["¹H frequency", "MHz"],
+    scale: ["Reference scale", ""], symbol: ["Nucleus", ""], spin: ["Spin I", ""], abundance_percent: ["Natural abundance", "%"],
+    larmor_MHz: ["Bare-nucleus Larmor frequency", "MHz"], reference_MHz: ["0 ppm (Ξ) frequency", "MHz"],
+    difference_ppm: ["Bare nucleus vs 0 ppm", "ppm"], receptivity_C: ["Signal relative to ¹³C at natural abundance", ""],
+    J: ["Transition energy", "J"], J_per_mol: ["Energy per mole", "J/mol"], cal_per_mol: ["Energy per mole", "cal/mol"],
+    kcal_per_mol: ["Energy per mole", "kcal/mol"], eV: ["Transition energy", "eV"], "wavenumber_cm-1": ["Wavenumber", "cm⁻¹"],
+    frequency_Hz: ["Transition frequency", "Hz"], temperature_K: ["Temperature", "K"], nucleus: ["Nucleus", ""],
+    population_excess: ["Population excess (fraction)", ""], photon_over_nmr: ["Photon energy / NMR energy", ""],
+    J_Hz: ["Scaled coupling J", "Hz"], J_from_Hz: ["Measured coupling J", "Hz"], ratio: ["Ratio", ""],
+    from: ["From isotope", ""], to: ["To isotope", ""], sign_flipped: ["Sign flipped", ""], estimate: ["Estimate", ""],
+    reduced_coupling: ["Reduced coupling K", "N A⁻² m⁻³"], reduced_coupling_unit: ["Unit of K", ""], partner: ["Coupling partner", ""],
+    center_ppm: ["Centre", "ppm"], observe_MHz: ["Observe frequency", "MHz"], label: ["Pattern", ""], observe: ["Observed nucleus", ""],
+  };
+  /** "field_T" -> ["Magnetic field", "T"], "lines (count)" -> ["Lines (number)", ""], "x_ppm" -> ["X", "ppm"]. */
   function splitKey(key) {
+    const counted = /^(.*) \(count\)$/.exec(key);
+    if (counted) return [`${splitKey(counted[1])[0]} (number)`, ""];
+    if (RESULT_LABELS[key]) return RESULT_LABELS[key];
     const match = /^(.*?)_([A-Za-z]+)$/.exec(key);
-    if (match && UNIT_SUFFIX[match[2]]) return [match[1].replace(/_/g, " "), UNIT_SUFFIX[match[2]]];
-    return [key.replace(/_/g, " "), ""];
+    const [name, unit] = match && UNIT_SUFFIX[match[2]] ? [match[1], UNIT_SUFFIX[match[2]]] : [key, ""];
+    const words = name.replace(/_/g, " ");
+    return [words.charAt(0).toUpperCase() + words.slice(1), unit];
   }
   /** A number without float noise: 12 significant digits at most, big ones as × 10ⁿ. */
   function cleanNumber(value) {
@@ -235,14 +254,14 @@ const NMRNotebook = (() => {
     if (typeof value === "boolean") return value ? "yes" : "no";
     if (value === null || value === undefined) return "—";
     if (Array.isArray(value)) return value.map(valueText).join("; ");
-    if (typeof value === "object") return Object.entries(value).map(([k, v]) => `${splitKey(k)[0]} ${valueText(v)}${splitKey(k)[1] ? ` ${splitKey(k)[1]}` : ""}`).join(", ");
+    if (typeof value === "object") return Object.entries(value).map(([k, v]) => `${splitKey(k)[0].toLowerCase()} ${valueText(v)}${splitKey(k)[1] ? ` ${splitKey(k)[1]}` : ""}`).join(", ");
     return String(value);
   }
   /** [label, text] for request key `key` of op `op` (its declared label and unit) or a result key. */
   function labelled(op, key, value) {
     const decl = NMR.param(`${op}.${key}`);
     const [name, unit] = splitKey(key);
-    const label = decl && decl.label ? decl.label : name.charAt(0).toUpperCase() + name.slice(1);
+    const label = decl && decl.label ? decl.label : name;
     const shownUnit = decl ? "" : unit;
     return [label, `${valueText(value)}${shownUnit && typeof value === "number" ? ` ${shownUnit}` : ""}`];
   }
@@ -409,6 +428,28 @@ const NMRNotebook = (() => {
     return { node: bar.node, update: (state) => bar.update(state ? { ...state, inputs: snapshot() } : null) };
   };
 
+  // The latest good result of each pin source, for captions of exported plots.
+  const latest = new Map();
+  /** Caption lines (at most `width` characters each) for a plot inside a card: tool version, the
+   * calculation's title and every input of the result it shows. Empty when the card has no result. */
+  function captionLines(node, width) {
+    for (const [form, state] of latest) {
+      const handle = source(form);
+      if (!handle || !handle.node.contains(node)) continue;
+      const title = handle.node.querySelector("h2");
+      const words = [`nmrcalc ${version()}`, title ? title.textContent : form,
+        ...Object.entries(state.request).filter(([k]) => k !== "op" && k !== "spectrum").map(([k, v]) => labelled(state.request.op, k, v).join(": "))]
+        .join(" · ").split(" ");
+      const lines = [""];
+      for (const word of words) {
+        if (lines[lines.length - 1].length + word.length + 1 > width) lines.push("");
+        lines[lines.length - 1] += (lines[lines.length - 1] ? " " : "") + word;
+      }
+      return lines;
+    }
+    return [`nmrcalc ${version()}`];
+  }
+
   // ---------- the Pin bar under each result ----------
   NMR.pinBar = ({ form }) => {
     const { el } = NMR;
@@ -468,6 +509,8 @@ const NMRNotebook = (() => {
       /** The latest good result {request, result, inputs}, or null after an error. */
       update(next) {
         state = next;
+        if (next) latest.set(form, next);
+        else latest.delete(form);
         pinButton.disabled = !next;
         shareButton.disabled = !next;
         if (!next) linkBox.hidden = true;
@@ -482,5 +525,5 @@ const NMRNotebook = (() => {
   window.addEventListener("beforeprint", stampPrintDate);
   document.addEventListener("DOMContentLoaded", stampPrintDate);
 
-  return { list, add, remove, exportJSON, importJSON, toCSV, shareLink, parseShare, reopen, requestText, NotebookError, inputRows, resultRows, csvCell, csvHeader, cleanNumber, linesCSV, onChange: (fn) => listeners.push(fn) };
+  return { list, add, remove, exportJSON, importJSON, toCSV, shareLink, parseShare, reopen, requestText, NotebookError, inputRows, resultRows, csvCell, csvHeader, cleanNumber, linesCSV, captionLines, onChange: (fn) => listeners.push(fn) };
 })();
