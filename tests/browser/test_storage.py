@@ -220,3 +220,27 @@ def test_svg_caption_print_and_safety(dist, open_page):
     page.click("#tab-about")
     expect(page.locator("#safety-title + ul")).to_contain_text("5 G line (0.5 mT)")
     expect(page.locator("#panel-about")).to_contain_text("file://")
+
+
+def test_undo_after_example_and_stale_on_cleared_field(dist, open_page):
+    rec = open_page((dist / "nmrcalc.html").resolve().as_uri(), offline=True)
+    page = rec.page
+    page.click("#tab-multiplet")
+    page.fill("#mult-g0-J", "21.7")
+    page.locator("#card-mult .preset").first.click()
+    expect(page.locator("#mult-g0-J")).not_to_have_value("21.7")
+    page.click("#undo-replace")
+    expect(page.locator("#mult-g0-J")).to_have_value("21.7")
+    expect(page.locator("#page-notice")).to_contain_text("previous inputs are back")
+
+    # a required field cleared: the old result is marked stale, the message sits beside that field
+    page.click("#tab-energy")
+    page.click("#form-energy button[type=submit]")
+    page.wait_for_function("() => window.nmrcalcStatus.pending === 0")
+    page.fill("#energy-nucleus", "")
+    page.fill("#energy-photon", "")
+    page.click("#form-energy button[type=submit]")
+    page.wait_for_function("() => window.nmrcalcStatus.pending === 0")
+    expect(page.locator("#energy-result")).to_have_class("result stale")
+    expect(page.locator("#energy-nucleus-error")).not_to_be_empty()
+    assert "undefined" not in page.locator("#panel-energy").inner_text()

@@ -246,15 +246,22 @@ const NMRNotebook = (() => {
   function cleanNumber(value) {
     if (!Number.isFinite(value)) return String(value);
     if (Number.isInteger(value) && Math.abs(value) < 1e7) return String(value);
-    return Math.abs(value) >= 1e7 || (value !== 0 && Math.abs(value) < 1e-3) ? NMR.fmt(value, 7) : String(Number(value.toPrecision(7)));
+    if (Math.abs(value) >= 1e7 || (value !== 0 && Math.abs(value) < 1e-3)) return NMR.fmt(value, 7).replace(/\.?0+ ×/, " ×");
+    return String(Number(value.toPrecision(7)));
   }
-  /** Any stored value as text: numbers rounded, lists of rows as "a=1, b=2; a=3, b=4", never JSON. */
-  function valueText(value) {
+  /** Any stored value as text: numbers rounded, lists of rows as "a 1, b 2; a 3, b 4", never JSON.
+   * path ("op.key") names the declaration whose item labels name a row's keys. */
+  function valueText(value, path) {
     if (typeof value === "number") return cleanNumber(value);
     if (typeof value === "boolean") return value ? "yes" : "no";
     if (value === null || value === undefined) return "—";
-    if (Array.isArray(value)) return value.map(valueText).join("; ");
-    if (typeof value === "object") return Object.entries(value).map(([k, v]) => `${splitKey(k)[0].toLowerCase()} ${valueText(v)}${splitKey(k)[1] ? ` ${splitKey(k)[1]}` : ""}`).join(", ");
+    if (Array.isArray(value)) return value.map((v) => valueText(v, path)).join("; ");
+    if (typeof value === "object") {
+      return Object.entries(value).map(([k, v]) => {
+        const decl = path ? NMR.param(`${path}.${k}`) : null;
+        return `${decl && decl.label ? decl.label.toLowerCase() : k.replace(/_/g, " ")} ${valueText(v, path ? `${path}.${k}` : null)}`;
+      }).join(", ");
+    }
     return String(value);
   }
   /** [label, text] for request key `key` of op `op` (its declared label and unit) or a result key. */
@@ -263,7 +270,7 @@ const NMRNotebook = (() => {
     const [name, unit] = splitKey(key);
     const label = decl && decl.label ? decl.label : name;
     const shownUnit = decl ? "" : unit;
-    return [label, `${valueText(value)}${shownUnit && typeof value === "number" ? ` ${shownUnit}` : ""}`];
+    return [label, `${valueText(value, decl ? `${op}.${key}` : null)}${shownUnit && typeof value === "number" ? ` ${shownUnit}` : ""}`];
   }
   const inputRows = (pin) => Object.entries(pin.request).filter(([k]) => k !== "op").map(([k, v]) => labelled(pin.op, k, v));
   const resultRows = (pin) => Object.entries(pin.summary).map(([k, v]) => labelled(pin.op, k, v));
@@ -371,13 +378,33 @@ const NMRNotebook = (() => {
       NMR.notice(`This pin could not be re-opened: ${err.message}.`, "error");
       return false;
     }
-    show(entry.panel, handle, entry.inputs);
+    show(entry.panel, handle, entry.inputs, entry.what);
     return true;
   }
 
-  function show(panel, handle, inputs) {
+  /** Replace the inputs of pin source `handle` by replace(), offering one-step undo of what was typed
+   * (a notice with an Undo button that puts the previous inputs back and computes them). */
+  function withUndo(handle, what, replace) {
+    const before = handle.snapshot();
+    replace();
+    NMR.notice(`${what} replaced the inputs of “${handle.node.querySelector("h2") ? handle.node.querySelector("h2").textContent : handle.id}”.`, "info");
+    const undo = NMR.el("button", { type: "button", class: "small-button", id: "undo-replace" }, "Undo");
+    undo.addEventListener("click", () => {
+      handle.setInputs(before);
+      NMR.ready.then(() => handle.run());
+      NMR.notice("The previous inputs are back.", "info");
+    });
+    document.getElementById("page-notice").append(" ", undo);
+  }
+  NMR.withUndo = (formId, what, replace) => {
+    const handle = source(formId);
+    if (handle) withUndo(handle, what, replace);
+    else replace();
+  };
+
+  function show(panel, handle, inputs, what) {
     NMR.selectTab(panel);
-    handle.setInputs(inputs);
+    withUndo(handle, what || "Re-opening a pin", () => handle.setInputs(inputs));
     // The request is rebuilt from the restored fields (never the stored one), so what is shown beside
     // the inputs is what they compute; after the panel's own first calculation (queued on ready earlier).
     NMR.ready.then(() => handle.run());
@@ -389,7 +416,7 @@ const NMRNotebook = (() => {
   NMR.openInputs = (panel, form, inputs) => {
     const handle = source(form);
     if (!handle || !NMR.panelIds().includes(panel)) return false;
-    show(panel, handle, inputs);
+    show(panel, handle, inputs, "Opening it here");
     return true;
   };
 
@@ -397,8 +424,7 @@ const NMRNotebook = (() => {
     if (!hash || !hash.startsWith("#calc=")) return;
     try {
       const entry = parseShare(hash);
-      reopen(entry);
-      NMR.notice(`Opened a shared calculation (${entry.request.op}) in “${entry.panel}”. It is computed here, offline.`, "info");
+      reopen({ ...entry, what: `A shared link (${entry.request.op}, computed here, offline)` });
     } catch (err) {
       const reason = err instanceof NotebookError ? err.message : "it could not be read";
       NMR.notice(`This link's calculation could not be opened: ${reason}. The page works as usual.`, "error");

@@ -372,7 +372,7 @@ NMR.registerPanel({
 
     for (const preset of PRESETS) {
       const button = el("button", { type: "button", class: "preset" }, preset.name);
-      button.addEventListener("click", () => {
+      button.addEventListener("click", () => NMR.withUndo("mult", `The example “${preset.name}”`, () => {
         for (const [id, value] of Object.entries(preset.fixed)) {
           const f = fixed[id];
           if (Array.isArray(value)) {
@@ -387,7 +387,7 @@ NMR.registerPanel({
         save();
         drawRows();
         run();
-      });
+      }));
       presetBar.append(button);
     }
     drawRows();
