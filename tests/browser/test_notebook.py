@@ -58,7 +58,7 @@ def test_notebook_and_crash_recovery(dist, open_page, tmp_path):
     page.click("#tab-notebook")
     pins = page.locator("#notebook-pins > li")
     expect(pins).to_have_count(2)
-    expect(pins.nth(0).locator("h3")).to_contain_text("frequency")
+    expect(pins.nth(0).locator("h3")).to_contain_text("One nucleus")  # the card's title, not the op name
     expect(pins.nth(1).locator(".pin-note-text")).to_have_text(HOSTILE_NOTE)
     assert page.locator("#notebook-pins img, main img").count() == 0
     expect(pins.nth(1).locator(".pin-results")).not_to_contain_text("J_Hz")  # labels, not API keys

@@ -149,9 +149,9 @@ def test_pins_and_csv_are_fileable(dist, open_page):
     assert rows[0]["note"] == "'-5 =cmd @x"
     for row in rows:
         for cell in row.values():
-            assert not cell or cell[0] not in "=+-@\t\r", cell
-    guards = page.evaluate("['=1', '+1', '-1', '@a', '\\t1', '\\r1', '1'].map((c) => NMRNotebook.csvCell(c))")
-    assert guards == ["'=1", "'+1", "'-1", "'@a", "'\t1", "\"'\r1\"", "1"]
+            assert not cell or cell[0] not in "=+-@\t\r" or cell.lstrip("-+").replace(".", "", 1).isdigit(), cell
+    guards = page.evaluate("['=1', '+1+A1', '-1+cmd', '@a', '\\t1', '\\r1', '1', '-57.9'].map((c) => NMRNotebook.csvCell(c))")
+    assert guards == ["'=1", "'+1+A1", "'-1+cmd", "'@a", "'\t1", "\"'\r1\"", "1", "-57.9"]
     assert page.evaluate("NMRNotebook.cleanNumber(-57.900000000000006)") == "-57.9"
 
 

@@ -398,7 +398,16 @@ const NMR = (() => {
     formNode.append(grid);
     const formError = el("p", { class: "form-error", id: `${spec.id}-form-error`, "aria-live": "polite" });
     const button = el("button", { type: "submit", class: "primary" }, spec.submitLabel || "Calculate");
-    formNode.append(el("div", { class: "actions" }, button, formError));
+    // long work: after 250 ms a Cancel button (ends the worker; calls queue for the fresh one)
+    const cancelButton = el("button", { type: "button", class: "small-button" }, "Cancel");
+    const busy = el("div", { class: "busy", id: `${spec.id}-busy`, hidden: true, role: "status" }, el("span", {}, "Calculating…"), cancelButton);
+    cancelButton.addEventListener("click", () => {
+      sequence += 1;
+      busy.hidden = true;
+      cancel();
+      formError.textContent = "Cancelled. Change an input or press the button to try again.";
+    });
+    formNode.append(el("div", { class: "actions" }, button, formError), busy);
     const out = el("div", { class: "result", id: `${spec.id}-result`, "aria-live": "polite" });
     const warn = el("ul", { class: "warnings", id: `${spec.id}-warnings` });
     section.append(formNode, out, warn);
@@ -412,8 +421,11 @@ const NMR = (() => {
       for (const f of fields) values[f.field.id] = f.read();
       const request = override || spec.request(values);
       const mine = ++sequence;
+      const busyTimer = setTimeout(() => { busy.hidden = false; }, 250);
       const response = await api(request);
+      clearTimeout(busyTimer);
       if (mine !== sequence) return;
+      busy.hidden = true;
       for (const f of fields) f.setError("");
       formError.textContent = "";
       warn.replaceChildren();

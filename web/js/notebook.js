@@ -275,11 +275,12 @@ const NMRNotebook = (() => {
   const inputRows = (pin) => Object.entries(pin.request).filter(([k]) => k !== "op").map(([k, v]) => labelled(pin.op, k, v));
   const resultRows = (pin) => Object.entries(pin.summary).map(([k, v]) => labelled(pin.op, k, v));
 
-  // CSV (RFC 4180 quoting). Every cell starting with = + - @ tab or CR gets a leading ' so a
+  // CSV (RFC 4180 quoting). Every cell (but a plain number) starting with = + - @ tab or CR gets a leading ' so a
   // spreadsheet shows it as text rather than running it as a formula.
   function csvCell(value) {
     let text = value === null || value === undefined ? "" : String(value);
-    if (/^[=+\-@\t\r]/.test(text)) text = `'${text}`;
+    const plainNumber = /^[-+]?\d+(\.\d+)?(e[-+]?\d+)?$/i.test(text);  // -57.9 stays a number
+    if (!plainNumber && /^[=+\-@\t\r]/.test(text)) text = `'${text}`;
     return /[",\r\n]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text;
   }
 
