@@ -19,7 +19,11 @@ page figures are timed in the page with performance.now around NMR.api, worker r
   all-coupled system within 5 s in the page, and chains with equivalence factoring on and off;
 * identify: the pattern finder on a 20-line multiplet, page and CPython.
 
-Usage: python build_scripts/benchmark.py [--runs N] [--only page|latency|multiplets|spins|identify|summary]
+Engines section (chromium, firefox-esr, WebKitGTK's MiniBrowser under Xvfb; see tests/browser/conftest.py):
+* per engine, one run each: bare Pyodide boot, first result of both builds as ratios to it;
+* Python's wasm memory after each panel (reported by the worker with every reply).
+
+Usage: python build_scripts/benchmark.py [--runs N] [--only page|engines|latency|multiplets|spins|identify|summary]
 """
 
 from __future__ import annotations
@@ -94,6 +98,8 @@ class Bench:
         return self._browser
 
     def close(self):
+        if getattr(self, "_firefox", None) is not None:
+            self._firefox.close()
         if self._browser is not None:
             self._browser.close()
             self._playwright.stop()
@@ -488,6 +494,170 @@ def identify_section(bench: Bench) -> list:
         ["where", "time s", "ratio"], [["page (identify op)", page, page / local], ["CPython (identify op)", local, 1.0]])
 
 
+class _EngineDriver:
+    """One engine for the engines section: open(url), js(body), close(); chromium and firefox through
+    Playwright, WebKit (WebKitGTK's MiniBrowser) through selenium under a private Xvfb display."""
+
+    def __init__(self, bench: Bench, engine: str):
+        self.engine, self.page, self.session, self.processes = engine, None, None, []
+        if engine == "webkit":
+            import socket
+
+            from selenium import webdriver
+            from selenium.webdriver.webkitgtk.options import Options
+
+            display = ":" + str(next(n for n in range(93, 200) if not Path(f"/tmp/.X{n}-lock").exists()))
+            with socket.socket() as probe:
+                probe.bind(("127.0.0.1", 0))
+                port = probe.getsockname()[1]
+            self.processes.append(subprocess.Popen(["Xvfb", display, "-screen", "0", "1280x1024x24", "-nolisten", "tcp"],
+                                                   stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL))
+            self.processes.append(subprocess.Popen(["WebKitWebDriver", f"--port={port}"], env={**os.environ, "DISPLAY": display},
+                                                   stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL))
+            time.sleep(2)
+            options = Options()
+            options.binary_location = str(sorted(Path("/usr/lib").glob("*/webkit2gtk-4.1/MiniBrowser"))[0])
+            options.add_argument("--automation")
+            self.options, self.url = options, f"http://127.0.0.1:{port}"
+            self._new = lambda: webdriver.Remote(command_executor=self.url, options=self.options)
+        else:
+            bench.browser()  # starts Playwright
+            if engine == "firefox":
+                if getattr(bench, "_firefox", None) is None:
+                    bench._firefox = bench._playwright.firefox.launch(
+                        channel="moz-firefox", executable_path=shutil.which("firefox-esr"), headless=True)
+                self.browser = bench._firefox
+            else:
+                self.browser = bench.browser()
+
+    def open(self, url: str):
+        self.close_page()
+        if self.engine == "webkit":
+            self.session = self._new()
+            self.session.get(url)
+        else:
+            self.context = self.browser.new_context()
+            self.page = self.context.new_page()
+            self.page.goto(url)
+
+    def js(self, body: str):
+        if self.engine == "webkit":
+            return self.session.execute_script(body)
+        return self.page.evaluate(f"() => {{ {body} }}")
+
+    def close_page(self):
+        if self.session is not None:
+            self.session.quit()
+            self.session = None
+        if self.page is not None:
+            self.context.close()
+            self.page = None
+
+    def close(self):
+        self.close_page()
+        for process in self.processes:
+            process.terminate()
+            process.wait(timeout=10)
+
+
+def _engine_time(driver: _EngineDriver, url: str, expression: str, timeout_s: float = 180) -> float:
+    driver.open(url)
+    deadline = time.monotonic() + timeout_s
+    while time.monotonic() < deadline:
+        value = driver.js(f"return {expression}")
+        if isinstance(value, (int, float)):
+            return float(value)
+        time.sleep(0.1)
+    raise TimeoutError(f"{driver.engine} {url}: {expression} not set within {timeout_s} s")
+
+
+IDLE_JS = "window.nmrcalcStatus.pending === 0 && [...document.querySelectorAll('.busy')].every(b => b.hidden)"
+
+
+def _wait_js(driver: _EngineDriver, expression: str, timeout_s: float = 120) -> None:
+    deadline = time.monotonic() + timeout_s
+    while not driver.js(f"return {expression}"):
+        if time.monotonic() > deadline:
+            raise TimeoutError(f"{expression} not true within {timeout_s} s")
+        time.sleep(0.1)
+
+
+def _memory_per_panel(driver: _EngineDriver, url: str) -> list:
+    """Python's wasm memory after each panel's examples are computed, in walk order (it only grows,
+    so each figure is the peak so far; the first panel's includes the boot)."""
+    driver.open(url)
+    _wait_js(driver, "window.nmrcalcStatus && window.nmrcalcStatus.state === 'ready'")
+    rows = []
+    for tab, panel in driver.js("return [...document.querySelectorAll('[role=tab]')].map(t => [t.id, t.getAttribute('aria-controls')])"):
+        count = driver.js(f"""document.getElementById('{tab}').click();
+            const p = document.getElementById('{panel}'); const preset = p.querySelector('.preset'); if (preset) preset.click();
+            return p.querySelectorAll('form button[type=submit]').length""")
+        _wait_js(driver, IDLE_JS)
+        for index in range(count):
+            driver.js(f"document.getElementById('{panel}').querySelectorAll('form button[type=submit]')[{index}].click()")
+            time.sleep(0.05)
+            _wait_js(driver, IDLE_JS)
+        rows.append((f"wasm memory after the {tab.removeprefix('tab-')} panel", (driver.js("return window.nmrcalcStatus.wasmBytes") or 0) / 2**20, "MiB"))
+    return rows
+
+
+def engines_section(bench: Bench) -> list:
+    """Per engine, one run: bare Pyodide boot, and the first result of each build, as ratios to it;
+    then Python's wasm memory per panel (Chromium; the wasm and so its memory are the same in every engine)."""
+    dist = ROOT / "dist"
+    if build_web.main(["--out", str(dist)]) != 0:
+        raise SystemExit("build failed")
+    rows = ["  one run per engine (not a median): boots vary by a tenth or more on this machine"]
+    memory: list = []
+    tmp_root = ROOT / "bench_results" / "tmp"
+    tmp_root.mkdir(parents=True, exist_ok=True)
+    with tempfile.TemporaryDirectory(dir=tmp_root) as tmp:
+        bare = Path(tmp)
+        for name in build_web.CORE_FILES:
+            shutil.copyfile(build_web.PYODIDE_DIR / name, bare / name)
+        (bare / "index.html").write_text(BARE_PAGE)
+        with serve(bare) as bare_url, serve(dist / "site") as site_url:
+            for engine in ("chromium", "firefox", "webkit"):
+                driver = _EngineDriver(bench, engine)
+                try:
+                    bare_ms = _engine_time(driver, bare_url + "index.html", "window.bareBootMs")
+                    single_ms = _engine_time(driver, (dist / "nmrcalc.html").resolve().as_uri(), FIRST_RESULT)
+                    site_ms = _engine_time(driver, site_url + "index.html", FIRST_RESULT)
+                    rows += [(f"{engine}: bare Pyodide boot", bare_ms / 1000, "s"),
+                             (f"{engine}: single file first result / bare boot", single_ms / bare_ms, "x"),
+                             (f"{engine}: folder build first result / bare boot", site_ms / bare_ms, "x")]
+                    if engine == "chromium":
+                        memory = _memory_per_panel(driver, site_url + "index.html")
+                except Exception as exc:  # one engine that fails must not hide the others
+                    rows.append(f"  {engine}: FAILED: {type(exc).__name__}: {exc}")
+                finally:
+                    driver.close()
+    return rows + ["  Python's wasm memory (peak so far; the walk runs each panel's first example and buttons):"] + memory
+
+
+def _big_spectrum_text(n: int = 262_144) -> str:
+    """An invented 256k-point 1H spectrum (Lorentzians on noise) as JCAMP-DX DIFDUP, by the tests' writer."""
+    import random
+    sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "tests"))
+    from jcamp_writer import write_xydata
+    rng = random.Random(5)
+    centres = [n * f for f in (0.1, 0.3, 0.31, 0.55, 0.8)]
+    ys = [round(sum(20000 / (1 + ((k - c) / 3) ** 2) for c in centres)) + rng.randint(-20, 20) for k in range(n)]
+    return write_xydata(ys, "DIFDUP", first_x=6000.0, last_x=-1000.0, x_factor=7000.0 / (n - 1), per_line=72)
+
+
+def spectrum_section(bench: Bench) -> list:
+    """read_spectrum of a 256k-point JCAMP-DX file (DIFDUP), in the page and on CPython."""
+    request = {"op": "read_spectrum", "text": _big_spectrum_text(), "filename": "invented-256k.jdx"}
+    n = max(3, bench.runs)
+    page = statistics.median(page_times(bench, request, n)) / 1000
+    local = statistics.median(cpython_times(_handled(request), n)) / 1000
+    _target(bench, "256k-point JCAMP-DX spectrum read in the page, median", page, 1.0, "s")
+    return [f"  {len(request['text']) / 1e6:.2f} MB of text, 262144 points, median of {n}"] + _table(
+        ["where", "time s", "ratio"], [["page (read_spectrum op)", page, page / local],
+                                       ["CPython (read_spectrum op)", local, 1.0]])
+
+
 def summary_section(bench: Bench) -> list:
     """Each speed target collected by the sections run before, with PASS or MISS (a report only)."""
     targets = bench.__dict__.get("targets", [])
@@ -499,8 +669,9 @@ def summary_section(bench: Bench) -> list:
                    for text, value, limit, unit, at_most in targets])
 
 
-SECTIONS = {"page": page_section, "latency": latency_section, "multiplets": multiplet_section,
-            "spins": spin_section, "identify": identify_section, "summary": summary_section}
+SECTIONS = {"page": page_section, "engines": engines_section, "latency": latency_section, "multiplets": multiplet_section,
+            "spins": spin_section, "identify": identify_section, "spectrum": spectrum_section,
+            "summary": summary_section}
 
 
 def main(argv: list[str] | None = None) -> int:

@@ -38,6 +38,7 @@ APP_ZIP = "/home/pyodide/nmrcalc.zip"  # where web/worker.js puts nmrcalc.zip (i
 
 # Content-Security-Policy, set by <meta> (a static host or file:// gives no headers).
 # Site: only the site's own files, plus the inline worker starter (web/boot.js) by its sha256 hash;
+# img-src data: because the PNG plot export draws the plot's SVG, as a data: URL, into a canvas;
 # 'wasm-unsafe-eval' is needed to compile Pyodide's wasm.
 # Single file: inline style and script allowed by sha256 hash only; the worker and the two
 # Pyodide JS modules must be data: URLs (a file:// page has an opaque origin, so blob: module

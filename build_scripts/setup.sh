@@ -1,7 +1,7 @@
 #!/usr/bin/env bash
 # Set up everything nmrcalc needs on a fresh machine: a venv with the package
 # (and, with --test, the test extras), the npm packages from package-lock.json,
-# and Debian's chromium for the browser tests.  Safe to run again.
+# and Debian's browsers for the browser tests.  Safe to run again.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 want_tests=0
@@ -21,12 +21,23 @@ if [ -f package-lock.json ]; then
   npm ci --no-audit --no-fund --loglevel=error
 fi
 
-if [ "$want_tests" = 1 ] && ! command -v chromium >/dev/null; then
-  if [ "$(id -u)" = 0 ]; then
-    echo "Installing Debian's chromium for the browser tests…"
-    apt-get update -qq && DEBIAN_FRONTEND=noninteractive apt-get install -y -qq chromium >/dev/null
-  else
-    echo "The browser tests need Debian's chromium: run 'sudo apt-get install chromium' and try again."
-    exit 1
+# The browser tests drive three engines, all from Debian: chromium (Blink) and
+# firefox-esr (Gecko) through Playwright, and WebKitGTK's MiniBrowser through its
+# WebDriver under a virtual X display (xvfb).
+if [ "$want_tests" = 1 ]; then
+  missing=()
+  command -v chromium >/dev/null || missing+=(chromium)
+  command -v firefox-esr >/dev/null || missing+=(firefox-esr)
+  command -v WebKitWebDriver >/dev/null || missing+=(webkit2gtk-driver)
+  ls /usr/lib/*/webkit2gtk-4.1/MiniBrowser >/dev/null 2>&1 || missing+=(libwebkit2gtk-4.1-0)
+  command -v Xvfb >/dev/null || missing+=(xvfb)
+  if [ "${#missing[@]}" -gt 0 ]; then
+    if [ "$(id -u)" = 0 ]; then
+      echo "Installing Debian's ${missing[*]} for the browser tests…"
+      apt-get update -qq && DEBIAN_FRONTEND=noninteractive apt-get install -y -qq "${missing[@]}" >/dev/null
+    else
+      echo "The browser tests need Debian's ${missing[*]}: run 'sudo apt-get install ${missing[*]}' and try again."
+      exit 1
+    fi
   fi
 fi

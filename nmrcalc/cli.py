@@ -258,8 +258,37 @@ def render_identify(response: dict) -> str:
     return "\n".join(out)
 
 
+# ---- measured spectra (spectrum helper's block; the lead folds it into the derived CLI) ----
+
+def render_spectrum(response: dict) -> str:
+    """``spectrum FILE``: what was read and checked, then the peaks picked at 5 σ (not every point)."""
+    r = response["result"]
+    out = [f"title: {r['title']}", f"nucleus: {_fmt(r['nucleus'])}; observe: {_fmt(r['observe_MHz'])} MHz",
+           f"{r['npoints']} points, x from {_fmt(r['first_x'])} to {_fmt(r['last_x'])} {r['x_unit']}"]
+    if "first_ppm" in r:
+        out.append(f"ppm scale: {_fmt(r['first_ppm'])} to {_fmt(r['last_ppm'])}")
+    out += [f"checked: {c}" for c in r["checks"]]
+    if r["y"]:
+        picked = handle({"op": "pick_peaks", "first_x": r["first_x"], "last_x": r["last_x"], "x_unit": r["x_unit"],
+                         "y": r["y"], **({"observe_MHz": r["observe_MHz"]} if r["observe_MHz"] else {})})
+        if picked["ok"]:
+            p = picked["result"]
+            out.append(f"peaks above 5 σ (noise σ = {p['noise']:.4g}): {len(p['peaks'])}")
+            out.append(f"  position ({r['x_unit']})  height        width (Hz)  integral")
+            out += [f"  {q['position']:<14.6g} {q['height']:<13.6g} {q['width_Hz']:<11.3g} {q['integral']:.6g}"
+                    for q in p["peaks"]]
+        else:
+            out.append(f"peaks: {render_error(picked)}")
+    else:
+        out.append("  position        height")
+        out += [f"  {q['position']:<14.6g} {q['height']:.6g}" for q in r.get("peaks", [])]
+    out += [f"note: {w}" for w in response["warnings"]]
+    return "\n".join(out)
+
+
 # ops with a text form of their own
-RENDER = {"multiplet": render_multiplet, "spin_system": render_spin_system, "identify": render_identify}
+RENDER = {"multiplet": render_multiplet, "spin_system": render_spin_system, "identify": render_identify,
+          "read_spectrum": render_spectrum}
 
 
 DEMO = [

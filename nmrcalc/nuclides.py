@@ -13,8 +13,7 @@ from fractions import Fraction
 from typing import NamedTuple
 
 from nmrcalc.data.elements import NAME_OF_SYMBOL, SYMBOL_OF_NAME, Z_OF_SYMBOL
-from nmrcalc.data.nuclide_table import (
-    BIOMOLECULAR_XI, NUCLIDE_TABLE, RADIOACTIVE, SPIN_ZERO_TABLE)
+from nmrcalc.data.nuclide_table import BIOMOLECULAR_XI, NUCLIDE_TABLE, RADIOACTIVE, SPIN_ZERO_TABLE
 from nmrcalc.errors import InputError
 
 
@@ -32,6 +31,8 @@ class Nuclide(NamedTuple):
     xi_percent: float | None
     reference: str | None
     radioactive: bool
+    gamma_precision: float = 0.0     # one unit in the last tabulated digit of γ, relative to γ
+    xi_precision: float = 0.0        # the same for Ξ
 
     @property
     def magnetic(self) -> bool:
@@ -67,8 +68,16 @@ def _parse_magnetic(text: str) -> dict[str, Nuclide]:
             abundance_percent=None if ab == "-" else float(ab),
             quadrupole_fm2=None if q == "-" else float(q),
             xi_percent=None if xi == "-" else float(xi),
-            reference=_opt(reference), radioactive=sym in RADIOACTIVE)
+            reference=_opt(reference), radioactive=sym in RADIOACTIVE,
+            gamma_precision=_last_digit(gamma) / abs(float(gamma)),
+            xi_precision=0.0 if xi == "-" else _last_digit(xi) / float(xi))
     return table
+
+
+def _last_digit(number: str) -> float:
+    """Value of one unit in the last written digit: "5.8385" → 1e-4, "100" → 1."""
+    _, _, decimals = number.partition(".")
+    return 10.0 ** -len(decimals)
 
 
 def _parse_spin_zero(text: str) -> dict[str, Nuclide]:
@@ -100,7 +109,14 @@ MAGNETIC: dict[str, Nuclide] = _parse_magnetic(NUCLIDE_TABLE)
 ALL: dict[str, Nuclide] = {**MAGNETIC, **_parse_spin_zero(SPIN_ZERO_TABLE)}
 BIOMOLECULAR: dict[str, tuple[float, str]] = _parse_biomolecular(BIOMOLECULAR_XI)
 _SYMBOL_OF_LOWER = {s.lower(): s for s in Z_OF_SYMBOL}
-_ALIASES = {"d": "2H", "t": "3H", "proton": "1H", "deuterium": "2H", "tritium": "3H"}
+_ALIASES = {"d": "2H", "t": "3H", "proton": "1H", "deuterium": "2H", "tritium": "3H", "deuteron": "2H",
+            "triton": "3H"}
+# Where one nuclide is meant, an element with one isotope chemists observe names it ("H" → 1H).
+_ONE_NUCLIDE_OF = {"H": "1H"}
+# Other spellings of element names in common use (IUPAC lists these as acceptable variants).
+_OTHER_NAMES = {"aluminum": "Al", "cesium": "Cs", "sulphur": "S"}
+_SUPERSCRIPTS = str.maketrans("⁰¹²³⁴⁵⁶⁷⁸⁹", "0123456789")
+MAX_QUERY = 40  # longest text read as a nuclide name or a search
 _H_RAW = MAGNETIC["1H"].receptivity_raw()
 _C_RAW = MAGNETIC["13C"].receptivity_raw()
 
@@ -115,12 +131,12 @@ def receptivity(nuc: Nuclide, relative_to: str = "1H", abundance_percent: float 
 
 def _element_symbol(word: str) -> str | None:
     w = word.lower()
-    return _SYMBOL_OF_LOWER.get(w) or SYMBOL_OF_NAME.get(w)
+    return _SYMBOL_OF_LOWER.get(w) or SYMBOL_OF_NAME.get(w) or _OTHER_NAMES.get(w)
 
 
 def _normalise(query: str) -> tuple[int | None, str | None]:
     """Split a query into (mass number, element symbol); either may be None."""
-    q = query.strip().replace("^", "")
+    q = query.strip().translate(_SUPERSCRIPTS).replace("^", "")
     q = re.sub(r"[\s\-_]+", "", q)
     for pattern, a_group, el_group in ((r"(\d+)([A-Za-z]+)", 1, 2), (r"([A-Za-z]+)(\d+)", 2, 1)):
         m = re.fullmatch(pattern, q)
@@ -145,15 +161,21 @@ def element_of(query: str) -> str | None:
 
 
 def lookup(query: str, field: str = "nucleus") -> Nuclide:
-    """Find a nuclide by ``13C``, ``C13``, ``C-13``, ``carbon-13``, ``13c``, ``D``, ``T``."""
+    """Find a nuclide by ``13C``, ``C13``, ``C-13``, ``carbon-13``, ``¹³C``, ``13c``, ``D``/``deuterium``,
+    ``T``/``tritium``, ``H``/``proton`` (1H)."""
     if not isinstance(query, str) or not query.strip():
         raise InputError("Give a nuclide such as 13C, 2H or 195Pt.", field, "missing_field")
+    if len(query) > MAX_QUERY:
+        raise InputError(f"A nuclide name is at most {MAX_QUERY} characters (13C, N-15, nitrogen-15).",
+                         field, "too_large")
     alias = _ALIASES.get(query.strip().lower())
     if alias:
         return ALL[alias]
     a, el = _normalise(query)
     if el is not None and a is not None and f"{a}{el}" in ALL:
         return ALL[f"{a}{el}"]
+    if a is None and el in _ONE_NUCLIDE_OF:
+        return ALL[_ONE_NUCLIDE_OF[el]]
     if el is not None:
         known = ", ".join(n.symbol for n in isotopes_of(el)) or "none"
         what = f"{a}{el} is not in the table" if a is not None else f"{el} ({NAME_OF_SYMBOL.get(el, el)}) is an element, not one isotope"
@@ -171,3 +193,37 @@ def lookup_magnetic(query: str, field: str = "nucleus") -> Nuclide:
     if not nuc.magnetic:
         raise InputError(f"{nuc.symbol} has spin 0: no NMR signal and no splitting.", field, "not_magnetic")
     return nuc
+
+
+def search(text: str, field: str = "search") -> list[Nuclide]:
+    """Nuclides matching ``text``, best first: the nuclide it names exactly (13C, N-15, ¹⁵N, D),
+    then isotopes of the element it names by symbol or full name, or of that mass number ("15"),
+    then elements whose name begins with it (3 letters or more).  Reference compounds are not
+    searched ("Sn" must not find CsNO3)."""
+    if not isinstance(text, str):
+        raise InputError("'search' must be text.", field)
+    if len(text) > MAX_QUERY:
+        raise InputError(f"{field}: a search is at most {MAX_QUERY} characters ({len(text)} given).",
+                         field, "too_large")
+    q = text.strip()
+    if not q:
+        return list(ALL.values())
+    ranked: list[Nuclide] = []
+    try:
+        ranked.append(lookup(q, field))
+    except InputError:
+        pass
+    a, el = _normalise(q)
+    word = re.sub(r"[\s\-_]+", "", q.lower())
+    if el is not None:
+        ranked += isotopes_of(el)
+    elif a is not None or word.isdigit():
+        mass = a if a is not None else int(word)
+        ranked += [n for n in ALL.values() if n.A == mass]
+    if len(word) >= 3 and word.isalpha():
+        ranked += sorted((n for n in ALL.values() if NAME_OF_SYMBOL.get(n.element, "").startswith(word)),
+                         key=lambda n: (n.Z, n.A))
+    seen: dict[str, Nuclide] = {}
+    for n in ranked:
+        seen.setdefault(n.symbol, n)
+    return list(seen.values())

@@ -32,7 +32,9 @@ def test_xi_route_is_xi_times_proton_frequency():
     # IUPAC 2001 eq. 8: ν_X = Ξ_X/100 × ν_H(TMS)
     r = ok({"op": "frequency", "nucleus": "31P", "spectrometer": "400.13 MHz"})
     assert math.isclose(r["reference_MHz"], 40.480742 / 100 * 400.13, rel_tol=1e-12)
-    assert math.isclose(r["difference_ppm"], (r["reference_MHz"] / r["larmor_MHz"] - 1) * 1e6)
+    # rounded to the precision of the tabulated γ (31P: 10.8394, 6 significant figures → ±9 ppm, step 1 ppm)
+    assert abs(r["difference_ppm"] - (r["reference_MHz"] / r["larmor_MHz"] - 1) * 1e6) <= 0.5
+    assert r["difference_decimals"] == 0 and 9 < r["difference_precision_ppm"] < 10
 
 
 def test_field_units_agree():
@@ -75,7 +77,9 @@ def test_scale_cd_to_ch():
     assert any("estimate" in w for w in r["warnings"])
     # reduced coupling K = 4π² J / (h γ_C γ_D) (IUPAC 2001): isotope independent
     k_h = ok({"op": "scale_coupling", "J": r["result"]["J_Hz"], "from": "1H", "to": "1H", "partner": "13C"})["reduced_coupling"]
-    assert math.isclose(r["result"]["reduced_coupling"], k_h, rel_tol=1e-12)
+    # J was scaled with Ξ(1H)/Ξ(2H) (same reference compound), which agrees with the γ ratio in K to < 1 ppm
+    assert r["result"]["ratio_source"] == "xi"
+    assert math.isclose(r["result"]["reduced_coupling"], k_h, rel_tol=1e-6)
     assert 6e20 < k_h < 8e20  # from memory: 1K(C,H) ≈ 7e20 N A^-2 m^-3
 
 
@@ -83,7 +87,10 @@ def test_sign_flips_for_negative_gamma():
     # IUPAC 2001: γ(15N) < 0 < γ(14N), so J(15N,H) = J(14N,H) × γ15/γ14 changes sign
     r = handle({"op": "scale_coupling", "J": "52 Hz", "from": "14N", "to": "15N"})
     assert r["ok"] and r["result"]["J_Hz"] < 0 and r["result"]["sign_flipped"]
-    assert math.isclose(r["result"]["J_Hz"], 52 * -2.71261804 / 1.9337792, rel_tol=1e-12)
+    # both on CH3NO2, so the magnitude is Ξ(15N)/Ξ(14N) (IUPAC 2001: 10.136767 / 7.226317), the sign γ's
+    assert math.isclose(r["result"]["J_Hz"], -52 * 10.136767 / 7.226317, rel_tol=1e-12)
+    assert r["result"]["ratio_source"] == "xi"
+    assert math.isclose(r["result"]["J_Hz"], 52 * -2.71261804 / 1.9337792, rel_tol=5e-6)  # γ ratio agrees
 
 
 @pytest.mark.parametrize("a,b", [("10B", "11B"), ("117Sn", "119Sn"), ("107Ag", "109Ag"), ("6Li", "7Li")])
@@ -129,4 +136,4 @@ def test_sensitivity():
     assert abs(r["receptivity"] - 0.0225) < 0.0005 and 1900 < r["time_factor"] < 2100
     # receptivity scales linearly with abundance (definition of D)
     e = ok({"op": "sensitivity", "nucleus": "15N", "relative_to": "13C", "enrichment_percent": 98})
-    assert math.isclose(e["receptivity"] / r["receptivity"], 98 / 0.364, rel_tol=1e-12)
+    assert math.isclose(e["receptivity"] / r["receptivity"], 98 / 0.368, rel_tol=1e-12)

@@ -216,7 +216,13 @@ def test_seeded_round_trips_with_coinciding_lines(capsys):
     assert len(failures) <= 0.2 * cases
 
 
-def test_benchmark_cases_run():
-    from nmrcalc.physics.identify import benchmark_cases
-    for name, case in benchmark_cases():
-        assert case().candidates, name
+
+def test_work_budget_is_counted_not_timed():
+    # the budget counts steps, so the same budget stops at the same place on any machine
+    lines = [(x, y) for x, y in normalized(multiplet([(F(1, 2), 1, 35.6), (F(1, 2), 2, 11.7),
+                                                        (F(1, 2), 3, 3.1)]))]
+    first = identify(lines, 0.5, work_budget=3000)
+    again = identify(lines, 0.5, work_budget=3000)
+    assert not first.complete and first.evaluated == again.evaluated
+    assert any("3000 steps" in n for n in first.notes)
+    assert identify(lines, 0.5, work_budget=10 ** 6).complete

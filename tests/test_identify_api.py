@@ -146,3 +146,49 @@ def test_peaklist_never_drops_a_data_line_and_catches_decimal_commas():
     with pytest.raises(InputError, match=r"did you mean 1\.5\?"):
         parse_peaklist("1,5 100\n1,6 50")
     assert [p[1] for p in parse_peaklist("7.26, 100\n7.20, 50").peaks] == [7.26, 7.20]  # comma-space CSV is fine
+
+
+def _labels(req):
+    r = handle({"op": "identify", **req})
+    assert r["ok"], r
+    return r["result"]
+
+
+def test_spin_half_preferred_on_1H():
+    # four equal, evenly spaced lines: a dd with J1 = 2 J2 before a spin-3/2 quartet (common practice,
+    # no source: couplings in 1H spectra are almost always to spin-1/2 nuclei)
+    r = _labels({"lines": [[-15, 1], [-5, 1], [5, 1], [15, 1]], "observe": "1H"})
+    assert r["candidates"][0]["label"] == "dd"
+    assert all(g.get("spin") == "1/2" for c in r["candidates"] for g in c["groups"])
+
+
+def test_quadrupolar_only_when_intensities_demand():
+    # 1:1:1 cannot be spin-1/2 (Pascal's triangle gives 1:2:1): the spin-1 triplet is offered and wins
+    r = _labels({"lines": [[-50, 1], [0, 1], [50, 1]], "observe": "1H"})
+    assert r["candidates"][0]["label"] == "1:1:1 triplet"
+    assert any("No spin-1/2 explanation" in n for n in r["notes"])
+
+
+def test_weak_pair_is_carbon_satellites():
+    # CHCl3-like: each 13C satellite 0.54 % of the centre (natural 13C 1.07 %, IUPAC 2001), J 209 Hz
+    r = _labels({"lines": [[-104.5, 0.0054], [0, 1], [104.5, 0.0054]], "observe": "1H"})
+    assert r["satellites"][0]["element"] == "C"
+    assert r["candidates"][0]["groups"][0]["partner"] == "C"
+    assert any("satellites of C" in n for n in r["notes"])
+
+
+def test_septet_with_lost_outer_lines_kept():
+    # 1:6:15:20:15:6:1 with the outer pair lost below the noise (Pascal's triangle): still a septet
+    r = _labels({"lines": [[-40, 6], [-20, 15], [0, 20], [20, 15], [40, 6]], "observe": "1H"})
+    assert r["candidates"][0]["label"] == "sept" and r["satellites"] == []
+    assert "sept" in [c["label"] for c in r["candidates"][:2]]
+
+
+def test_tolerance_from_the_data():
+    lines = [[-15, 1], [-5, 1], [5, 1], [15, 1]]
+    r = _labels({"lines": lines, "observe": "1H", "digital_resolution": "0.3 Hz"})
+    assert r["tolerance_Hz"] == 0.3
+    r = _labels({"lines": lines, "observe": "1H", "linewidth": "2 Hz"})
+    assert r["tolerance_Hz"] == 0.5
+    r = _labels({"lines": lines, "observe": "1H", "linewidth": "40 Hz"})
+    assert r["tolerance_Hz"] == 2.5  # capped at 0.25 × the smallest spacing (10 Hz)

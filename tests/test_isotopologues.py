@@ -10,7 +10,6 @@ from hypothesis import strategies as st
 from nmrcalc.errors import InputError
 from nmrcalc.physics.isotopologues import (
     MAX_COMPOSITIONS,
-    benchmark_cases,
     composition_shares,
     isotopologue_spectrum,
 )
@@ -175,8 +174,3 @@ def test_validation(sites, kwargs, field, code):
 def test_abundances_rescaled_when_nearly_one():
     result = isotopologue_spectrum([(1, [("11B", Fraction(3, 2), 0.8, 1.0), ("10B", 3, 0.1999, 0.3)])])
     assert sum(s.share for s in result.species) == 1
-
-
-def test_benchmark_cases_run():
-    for name, case in benchmark_cases():
-        assert case().species, name

@@ -16,7 +16,6 @@ from nmrcalc.physics.multiplet import (
     MAX_LINES,
     MAX_WEIGHT_BITS,
     SpinGroup,
-    benchmark_cases,
     group_coefficients,
     multiplet,
     multiplet_label,
@@ -238,5 +237,3 @@ def test_performance_sanity_cases():
     sticks = multiplet([(Fraction(9, 2), 20, 3.0)])
     assert sum(w for _, w in sticks) == 10**20
     assert len(sticks) == 181
-    for name, case in benchmark_cases():
-        assert case(), name

@@ -131,3 +131,28 @@ def test_abundance_errors():
 def test_size_limit_is_an_error_not_a_hang():
     r = handle({"op": "multiplet", "observe": "1H", "groups": [{"spin": "9/2", "count": 64, "J": 1.0 + k / 7} for k in range(10)]})
     assert not r["ok"] and r["error"]["code"] == "too_large"
+
+
+def test_T1_partial_collapse_in_the_spectrum():
+    # 14N (I = 1) partner with T1: the spectrum follows the exchange line shape (Pople 1958), area kept
+    from nmrcalc.physics.quadrupolar_relaxation import collapse_shape
+    base = {"observe": "1H", "spectrometer": "400 MHz", "center": "7 ppm", "spectrum": True, "linewidth": "1 Hz"}
+    r = run({**base, "groups": [{"partner": "14N", "count": 1, "J": "52 Hz", "T1": "2 ms"}]})
+    res = r["result"]
+    assert res["ratio"] == "1:1:1" and res["partial_collapse"]["T1_s"] == 0.002
+    s = res["spectrum"]
+    assert max(abs(a - b) for a, b in zip(s["y"], collapse_shape(s["x_Hz"], 52.0, 1, 0.002, 1.0))) < 1e-12
+    long_T1 = run({**base, "groups": [{"partner": "14N", "count": 1, "J": "52 Hz", "T1": "10000 s"}]})["result"]
+    resolved = run({**base, "groups": [{"partner": "14N", "count": 1, "J": "52 Hz", "quadrupolar": "resolved"}]})["result"]
+    assert max(abs(a - b) for a, b in zip(long_T1["spectrum"]["y"], resolved["spectrum"]["y"])) < 1e-3 * max(resolved["spectrum"]["y"])
+
+
+@pytest.mark.parametrize("group,field", [
+    ({"partner": "1H", "count": 1, "J": 7, "T1": "2 ms"}, "groups.0.T1"),
+    ({"partner": "14N", "count": 2, "J": 52, "T1": "2 ms"}, "groups.0.count"),
+    ({"partner": "14N", "count": 1, "J": 52, "T1": "soon"}, "groups.0.T1"),
+    ({"partner": "14N", "count": 1, "J": 52, "T1": "2 ms", "quadrupolar": "resolved"}, "groups.0.quadrupolar"),
+])
+def test_T1_errors(group, field):
+    r = handle({"op": "multiplet", "observe": "1H", "spectrum": True, "groups": [group]})
+    assert not r["ok"] and r["error"]["field"] == field

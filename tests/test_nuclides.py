@@ -138,7 +138,6 @@ def _gamma_tolerance(z: int) -> float:
 # Entries where the compilations disagree more, each checked by hand:
 GAMMA_EXCEPTIONS = {
     "197Au": 0.025,   # IUPAC 2001 used μ = 0.148158 μN; later compilations 0.1457 μN
-    "207Pb": 0.02,    # IUPAC 2001 γ 5.58046 (from memory); later moment 0.5925 μN
 }
 SIGN_EXCEPTIONS = {"109Ag"}  # mendeleev lists a positive g for 109Ag; its moment is negative (−0.1307 μN, from memory), as for 107Ag
 ABUNDANCE_EXCEPTIONS = {"6Li", "7Li"}  # lithium's representative composition changed (IUPAC 2009: natural variation, depleted stocks)

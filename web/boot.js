@@ -9,6 +9,12 @@
 "use strict";
 
 const NMRBoot = (() => {
+  // Uncaught errors and CSP violations on the page, from its first script on, so that a
+  // test driving any engine (even one whose console it cannot read) can ask for them.
+  const problems = [];
+  addEventListener("error", (event) => problems.push(`error: ${event.message}`));
+  addEventListener("unhandledrejection", (event) => problems.push(`unhandled rejection: ${event.reason}`));
+  document.addEventListener("securitypolicyviolation", (event) => problems.push(`CSP ${event.violatedDirective}: ${event.blockedURI}`));
   let worker = null;
   let early = [];  // events that arrive before the shell listens
   let listener = (event, from) => early.push([event, from]);
@@ -18,14 +24,29 @@ const NMRBoot = (() => {
     worker.postMessage({ type: "asset", name: node.dataset.name, kind: node.dataset.kind, data: node.textContent.trim(), gzip: node.dataset.gzip === "1" });
   }
 
+  // A browser that cannot start this kind of worker gets a stand-in that reports
+  // why, in one plain sentence, instead of a page waiting for Python forever.
+  function refused(err) {
+    const stand = { postMessage() {}, terminate() {} };
+    const data = { type: "boot-error", message: String(err), advice: "This browser cannot start the calculator's background worker: open the page in a current Chrome, Edge, Firefox or Safari." };
+    setTimeout(() => listener({ type: "message", data }, stand), 0);
+    return stand;
+  }
+
   function create() {
     startedAt = performance.now();
     const source = document.getElementById("nmrcalc-worker");
-    const made = source
-      // single file on file://: an opaque origin, so the worker comes from a data: URL
-      // and every other file by message
-      ? new Worker(`data:text/javascript;base64,${source.textContent.trim()}`, { type: "module" })
-      : new Worker("worker.js", { type: "module" });
+    let made;
+    try {
+      made = source
+        // single file on file://: an opaque origin, so the worker comes from a data: URL
+        // and every other file by message
+        ? new Worker(`data:text/javascript;base64,${source.textContent.trim()}`, { type: "module" })
+        : new Worker("worker.js", { type: "module" });
+    } catch (err) {
+      worker = refused(err);
+      return;
+    }
     for (const type of ["message", "error", "messageerror"]) made.addEventListener(type, (event) => listener(event, made));
     made.postMessage(source
       ? { type: "boot", mode: "inline", indexURL: "https://nmrcalc.invalid/", names: source.dataset.assets.split(" ") }
@@ -36,6 +57,7 @@ const NMRBoot = (() => {
   create();
   return {
     startedAt: () => startedAt,
+    problems: () => problems.slice(),
     worker: () => worker,
     sendPrevious() {
       send(document.currentScript.previousElementSibling);

@@ -14,6 +14,7 @@
 
 const APP_ZIP = "/home/pyodide/nmrcalc.zip";  // imported from in place (zipimport), not unpacked
 let bridge = null;
+let wasmBytes = () => 0;  // the size of Python's wasm memory (it only grows), sent with each reply
 let bootPromise = null;
 
 function post(message) {
@@ -35,10 +36,14 @@ function base64ToBytes(text) {
 }
 
 // The file's bytes as a stream (gzip undone on the way), so Pyodide can compile
-// the wasm while it is still being unpacked.
+// the wasm while it is still being unpacked. The stream is made from the bytes
+// themselves, not from a Blob: WebKit cannot read a Blob's stream in a worker of
+// a file:// page (NotReadableError), while a plain ReadableStream works everywhere.
 function assetBody(asset) {
   const raw = base64ToBytes(asset.data);
-  return asset.gzip ? new Blob([raw]).stream().pipeThrough(new DecompressionStream("gzip")) : raw;
+  if (!asset.gzip) return raw;
+  const packed = new ReadableStream({ start(controller) { controller.enqueue(raw); controller.close(); } });
+  return packed.pipeThrough(new DecompressionStream("gzip"));
 }
 
 async function assetBytes(asset) {
@@ -124,14 +129,29 @@ async function bootSite() {
   return { pyodide, packageZip: await packageZip };
 }
 
+// What this worker needs from the engine, checked before anything loads, so a browser
+// that lacks one gets one plain sentence instead of a failure deep inside Pyodide.
+function missingFeature(mode) {
+  if (typeof WebAssembly !== "object") return "WebAssembly";
+  if (mode === "inline" && typeof DecompressionStream !== "function") return "compression streams";
+  return null;
+}
+
+class Unsupported extends Error {}
+
 async function boot(message) {
   const started = performance.now();
+  const missing = missingFeature(message.mode);
+  if (missing) {
+    throw new Unsupported(`This browser lacks ${missing}, which the calculator needs: open the page in a current Chrome, Edge, Firefox or Safari.`);
+  }
   const { pyodide, packageZip } = message.mode === "inline" ? await bootInline(message) : await bootSite();
   progress("package", "Installing the nmrcalc package");
   pyodide.FS.writeFile(APP_ZIP, packageZip);
   pyodide.pyimport("sys").path.insert(0, APP_ZIP);
   progress("import", "Importing nmrcalc");
   bridge = pyodide.pyimport("nmrcalc_bridge").bridge;
+  wasmBytes = () => pyodide._module.HEAPU8.buffer.byteLength;
   post({ type: "ready", ms: performance.now() - started, python: pyodide.version });
 }
 
@@ -158,7 +178,7 @@ function call(message) {
       error: { code: "worker_error", message: String((err && err.message) || err), field: null },
     });
   }
-  post({ type: "reply", id: message.id, text });
+  post({ type: "reply", id: message.id, text, wasmBytes: wasmBytes() });
 }
 
 self.onmessage = (event) => {
@@ -166,7 +186,12 @@ self.onmessage = (event) => {
   if (message.type === "boot") {
     if (!bootPromise) {
       bootPromise = boot(message).catch((err) => {
-        post({ type: "boot-error", message: String((err && err.stack) || err) });
+        // WebKit's stack omits the message, so both are sent
+        post({
+          type: "boot-error",
+          message: `${String(err)}\n${(err && err.stack) || ""}`,
+          advice: err instanceof Unsupported ? err.message : null,
+        });
       });
     }
   } else if (message.type === "asset") {

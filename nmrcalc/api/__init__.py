@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import importlib
 import json
+import re
 from collections.abc import Mapping
 
 from nmrcalc.api.fields import PROGRESS
@@ -21,14 +22,19 @@ from nmrcalc.errors import InputError
 # A module is imported when one of its ops is first asked for, so a front end's
 # first result does not wait for the spin-system and pattern-finder code.
 OP_MODULES = {
-    **dict.fromkeys(["nuclide", "nuclides", "frequency", "ppm_hz", "scale_coupling", "energy", "sensitivity"],
+    **dict.fromkeys(["nuclide", "nuclides", "frequency", "ppm_hz", "scale_coupling", "energy", "sensitivity",
+                     "acquisition_window"],
                     "core_ops"),
     "multiplet": "multiplet_ops",
     "spin_system": "spin_system_ops",
     "identify": "identify_ops",
+    **dict.fromkeys(["read_spectrum", "pick_peaks", "fit_spin_system"], "spectrum_ops"),
+    "deuteration": "deuteration_ops",
+    "solvents": "solvent_ops",
     "describe": "describe_ops",
 }
-MAX_REQUEST_CHARS = 1_000_000
+_SURROGATE = re.compile("[\ud800-\udfff]")  # one C-level scan: a spectrum's text is long
+MAX_REQUEST_CHARS = 16_000_000  # a measured spectrum (256k points, its file or its ordinates) travels as text
 
 
 class _Ops(Mapping):
@@ -87,7 +93,7 @@ def handle(request, progress=None) -> dict:
 
 def _check_unicode(text: str, request) -> None:
     """Refuse text that is not valid Unicode (a lone surrogate, raw or written as an escape)."""
-    if "\\ud" in text.lower() or any("\ud800" <= ch <= "\udfff" for ch in text):
+    if "\\ud" in text.lower() or _SURROGATE.search(text):
         try:
             json.dumps(request, ensure_ascii=False).encode("utf-8")
         except UnicodeEncodeError as e:

@@ -8,8 +8,8 @@ from nmrcalc.api.fields import flag, magnet, nucleus, quantity, require, spin_te
 from nmrcalc.api.params import MAGNET, Op, Param
 from nmrcalc.data.elements import NAME_OF_SYMBOL
 from nmrcalc.errors import InputError
-from nmrcalc.nuclides import ALL, BIOMOLECULAR, MAGNETIC, Nuclide, lookup, receptivity
-from nmrcalc.physics import coupling, energy, larmor, sensitivity
+from nmrcalc.nuclides import BIOMOLECULAR, MAGNETIC, Nuclide, lookup, receptivity, search
+from nmrcalc.physics import acquisition, coupling, energy, larmor, sensitivity
 
 QUADRUPOLE_NOTE = ("Quadrupolar (I > 1/2): fast relaxation often broadens its lines and collapses "
                    "its splitting of partners, except at highly symmetric sites.")
@@ -46,22 +46,20 @@ def op_nuclide(req, warnings):
 
 def op_nuclides(req, warnings):
     text = req.get("search", "")
-    if not isinstance(text, str):
-        raise InputError("'search' must be text.", "search")
-    words = text.lower().split()
-    rows = [nuclide_record(n) for n in ALL.values() if n.magnetic or flag(req, "include_spin_zero")]
-    if words:
-        rows = [r for r in rows if all(w in f"{r['symbol']} {r['element']} {r['element_name']} "
-                                          f"{r['reference'] or ''}".lower() for w in words)]
+    spin_zero = flag(req, "include_spin_zero")
+    rows = [nuclide_record(n) for n in search(text) if n.magnetic or spin_zero]
     return {"nuclides": rows, "count": len(rows)}
 
 
 def _frequency_row(nuc: Nuclide, field_T: float, proton_MHz: float, scale: str) -> dict:
     nu = larmor.larmor_MHz(nuc, field_T)
     ref = larmor.reference_MHz(nuc, proton_MHz, scale)
+    diff = None if ref is None else larmor.reference_minus_bare(nuc, ref, nu)
     return {"symbol": nuc.symbol, "spin": spin_text(nuc.spin), "abundance_percent": nuc.abundance_percent,
-            "larmor_MHz": nu, "reference_MHz": ref,
-            "difference_ppm": None if ref is None else (ref / nu - 1) * 1e6,
+            "reference_MHz": ref, "larmor_MHz": nu,
+            "difference_ppm": None if diff is None else diff.ppm,
+            "difference_precision_ppm": None if diff is None else diff.precision_ppm,
+            "difference_decimals": None if diff is None else diff.decimals,
             "receptivity_C": receptivity(nuc, "13C")}
 
 
@@ -72,13 +70,17 @@ def _scale(req) -> str:
     return scale
 
 
-_SORT_KEYS = ("symbol", "larmor_MHz", "abundance_percent", "receptivity_C", "spin")
+DIFFERENCE_NOTE = ("0 ppm − bare nucleus: the shielding of the nucleus in its reference compound (relative "
+                   "to the TMS proton) plus the uncertainty of the tabulated moment — not a chemical shift. "
+                   "Shown only to the precision of the tabulated γ and Ξ (one unit in their last digit).")
+_SORT_KEYS = ("symbol", "reference_MHz", "larmor_MHz", "abundance_percent", "receptivity_C", "spin")
 
 
 def op_frequency(req, warnings):
     field_T, proton_MHz = magnet(req, warnings)
     scale = _scale(req)
-    base = {"field_T": field_T, "field_G": field_T * 1e4, "proton_MHz": proton_MHz, "scale": scale}
+    base = {"field_T": field_T, "field_G": field_T * 1e4, "proton_MHz": proton_MHz, "scale": scale,
+            "difference_note": DIFFERENCE_NOTE}
     if req.get("nucleus") not in (None, ""):
         nuc = nucleus(req, "nucleus")
         row = _frequency_row(nuc, field_T, proton_MHz, scale)
@@ -137,9 +139,11 @@ def op_ppm_hz(req, warnings):
 def op_scale_coupling(req, warnings):
     J = quantity(req, "J", "coupling")
     src, dst = nucleus(req, "from", magnetic=False), nucleus(req, "to", magnetic=False)
-    ratio = coupling.gamma_ratio(src, dst)
+    ratio, source = coupling.isotope_ratio(src, dst)
     J_new = J * ratio
-    result = {"J_Hz": J_new, "J_from_Hz": J, "ratio": ratio, "from": src.symbol, "to": dst.symbol,
+    result = {"J_Hz": J_new, "J_from_Hz": J, "ratio": ratio, "ratio_source": source,
+              "ratio_note": coupling.XI_RATIO_NOTE if source == "xi" else coupling.GAMMA_RATIO_NOTE,
+              "from": src.symbol, "to": dst.symbol,
               "sign_flipped": ratio < 0, "estimate": True, "reduced_coupling": None}
     warnings.append(coupling.ISOTOPE_EFFECT_NOTE)
     if ratio < 0:
@@ -203,6 +207,52 @@ def op_sensitivity(req, warnings):
             "receptivity_H": receptivity(nuc, "1H", enrich), "receptivity_C": receptivity(nuc, "13C", enrich)}
 
 
+MAX_POINTS = 1 << 24  # complex points in one acquisition window
+
+
+def op_acquisition_window(req, warnings):
+    """Window for a ppm range of one nucleus; with a 90° pulse length, what that pulse excites."""
+    nuc = nucleus(req, "nucleus")
+    field_T, proton_MHz = magnet(req, warnings)
+    low = quantity(req, "low_ppm", "shift")
+    high = quantity(req, "high_ppm", "shift")
+    points = require(req, "points")
+    pulse_us = quantity(req, "pulse_90", "time", positive=True) if req.get("pulse_90") not in (None, "") else None
+    scale = _scale(req)
+    if isinstance(points, bool) or not isinstance(points, int) or not 2 <= points <= MAX_POINTS:
+        raise InputError(f"'points' must be a whole number of complex points from 2 to {MAX_POINTS}.", "points")
+    if high == low:
+        raise InputError("The window needs two different shifts.", "high_ppm")
+    low, high = min(low, high), max(low, high)
+    ref = zero_ppm_MHz(nuc, field_T, proton_MHz, warnings, scale)
+    w = acquisition.window(ref, low, high, points)
+    result = {"nucleus": nuc.symbol, "field_T": field_T, "proton_MHz": proton_MHz, "reference_MHz": ref,
+              "low_ppm": low, "high_ppm": high, "points": points,
+              "carrier_ppm": w.carrier_ppm, "carrier_MHz": w.carrier_MHz, "carrier_offset_Hz": w.carrier_offset_Hz,
+              "spectral_width_Hz": w.width_Hz, "spectral_width_kHz": w.width_Hz / 1e3,
+              "spectral_width_ppm": high - low, "dwell_time_s": w.dwell_s, "dwell_time_us": w.dwell_s * 1e6,
+              "acquisition_time_s": w.acquisition_s, "acquisition_time_ms": w.acquisition_s * 1e3,
+              "digital_resolution_Hz": w.resolution_Hz, "digital_resolution_ppm": w.resolution_ppm,
+              "pulse_90_us": pulse_us, "nutation_Hz": None, "nutation_kHz": None, "B1_mT": None,
+              "well_excited_Hz": None, "well_excited_kHz": None, "well_excited_ppm": None, "edge_percent": None,
+              "well_excited_percent": acquisition.WELL_EXCITED * 100}
+    if pulse_us is None:
+        return result
+    pulse = pulse_us * 1e-6
+    nu1 = acquisition.nutation_Hz(pulse)
+    half = acquisition.well_excited_Hz(pulse)
+    edge = acquisition.transverse_fraction(nu1, pulse, w.width_Hz / 2)
+    result.update({"nutation_Hz": nu1, "nutation_kHz": nu1 / 1e3,
+                   "B1_mT": acquisition.b1_T(nu1, nuc.gamma_rad_per_s_per_T) * 1e3,
+                   "well_excited_Hz": half, "well_excited_kHz": half / 1e3, "well_excited_ppm": half / ref,
+                   "edge_percent": edge * 100})
+    if w.width_Hz / 2 > half:
+        warnings.append(f"The window ({w.width_Hz / 1e3:.4g} kHz) is wider than this 90° pulse excites well "
+                        f"(±{half / 1e3:.3g} kHz around the carrier, ≥ {acquisition.WELL_EXCITED:.0%} of full "
+                        f"signal): lines at the edges get {edge:.0%}. Record the range in parts with the "
+                        "carrier moved, or use a shorter (stronger) pulse.")
+    return result
+
 SCALE = Param("scale", "choice", choices=("unified", "biomolecular"), default="unified", label="Reference scale",
               help="'unified' (IUPAC 2001, TMS-based) or 'biomolecular' (DSS, IUPAC 2008)")
 NUCLEUS = Param("nucleus", "nuclide", required=True, label="Nucleus", help="observed nuclide, e.g. 13C", example="13C")
@@ -255,7 +305,20 @@ DECLARED = {
         Param("relative_to", "nuclide", default="13C", label="Relative to", help="reference nuclide"),
         Param("enrichment_percent", "quantity", unit="percent", label="Enrichment", help="isotope enrichment",
               cli="--enrichment"))),
+    "acquisition_window": Op("acquisition_window", "carrier, spectral width, dwell and acquisition time and digital "
+                             "resolution for a ppm range; with a 90° pulse, what it excites", cli="window",
+                             one_of=(("spectrometer", "field"),), params=(
+        NUCLEUS, *MAGNET, SCALE,
+        Param("low_ppm", "quantity", unit="shift", required=True, label="From", help="one end of the window, ppm",
+              example="-10"),
+        Param("high_ppm", "quantity", unit="shift", required=True, label="To", help="the other end, ppm",
+              example="230 ppm"),
+        Param("points", "integer", required=True, bounds=(2, MAX_POINTS), label="Complex points",
+              help="number of complex points recorded", example=32768),
+        Param("pulse_90", "quantity", unit="time", label="90° pulse", help="90° pulse length, e.g. '10 us'",
+              example="10 µs"))),
 }
 
 OPS = {"nuclide": op_nuclide, "nuclides": op_nuclides, "frequency": op_frequency, "ppm_hz": op_ppm_hz,
-       "scale_coupling": op_scale_coupling, "energy": op_energy, "sensitivity": op_sensitivity}
+       "scale_coupling": op_scale_coupling, "energy": op_energy, "sensitivity": op_sensitivity,
+       "acquisition_window": op_acquisition_window}

@@ -78,15 +78,15 @@ def magnet(req: dict, warnings: list[str]) -> tuple[float, float]:
     has_field = req.get("field") not in (None, "")
     if has_spec and has_field:
         raise InputError("Give either 'spectrometer' or 'field', not both.", "field")
-    if has_spec:
-        proton_MHz = bounded(req["spectrometer"], "frequency", "spectrometer", positive=True)
-        field_T = field_T_from_proton_MHz(proton_MHz)
-    elif has_field:
-        field_T = bounded(req["field"], "field", "field", positive=True)
-        proton_MHz = proton_MHz_from_field_T(field_T)
-    else:
+    if not (has_spec or has_field):
         raise InputError("Give the magnet as 'spectrometer' (1H frequency, e.g. '500 MHz') or "
                          "'field' (e.g. '11.74 T').", "spectrometer", "missing_field")
+    if has_spec:  # either key takes a field (T, G) or a 1H frequency (MHz): units "magnet_*" kinds
+        proton_MHz = bounded(req["spectrometer"], "magnet_MHz", "spectrometer", positive=True)
+        field_T = field_T_from_proton_MHz(proton_MHz)
+    else:
+        field_T = bounded(req["field"], "magnet_T", "field", positive=True)
+        proton_MHz = proton_MHz_from_field_T(field_T)
     if field_T > STRONGEST_MAGNET_T:
         warnings.append(f"{field_T:.4g} T is above the strongest high-resolution NMR magnets "
                         "(about 28 T, 1.2 GHz); check the value.")

@@ -35,10 +35,18 @@ from nmrcalc.api.fields import bounded, in_range, magnet, nucleus, quantity, zer
 from nmrcalc.api.params import MAGNET, Op, Param
 from nmrcalc.api.peaklist import parse_peaklist
 from nmrcalc.errors import InputError
-from nmrcalc.nuclides import element_of, isotopes_of, lookup_magnetic
-from nmrcalc.physics import larmor
+from nmrcalc.nuclides import MAGNETIC, element_of, isotopes_of, lookup_magnetic
+from nmrcalc.physics import coupling, larmor
 from nmrcalc.physics.identify import (
-    MAX_COUNT, MAX_GROUPS, MAX_INPUT_LINES, PartnerOption, identify, reference_isotope, spin_option)
+    DEFAULT_SPINS,
+    MAX_COUNT,
+    MAX_GROUPS,
+    MAX_INPUT_LINES,
+    PartnerOption,
+    identify,
+    reference_isotope,
+    spin_option,
+)
 from nmrcalc.physics.multiplet import parse_spin
 
 PPM_GUESS_MAX = 20.0
@@ -49,6 +57,17 @@ PLAIN_ELEMENT_SHARE = 0.99
 MAX_PARTNERS = 8
 MIN_RELATIVE_INTENSITY = 1e-12  # weaker lines than this fraction of the strongest are refused
 INTENSITY_RANGE = (1e-100, 1e100)  # any unit, but squares and sums of intensities stay finite
+# Priors without stated partners (common practice, no source): on these nuclei couplings are
+# almost always to spin-1/2 nuclei, so spin-1/2 explanations are tried first and quadrupolar
+# ones only when no spin-1/2 one matches the intensities (relative rms above INTENSITY_DEMAND).
+SPIN_HALF_FIRST = frozenset({"1H", "13C", "19F", "31P"})
+INTENSITY_DEMAND = 0.1
+# A pair of lines each weaker than SATELLITE_MAX of the strongest, symmetric about it, is
+# compared with the satellites of elements whose spin-1/2 isotopes are below half of the element.
+SATELLITE_MAX = 0.3
+SATELLITE_ELEMENTS = 2
+TOLERANCE_PER_POINT = 1.0   # with a digital resolution: tolerance = that many points
+TOLERANCE_PER_WIDTH = 0.25  # with a line width: tolerance = that fraction of the width
 _SPIN_TEXT = re.compile(r"\s*(?:spin\s*=?|i\s*=)?\s*(\d+(?:/2)?)\s*", re.IGNORECASE)
 
 
@@ -77,7 +96,7 @@ def _partner_option(text, where: str, notes: list[str]) -> PartnerOption:
         notes.append(f"Partner {el} is taken as {ref.symbol} ({ref.abundance_percent:g} % of {el}).")
         return PartnerOption(ref.symbol, "nuclide", ((ref.symbol, ref.spin, Fraction(1), 1.0),))
     isotopes = [(n.symbol, n.spin, Fraction(repr(n.abundance_percent / total)),
-                 abs(n.gamma_rad_per_s_per_T / ref.gamma_rad_per_s_per_T)) for n in magnetic]
+                 abs(coupling.gamma_ratio(ref, n))) for n in magnetic]
     spin0 = sum(n.abundance_percent for n in natural if not n.magnetic) / total
     if spin0 > 0:
         isotopes.append((f"spin-0 {el}", Fraction(0), Fraction(repr(spin0)), 0.0))
@@ -165,6 +184,57 @@ def _small_int(req: dict, key: str, lo: int, hi: int, default: int) -> int:
     return value
 
 
+def _tolerance(req: dict, spacings: list[float], notes: list[str]) -> float:
+    """The stated tolerance, or one from the data: digital resolution / line width, else the default."""
+    if req.get("tolerance") not in (None, ""):
+        return quantity(req, "tolerance", "coupling", positive=True)
+    resolution = quantity(req, "digital_resolution", "coupling", positive=True, default=0.0)
+    width = quantity(req, "linewidth", "coupling", positive=True, default=0.0)
+    if resolution or width:
+        tol = max(TOLERANCE_PER_POINT * resolution, TOLERANCE_PER_WIDTH * width)
+        how = (f"from the data: the larger of {TOLERANCE_PER_POINT:g} × the digital resolution and "
+               f"{TOLERANCE_PER_WIDTH:g} × the line width")
+    else:
+        tol, how = DEFAULT_TOLERANCE_HZ, f"default {DEFAULT_TOLERANCE_HZ:g} Hz"
+    if spacings and tol > TOLERANCE_FRACTION * min(spacings):
+        tol = TOLERANCE_FRACTION * min(spacings)
+        how += f", capped at {TOLERANCE_FRACTION:g} × the smallest spacing"
+    notes.append(f"Tolerance {tol:.3g} Hz ({how}).")
+    return tol
+
+
+def _satellite_elements(lines: list[tuple[float, float]], tol: float) -> list[dict]:
+    """Elements whose natural spin-1/2 isotopes would give the weak symmetric pair around the strongest line.
+
+    One position: the centre carries the share without a magnetic isotope (1 - a_mag), each satellite
+    half of the spin-1/2 share (a/2); ranked by |ln(expected / observed ratio)|.
+    """
+    x0, y0 = max(lines, key=lambda line: line[1])
+    weak = [(x, y) for x, y in lines if y <= SATELLITE_MAX * y0]
+    pairs = [((xa, ya), (xb, yb)) for xa, ya in weak for xb, yb in weak
+             if xa < x0 < xb and abs((xa + xb) / 2 - x0) <= tol and abs(ya - yb) <= 0.3 * max(ya, yb)]
+    if not pairs:
+        return []
+    (xa, ya), (xb, yb) = max(pairs, key=lambda p: p[0][1] + p[1][1])
+    others = [y for x, y in lines if abs(x - x0) > tol and x not in (xa, xb)]
+    if any(y > min(ya, yb) for y in others):
+        return []  # stronger lines beside the centre: a multiplet, not satellites of one line
+    observed = (ya + yb) / 2 / y0
+    found = []
+    for el in sorted({n.element for n in MAGNETIC.values()}):
+        natural = [n for n in isotopes_of(el) if n.abundance_percent]
+        half = sum(n.abundance_percent for n in natural if n.magnetic and n.spin == Fraction(1, 2))
+        magnetic = sum(n.abundance_percent for n in natural if n.magnetic)
+        if not 0 < half < 50 or magnetic >= 99:
+            continue
+        expected = half / 2 / (100 - magnetic)
+        found.append({"element": el, "expected_ratio": expected, "observed_ratio": observed, "J_Hz": xb - xa,
+                      "miss": abs(math.log(expected / observed))})
+    found.sort(key=lambda f: f["miss"])
+    return [{k: v for k, v in f.items() if k != "miss"}
+            for f in found[:SATELLITE_ELEMENTS] if f["miss"] < math.log(1.5)]
+
+
 def op_identify(req, warnings):
     notes: list[str] = []
     observe = nucleus(req, "observe") if req.get("observe") not in (None, "") else None
@@ -202,7 +272,7 @@ def op_identify(req, warnings):
     units = {u for *_, u in raw}
     if len(units) > 1:
         notes.append("Positions mix ppm and Hz: ppm are converted with the observed nuclide's reference frequency.")
-    lines_Hz = [(x * ref_MHz if u == "ppm" else x, y) for x, y, u in raw]
+    lines_Hz = [(larmor.offset_Hz(ref_MHz, x) if u == "ppm" else x, y) for x, y, u in raw]
 
     partners = req.get("partners")
     if partners in (None, "", []):
@@ -220,18 +290,31 @@ def op_identify(req, warnings):
 
     xs = sorted(x for x, _ in lines_Hz)
     spacings = [b - a for a, b in zip(xs, xs[1:]) if b - a > 0]
-    if req.get("tolerance") not in (None, ""):
-        tol = quantity(req, "tolerance", "coupling", positive=True)
+    tol = _tolerance(req, spacings, notes)
+    limits = {"max_groups": _small_int(req, "max_groups", 1, MAX_GROUPS, MAX_GROUPS),
+              "max_count": _small_int(req, "max_count", 1, MAX_COUNT, MAX_COUNT),
+              "top": _small_int(req, "top", 1, 20, 5)}
+    satellites = []
+    if options is None and (observe is None or observe.symbol in SPIN_HALF_FIRST):
+        satellites = _satellite_elements(lines_Hz, tol)
+        extra = [_partner_option(sat["element"], "partners", []) for sat in satellites]
+        found = identify(lines_Hz, tol, [spin_option(Fraction(1, 2))] + extra, **limits)
+        lead = found.candidates[0]
+        if lead.unmatched_observed or lead.intensity_residual > INTENSITY_DEMAND:
+            found = identify(lines_Hz, tol, None if not extra else
+                             [spin_option(sp) for sp in DEFAULT_SPINS] + extra, **limits)
+            notes.append("No spin-1/2 explanation matches the intensities, so spins above 1/2 (quadrupolar "
+                         "partners) are offered as well.")
+        else:
+            notes.append(f"On {observe.symbol if observe else '1H'} without stated partners, spin-1/2 explanations "
+                         "are preferred (they fit here); name partners to search quadrupolar ones.")
+        if satellites:
+            which = " or ".join(f"{sat['element']} (expected {sat['expected_ratio']:.3g} each)" for sat in satellites)
+            notes.append(f"A weak pair symmetric about the strongest line ({satellites[0]['observed_ratio']:.3g} of "
+                         f"it each, J ≈ {satellites[0]['J_Hz']:.4g} Hz) matches satellites of {which} at natural "
+                         "abundance, rather than a triplet.")
     else:
-        tol = DEFAULT_TOLERANCE_HZ
-        if spacings:
-            tol = min(tol, TOLERANCE_FRACTION * min(spacings))
-        notes.append(f"Tolerance {tol:.3g} Hz (default: the smaller of {DEFAULT_TOLERANCE_HZ:g} Hz and "
-                     f"{TOLERANCE_FRACTION:g} × the smallest line spacing).")
-    found = identify(lines_Hz, tol, options,
-                     max_groups=_small_int(req, "max_groups", 1, MAX_GROUPS, MAX_GROUPS),
-                     max_count=_small_int(req, "max_count", 1, MAX_COUNT, MAX_COUNT),
-                     top=_small_int(req, "top", 1, 20, 5))
+        found = identify(lines_Hz, tol, options, **limits)
     peak = max(y for _, y in lines_Hz)
     candidates = []
     for cand in found.candidates:
@@ -245,7 +328,7 @@ def op_identify(req, warnings):
         for x, w in cand.lines:
             line = {"Hz": cand.center_Hz + x, "intensity": cand.scale * w * peak}
             if ref_MHz is not None:
-                line["ppm"] = (cand.center_Hz + x) / ref_MHz
+                line["ppm"] = larmor.shift_ppm(ref_MHz, cand.center_Hz + x)
             predicted.append(line)
         candidates.append({"groups": groups, "label": cand.label, "score": cand.score,
                            "position_rms": cand.position_rms, "intensity_residual": cand.intensity_residual,
@@ -253,11 +336,12 @@ def op_identify(req, warnings):
                            "lines": predicted})
     best = found.candidates[0]
     return {"observe": observe.symbol if observe else None,
-            "observed": [{"Hz": x, "intensity": y, **({"ppm": x / ref_MHz} if ref_MHz else {})} for x, y in lines_Hz],
+            "observed": [{"Hz": x, "intensity": y, **({"ppm": larmor.shift_ppm(ref_MHz, x)} if ref_MHz else {})} for x, y in lines_Hz],
             "unit": sorted(units)[0] if len(units) == 1 else "mixed",
             "tolerance_Hz": tol, "candidates": candidates, "label": best.label,
-            "center_Hz": best.center_Hz, "center_ppm": best.center_Hz / ref_MHz if ref_MHz else None,
+            "center_Hz": best.center_Hz, "center_ppm": larmor.shift_ppm(ref_MHz, best.center_Hz) if ref_MHz else None,
             "observe_MHz": ref_MHz, "searched": found.evaluated, "complete": found.complete,
+            "satellites": satellites,
             "notes": notes + found.notes}
 
 
@@ -283,6 +367,10 @@ DECLARED = {"identify": Op(
               help="e.g. 'H, 2H, B' or spins '1/2, 1'", example=["1H", "1/2"]),
         Param("tolerance", "quantity", unit="coupling", label="Position tolerance", help="e.g. '0.5 Hz'",
               example="0.5 Hz"),
+        Param("linewidth", "quantity", unit="coupling", label="Line width",
+              help="if known: the default tolerance follows it (a quarter of the width)", example="1.2 Hz"),
+        Param("digital_resolution", "quantity", unit="coupling", label="Digital resolution",
+              help="if known, Hz per point: the default tolerance is at least one point", example="0.3 Hz"),
         Param("max_groups", "integer", bounds=(1, MAX_GROUPS), default=MAX_GROUPS, example=2, label="Most groups",
               help="at most this many partner groups"),
         Param("max_count", "integer", bounds=(1, MAX_COUNT), default=MAX_COUNT, example=3, label="Most partners a group",

@@ -138,9 +138,9 @@ def _unit_name(kind: str | None) -> str | None:
 
 # The magnet, shared by every op that needs one.
 MAGNET = (
-    Param("spectrometer", "quantity", unit="frequency", label="Spectrometer (¹H frequency)",
+    Param("spectrometer", "quantity", unit="magnet_MHz", label="Spectrometer (¹H frequency)",
           help="the magnet named by its 1H frequency, e.g. '400.13 MHz'", example="400.13 MHz"),
-    Param("field", "quantity", unit="field", label="Field B₀",
+    Param("field", "quantity", unit="magnet_T", label="Field B₀",
           help="the magnet as a flux density, e.g. '9.4 T' or '94000 G' (instead of spectrometer)"),
 )
 
@@ -302,7 +302,7 @@ def _check_value(p: Param, value, where: str, everywhere: dict[str, str]) -> Non
 def _split(value, where: str, p: Param) -> list:
     if isinstance(value, str):
         from nmrcalc.units import split_list
-        value = split_list(value)
+        value = split_list(value, where)
     if not isinstance(value, list):
         raise InputError(f"{where}: give a list (or one text, comma separated).", where)
     if len(value) > p.max_items:

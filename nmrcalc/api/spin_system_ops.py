@@ -21,6 +21,7 @@ from nmrcalc.nuclides import Nuclide
 from nmrcalc.physics import larmor, lineshape
 from nmrcalc.physics.multiplet import multiplet
 from nmrcalc.physics.spin_system import MAX_COUNT, Site, equivalence_caveats, first_order_checks, simulate
+from nmrcalc.units import split_list
 
 MAX_FIELDS = 12
 MAX_SPINS = 64  # spin entries in one request; each may stand for up to MAX_COUNT equivalent nuclei
@@ -77,6 +78,8 @@ def _couplings(req, n: int) -> list[tuple[int, int, float]]:
 
 def _magnets(req, warnings) -> list[tuple[float, float]]:
     fields = req.get("fields")
+    if isinstance(fields, str):  # typed text: "400, 600 MHz" (units.split_list)
+        fields = split_list(fields, "fields") if fields.strip() else []
     if fields in (None, []):
         return [magnet(req, warnings)]
     if not isinstance(fields, list):
@@ -187,7 +190,7 @@ DECLARED = {"spin_system": Op(
             Param("J", "quantity", unit="coupling", required=True, label="J", help="the coupling in Hz"),
         )),
         *MAGNET,
-        Param("fields", "quantities", unit="frequency", max_items=MAX_FIELDS, label="Several magnets",
+        Param("fields", "quantities", unit="magnet_MHz", max_items=MAX_FIELDS, label="Several magnets",
               help="several 1H frequencies, e.g. '300, 600 MHz' (instead of spectrometer)",
               example=["300 MHz", 600]),
         Param("factor_equivalence", "flag", default=True, label="Factor equivalent spins",

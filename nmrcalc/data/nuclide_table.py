@@ -10,7 +10,22 @@ Sources
   TMS in CDCl3 = 100 % exactly).  Values were entered from that table as
   recalled and cross-checked in the test suite against the CODATA constants
   (scipy.constants) and the isotope data of the ``mendeleev`` package.
-* For the lanthanides, Ξ is not given (no recommended reference).
+* For the lanthanides, Ξ is not given (no recommended reference), except
+  171Yb: Ξ = 17.499306 % for (C5Me5)2Yb(THF)2 in THF, the reference used in
+  the ¹⁷¹Yb NMR literature (from memory; consistent with γ(171Yb) and the
+  shielding expected at Z = 70, see tests/test_nuclide_data.py).
+* Corrections to IUPAC 2001, each checked in tests/test_nuclide_data.py:
+  - 14N / 15N abundances 99.632 / 0.368 % as IUPAC 2001 Table 1 lists them
+    (receptivity of 15N vs 1H then 3.84 × 10⁻⁶, as tabulated there).
+  - γ(65Cu): the printed 7.60435 disagrees by 0.18 % with the measured
+    frequency ratio Ξ(65Cu)/Ξ(63Cu) of the same compound (and with mendeleev's
+    moments, whose 65/63 ratio matches Ξ to 5 ppm); replaced by
+    γ(63Cu) × Ξ(65Cu)/Ξ(63Cu) = 7.61823.
+  - γ(207Pb): the printed 5.58046 would put the bare-nucleus frequency 2900
+    ppm *below* the 0 ppm of Pb(CH3)4 (a negative shielding of that size is
+    implausible; Hg and Pt neighbours show +11 000 to +15 000 ppm); the moment
+    in mendeleev (g = 1.1812, a later compilation) gives 5.6573 and a shielding
+    of 10 700 ppm, in line with its neighbours.  We keep 5.6573.
 * R. K. Harris, E. D. Becker, S. M. Cabral de Menezes, P. Granger,
   R. E. Hoffman, K. W. Zilm, "Further conventions for NMR shielding and
   chemical shifts (IUPAC Recommendations 2008)", Pure Appl. Chem. 80 (2008)
@@ -35,8 +50,8 @@ NUCLIDE_TABLE = """
 10B       3    19.9        2.8746786     8.459    10.743658    BF3.OEt2
 11B       3/2  80.1        8.5847044     4.059    32.083974    BF3.OEt2
 13C       1/2  1.07        6.728284      -        25.145020    Si(CH3)4
-14N       1    99.636      1.9337792     2.044    7.226317     CH3NO2
-15N       1/2  0.364       -2.71261804   -        10.136767    CH3NO2
+14N       1    99.632      1.9337792     2.044    7.226317     CH3NO2
+15N       1/2  0.368       -2.71261804   -        10.136767    CH3NO2
 17O       5/2  0.038       -3.62808      -2.558   13.556457    D2O
 19F       1/2  100         25.18148      -        94.094011    CCl3F
 21Ne      3/2  0.27        -2.11308      10.155   7.894296     Ne (gas)
@@ -63,7 +78,7 @@ NUCLIDE_TABLE = """
 59Co      7/2  100         6.332         42.0     23.727074    K3[Co(CN)6] (aq)
 61Ni      3/2  1.1399      -2.3948       16.2     8.936051     Ni(CO)4
 63Cu      3/2  69.17       7.1117890     -22.0    26.515473    [Cu(CH3CN)4]ClO4
-65Cu      3/2  30.83       7.60435       -20.4    28.403693    [Cu(CH3CN)4]ClO4
+65Cu      3/2  30.83       7.61823       -20.4    28.403693    [Cu(CH3CN)4]ClO4
 67Zn      5/2  4.10        1.676688      15.0     6.256803     Zn(NO3)2 (aq)
 69Ga      3/2  60.108      6.438855      17.1     24.001354    Ga(NO3)3 (aq)
 71Ga      3/2  39.892      8.181171      10.7     30.496704    Ga(NO3)3 (aq)
@@ -122,7 +137,7 @@ NUCLIDE_TABLE = """
 165Ho     7/2  100         5.710         358.0    -            -
 167Er     7/2  22.93       -0.77157      356.5    -            -
 169Tm     1/2  100         -2.218        -        -            -
-171Yb     1/2  14.28       4.7288        -        -            -
+171Yb     1/2  14.28       4.7288        -        17.499306    Yb(C5Me5)2(THF)2 (THF)
 173Yb     5/2  16.13       -1.3025       280.0    -            -
 175Lu     7/2  97.41       3.0552        349.0    -            -
 176Lu     7    2.59        2.1684        497.0    -            -
@@ -142,7 +157,7 @@ NUCLIDE_TABLE = """
 201Hg     3/2  13.18       -1.788769     38.6     6.611583     Hg(CH3)2
 203Tl     1/2  29.524      15.5393338    -        57.123200    Tl(NO3)3 (aq)
 205Tl     1/2  70.476      15.6921808    -        57.683838    Tl(NO3)3 (aq)
-207Pb     1/2  22.1        5.58046       -        20.920599    Pb(CH3)4
+207Pb     1/2  22.1        5.6573        -        20.920599    Pb(CH3)4
 209Bi     9/2  100         4.3750        -51.6    16.069288    Bi(NO3)3 (aq)
 235U      7/2  0.7204      -0.52         493.6    -            -
 """

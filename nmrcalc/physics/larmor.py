@@ -10,11 +10,18 @@ Formulas
   ν_X = Ξ_X / 100 × ν_H(TMS).
 * Chemical shift: ν = ν_ref (1 + δ × 10⁻⁶) (IUPAC 2001, eq. 6), so a line at
   δ ppm lies ν_ref[MHz] × δ Hz from the reference.
+* 0 ppm vs the bare nucleus: (ν_ref / ν_bare − 1) × 10⁶ ppm.  It is the
+  shielding of the nucleus in its reference compound (relative to the TMS
+  proton) plus the error of the tabulated moment — not a chemical shift.  It
+  is known only as well as γ_X, γ_H and Ξ are: the precision used is the sum
+  of one unit in the last tabulated digit of each, relative to the value
+  (significant figures of γ), and the difference is rounded to that decade.
 """
 
 from __future__ import annotations
 
 import math
+from typing import NamedTuple
 
 from nmrcalc.nuclides import BIOMOLECULAR, MAGNETIC, Nuclide
 
@@ -60,3 +67,18 @@ def shift_ppm(ref_MHz: float, offset_from_ref_Hz: float) -> float:
 def line_MHz(ref_MHz: float, shift_ppm_: float) -> float:
     """Absolute frequency of a line at δ: ν_ref (1 + δ × 10⁻⁶)."""
     return ref_MHz * (1 + shift_ppm_ * 1e-6)
+
+
+class Difference(NamedTuple):
+    ppm: float          # rounded to the decade of ``precision_ppm``
+    precision_ppm: float
+    decimals: int       # decimals worth showing (0 when the step is 1 ppm or more)
+
+
+def reference_minus_bare(nuc: Nuclide, ref_MHz: float, bare_MHz: float) -> Difference:
+    """(ν_ref / ν_bare − 1) × 10⁶, to the precision the tabulated γ_X, γ_H and Ξ support."""
+    precision = (nuc.gamma_precision + MAGNETIC["1H"].gamma_precision + nuc.xi_precision) * 1e6
+    exponent = math.floor(math.log10(precision))
+    decimals = max(0, -exponent)
+    value = round((ref_MHz / bare_MHz - 1) * 1e6, -exponent)
+    return Difference(value + 0.0 if value else 0.0, precision, decimals)

@@ -297,14 +297,3 @@ def multiplet_label(groups: Iterable) -> str:
         else:
             pieces.append(token)
     return " of ".join(pieces)
-
-
-def benchmark_cases() -> list[tuple[str, object]]:
-    """Named zero-argument callables for a benchmark script (no timing here)."""
-    half, one, three_half, nine_half = Fraction(1, 2), Fraction(1), Fraction(3, 2), Fraction(9, 2)
-    return [
-        ("50 x I=1/2", lambda: multiplet([(half, 50, 7.0)])),
-        ("20 x I=9/2", lambda: multiplet([(nine_half, 20, 3.0)])),
-        ("12 x I=1/2 + 6 x I=1 + 3 x I=3/2", lambda: multiplet([(half, 12, 7.1), (one, 6, 2.3), (three_half, 3, 0.9)])),
-        ("10 distinct doublets", lambda: multiplet([(half, 1, 1.0 + 1.37 * k) for k in range(10)])),
-    ]

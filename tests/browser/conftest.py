@@ -1,5 +1,7 @@
 """Fixtures for the browser tests: a fresh build, one shared headless Debian chromium,
-a localhost server for the folder build, and pages that record every request."""
+a localhost server for the folder build, and pages that record every request; for the
+engine walk also Debian's firefox-esr (Playwright over WebDriver-BiDi) and WebKitGTK's
+MiniBrowser (selenium through WebKitWebDriver, under an Xvfb display started here)."""
 
 from __future__ import annotations
 
@@ -7,9 +9,11 @@ import functools
 import http.server
 import os
 import shutil
+import socket
 import subprocess
 import sys
 import threading
+import time
 from pathlib import Path
 
 import pytest
@@ -51,19 +55,115 @@ def dist() -> Path:
     return DIST
 
 
+def _need(what: str, install: str) -> None:
+    message = f"{what} is required for the browser tests (apt-get install {install}; build_scripts/setup.sh --test does it)"
+    if os.environ.get("CI") == "true":
+        pytest.fail(message)
+    pytest.skip(message + "; skipped off CI")
+
+
 @pytest.fixture(scope="session")
-def browser():
-    chromium = shutil.which("chromium") or ("/usr/bin/chromium" if Path("/usr/bin/chromium").exists() else None)
-    if chromium is None:
-        if os.environ.get("CI") == "true":
-            pytest.fail("chromium is required for the browser tests on CI (apt-get install chromium)")
-        pytest.skip("chromium not installed (apt-get install chromium); browser tests skipped off CI")
+def playwright_instance():
     from playwright.sync_api import sync_playwright
 
     with sync_playwright() as playwright:
-        browser = playwright.chromium.launch(executable_path=chromium, headless=True, args=CHROMIUM_ARGS)
-        yield browser
-        browser.close()
+        yield playwright
+
+
+@pytest.fixture(scope="session")
+def browser(playwright_instance):
+    chromium = shutil.which("chromium") or ("/usr/bin/chromium" if Path("/usr/bin/chromium").exists() else None)
+    if chromium is None:
+        _need("chromium", "chromium")
+    browser = playwright_instance.chromium.launch(executable_path=chromium, headless=True, args=CHROMIUM_ARGS)
+    yield browser
+    browser.close()
+
+
+@pytest.fixture(scope="session")
+def firefox(playwright_instance):
+    """Debian's Firefox ESR, driven by Playwright's WebDriver-BiDi mode (see pyproject.toml for the pin)."""
+    executable = shutil.which("firefox-esr")
+    if executable is None:
+        _need("firefox-esr", "firefox-esr")
+    browser = playwright_instance.firefox.launch(channel="moz-firefox", executable_path=executable, headless=True)
+    yield browser
+    browser.close()
+
+
+def _free_port() -> int:
+    with socket.socket() as probe:
+        probe.bind(("127.0.0.1", 0))
+        return probe.getsockname()[1]
+
+
+def _free_display() -> int:
+    number = 90
+    while Path(f"/tmp/.X{number}-lock").exists() or Path(f"/tmp/.X11-unix/X{number}").exists():
+        number += 1
+    return number
+
+
+def _wait_for_port(port: int, process: subprocess.Popen, what: str, timeout_s: float = 20) -> None:
+    deadline = time.monotonic() + timeout_s
+    while time.monotonic() < deadline:
+        if process.poll() is not None:
+            raise RuntimeError(f"{what} exited with code {process.returncode}")
+        with socket.socket() as probe:
+            if probe.connect_ex(("127.0.0.1", port)) == 0:
+                return
+        time.sleep(0.2)
+    raise RuntimeError(f"{what} did not listen on port {port} within {timeout_s} s")
+
+
+def minibrowser() -> Path | None:
+    found = sorted(Path("/usr/lib").glob("*/webkit2gtk-4.1/MiniBrowser"))
+    return found[0] if found else None
+
+
+@pytest.fixture(scope="session")
+def webkit_driver_url():
+    """WebKitWebDriver on a free port, drawing into a private Xvfb display; both stopped at the end."""
+    driver, xvfb = shutil.which("WebKitWebDriver"), shutil.which("Xvfb")
+    if driver is None:
+        _need("WebKitWebDriver", "webkit2gtk-driver")
+    if minibrowser() is None:
+        _need("WebKitGTK's MiniBrowser", "libwebkit2gtk-4.1-0")
+    if xvfb is None:
+        _need("Xvfb", "xvfb")
+    display = f":{_free_display()}"
+    screen = subprocess.Popen([xvfb, display, "-screen", "0", "1280x1024x24", "-nolisten", "tcp"],
+                              stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+    port = _free_port()
+    server = subprocess.Popen([driver, f"--port={port}"], env={**os.environ, "DISPLAY": display},
+                              stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+    try:
+        _wait_for_port(port, server, "WebKitWebDriver")
+        yield f"http://127.0.0.1:{port}"
+    finally:
+        for process in (server, screen):
+            process.terminate()
+            try:
+                process.wait(timeout=10)
+            except subprocess.TimeoutExpired:
+                process.kill()
+
+
+@pytest.fixture(scope="session")
+def webkit(webkit_driver_url):
+    """webkit() -> a fresh MiniBrowser session (its own empty storage) through selenium; quit it after use."""
+    from selenium import webdriver
+    from selenium.webdriver.webkitgtk.options import Options
+
+    def new_session():
+        options = Options()
+        options.binary_location = str(minibrowser())
+        options.add_argument("--automation")
+        session = webdriver.Remote(command_executor=webkit_driver_url, options=options)
+        session.set_script_timeout(60)
+        return session
+
+    return new_session
 
 
 class _QuietHandler(http.server.SimpleHTTPRequestHandler):

@@ -171,7 +171,7 @@ const NMR = (() => {
     } else if (message.type === "boot-error") {
       window.nmrcalcStatus.state = "failed";
       window.nmrcalcStatus.error = message.message;
-      setBoot(1, "Could not start Python in this browser. Reload the page; if it persists, try another browser.", "failed");
+      setBoot(1, message.advice || "Could not start Python in this browser. Reload the page; if it persists, try another browser.", "failed");
       console.error(message.message);
       // calls sent to this worker (e.g. after a restart) would never be answered
       failWaiting("python_unavailable", "Python could not start in this browser, so nothing can be calculated. Reload the page to try again.");
@@ -186,6 +186,7 @@ const NMR = (() => {
       const resolve = waiting.get(message.id);
       waiting.delete(message.id);
       window.nmrcalcStatus.pending = waiting.size;
+      window.nmrcalcStatus.wasmBytes = message.wasmBytes;
       if (resolve) resolve(JSON.parse(message.text));
     }
   }
@@ -666,10 +667,12 @@ const NMR = (() => {
     }), 0));
   }
 
-  /** Request keys for a magnet field with units MHz (1H frequency) or T / kG / G. */
+  /** Request keys for a magnet field: the text as typed; the unit chosen beside it only
+   * names a bare number (MHz ¹H → spectrometer, T → field, kG/G said with the number). */
   function magnetRequest(value) {
     const key = value.unit === "MHz" ? "spectrometer" : "field";
-    return { [key]: value.value === "" ? "" : `${value.value} ${value.unit}` };
+    const bare = /^[\s\d.eE+\-\u2212]*$/.test(value.value);
+    return { [key]: bare && value.value !== "" && (value.unit === "kG" || value.unit === "G") ? `${value.value} ${value.unit}` : value.value };
   }
 
   const MAGNET_UNITS = [

@@ -7,10 +7,10 @@ NMR.registerPanel({
   title: "Magnet & frequencies",
   build(container) {
     const { el, fmt, fixed, nuclideLabel } = NMR;
-    // ppm differences to 3 decimals; rounding noise around zero shown as 0
-    const ppmText = (x) => (x === null || x === undefined ? "—" : fixed(Math.abs(x) < 5e-4 ? 0 : x, 3));
+    // 0 ppm − bare nucleus, rounded by the API to the precision of the tabulated γ and Ξ
+    const diffText = (row) => (row.difference_ppm === null ? "—" : `${fixed(row.difference_ppm, row.difference_decimals)} ± ${fmt(row.difference_precision_ppm, 1)}`);
     const magnet = NMR.sharedField("freqs", {
-      id: "magnet", label: "Magnet (¹H frequency or field)", value: "400.13", inputmode: "decimal",
+      id: "magnet", label: "Magnet (¹H frequency or field)", value: "400.13",
       units: NMR.MAGNET_UNITS, keys: ["spectrometer", "field"],
       hint: "The proton frequency printed on the console, or the field strength.",
     });
@@ -21,7 +21,7 @@ NMR.registerPanel({
     const one = NMR.form({
       id: "larmor",
       title: "One nucleus",
-      intro: "Larmor frequency at this magnet and the frequency of its 0 ppm reference (from Ξ).",
+      intro: "The frequency of its 0 ppm reference (from Ξ) at this magnet — where a spectrometer is set — and the Larmor frequency of the bare nucleus.",
       shared: [magnet],
       fields: [
         { id: "nucleus", label: "Nucleus", value: "13C", list: "nuclide-list", placeholder: "e.g. 13C, 15N, 31P" },
@@ -35,12 +35,12 @@ NMR.registerPanel({
         magnetOut.replaceChildren(`${fmt(r.field_T, 6)} T · ${fmt(r.field_G, 6)} G · ¹H at ${fixed(r.proton_MHz, 4)} MHz`);
         out.replaceChildren(NMR.resultList([
           ["Nucleus", nuclideLabel(r.symbol)],
-          ["Larmor frequency", fixed(r.larmor_MHz, 6), "MHz"],
-          ["0 ppm reference", fixed(r.reference_MHz, 6), r.reference_MHz === null ? "" : "MHz"],
-          ["0 ppm − Larmor", ppmText(r.difference_ppm), r.difference_ppm === null ? "" : "ppm"],
+          ["0 ppm frequency (Ξ)", el("strong", { class: "headline" }, fixed(r.reference_MHz, 6)), r.reference_MHz === null ? "none recommended" : "MHz"],
+          ["Larmor frequency, bare nucleus", fixed(r.larmor_MHz, 6), "MHz"],
+          ["0 ppm − bare nucleus", diffText(r), r.difference_ppm === null ? "" : "ppm"],
           ["Spin", r.spin],
           ["Natural abundance", fmt(r.abundance_percent, 4), "%"],
-        ]));
+        ]), el("p", { class: "hint" }, r.difference_note));
       },
     });
 
@@ -52,8 +52,8 @@ NMR.registerPanel({
       fields: [
         { id: "nucleus", label: "Nucleus", value: "1H", list: "nuclide-list" },
         { id: "direction", label: "Convert", kind: "select", options: [["ppm", "ppm → Hz"], ["Hz", "Hz → ppm"]] },
-        { id: "amount", label: "Value", value: "7.26", inputmode: "decimal", keys: ["ppm", "Hz"] },
-        { id: "carrier", label: "Carrier (ppm, optional)", value: "", inputmode: "decimal", keys: ["carrier_ppm"] },
+        { id: "amount", label: "Value", value: "7.26", keys: ["ppm", "Hz"] },
+        { id: "carrier", label: "Carrier (ppm, optional)", value: "", keys: ["carrier_ppm"] },
       ],
       request(v) {
         const req = { op: "ppm_hz", nucleus: v.nucleus.value, ...NMR.magnetRequest(v.magnet) };
@@ -73,6 +73,47 @@ NMR.registerPanel({
       },
     });
 
+    const window_ = NMR.form({
+      id: "acqwin",
+      title: "Acquisition window",
+      intro: "From the shift range to record: carrier, spectral width, dwell and acquisition time, digital resolution; with a 90° pulse length, the nutation frequency and the range that pulse excites well.",
+      shared: [magnet],
+      fields: [
+        { id: "nucleus", label: "Nucleus", value: "13C", list: "nuclide-list" },
+        { id: "low", label: "From (ppm)", value: "-10", keys: ["low_ppm"] },
+        { id: "high", label: "To (ppm)", value: "230", keys: ["high_ppm"] },
+        { id: "points", label: "Complex points", value: "32768", inputmode: "numeric", keys: ["points"] },
+        { id: "pulse", label: "90° pulse (µs, optional)", value: "10", keys: ["pulse_90"], hint: "A bare number is in µs; or type e.g. 12.5 us, 0.01 ms." },
+      ],
+      request(v) {
+        const req = { op: "acquisition_window", nucleus: v.nucleus.value, low_ppm: v.low.value, high_ppm: v.high.value, ...NMR.magnetRequest(v.magnet) };
+        const n = v.points.value;
+        req.points = /^\d+$/.test(n) ? Number(n) : n;
+        const pulse = v.pulse.value;
+        if (pulse !== "") req.pulse_90 = pulse;
+        return req;
+      },
+      render(r, out) {
+        const rows = [
+          ["Carrier", fixed(r.carrier_MHz, 6), "MHz"],
+          ["Carrier from 0 ppm", `${fmt(r.carrier_ppm, 6)} ppm · ${fmt(r.carrier_offset_Hz, 7)} Hz`],
+          ["Spectral width", `${fmt(r.spectral_width_Hz, 7)} Hz · ${fmt(r.spectral_width_kHz, 5)} kHz`],
+          ["Dwell time", fmt(r.dwell_time_us, 5), "µs"],
+          ["Acquisition time", fmt(r.acquisition_time_ms, 5), "ms"],
+          ["Digital resolution", `${fmt(r.digital_resolution_Hz, 4)} Hz/point · ${fmt(r.digital_resolution_ppm, 4)} ppm/point`],
+        ];
+        if (r.nutation_Hz !== null) {
+          rows.push(
+            ["Nutation frequency γB₁/2π", fmt(r.nutation_kHz, 5), "kHz"],
+            ["B₁", NMR.numberNode(fmt(r.B1_mT, 4)), "mT"],
+            [`Excited well (≥ ${fmt(r.well_excited_percent, 3)} % signal)`, `± ${fmt(r.well_excited_kHz, 4)} kHz · ± ${fmt(r.well_excited_ppm, 4)} ppm`],
+            ["Signal at the window edges", fmt(r.edge_percent, 3), "%"],
+          );
+        }
+        out.replaceChildren(NMR.resultList(rows), el("p", { class: "hint" }, "Quadrature detection: dwell time = 1 / spectral width; acquisition time = points × dwell time; resolution before zero filling."));
+      },
+    });
+
     const table = NMR.form({
       id: "table",
       title: "Every nuclide at this magnet",
@@ -81,15 +122,15 @@ NMR.registerPanel({
       submitLabel: "Show table",
       fields: [
         { id: "spinhalf", label: "Spin ½ only", kind: "checkbox", value: false, keys: ["spin_half_only"] },
-        { id: "minab", label: "Minimum abundance (%)", value: "", inputmode: "decimal", keys: ["min_abundance_percent"] },
-        { id: "minmhz", label: "From (MHz)", value: "", inputmode: "decimal", keys: ["min_MHz"] },
-        { id: "maxmhz", label: "To (MHz)", value: "", inputmode: "decimal", keys: ["max_MHz"] },
+        { id: "minab", label: "Minimum abundance (%)", value: "", keys: ["min_abundance_percent"] },
+        { id: "minmhz", label: "From (MHz)", value: "", keys: ["min_MHz"] },
+        { id: "maxmhz", label: "To (MHz)", value: "", keys: ["max_MHz"] },
       ],
       request(v) {
         const req = { op: "frequency", spin_half_only: v.spinhalf.value, ...NMR.magnetRequest(v.magnet) };
         if (v.minab.value !== "") req.min_abundance_percent = v.minab.value;
-        if (v.minmhz.value !== "") req.min_MHz = `${v.minmhz.value} MHz`;
-        if (v.maxmhz.value !== "") req.max_MHz = `${v.maxmhz.value} MHz`;
+        if (v.minmhz.value !== "") req.min_MHz = v.minmhz.value;
+        if (v.maxmhz.value !== "") req.max_MHz = v.maxmhz.value;
         return req;
       },
       render(r, out) {
@@ -97,19 +138,20 @@ NMR.registerPanel({
           { key: "A", label: "Nuclide", value: (row) => row.symbol.replace(/^\d+/, "") + row.symbol.match(/^\d+/)[0].padStart(3, "0"), show: (row) => nuclideLabel(row.symbol) },
           { key: "spin", label: "Spin", value: (row) => { const [n, d] = row.spin.split("/"); return Number(n) / Number(d || 1); }, show: (row) => row.spin },
           { key: "ab", label: "Abundance %", numeric: true, value: (row) => row.abundance_percent, show: (row) => fmt(row.abundance_percent, 4) },
-          { key: "nu", label: "Larmor MHz", numeric: true, value: (row) => row.larmor_MHz, show: (row) => fixed(row.larmor_MHz, 4) },
           { key: "ref", label: "0 ppm MHz", numeric: true, value: (row) => row.reference_MHz, show: (row) => fixed(row.reference_MHz, 4) },
-          { key: "dppm", label: "0 ppm − Larmor, ppm", numeric: true, value: (row) => row.difference_ppm, show: (row) => ppmText(row.difference_ppm) },
-          { key: "dc", label: "Receptivity vs ¹³C", numeric: true, value: (row) => row.receptivity_C, show: (row) => NMR.numberNode(fmt(row.receptivity_C, 3)) },
+          { key: "nu", label: "Bare nucleus MHz", numeric: true, value: (row) => row.larmor_MHz, show: (row) => fixed(row.larmor_MHz, 4) },
+          { key: "dppm", label: "0 ppm − bare, ppm", numeric: true, value: (row) => row.difference_ppm, show: diffText },
+          { key: "dc", label: "Signal vs ¹³C at natural abundance", numeric: true, value: (row) => row.receptivity_C, show: (row) => NMR.numberNode(fmt(row.receptivity_C, 3)) },
         ];
         out.replaceChildren(
           el("p", { class: "count" }, `${r.count} nuclides at ${fmt(r.field_T, 5)} T`),
           NMR.sortableTable(columns, r.table, "Magnetic nuclides at the chosen magnet"),
+          el("p", { class: "hint" }, r.difference_note, " Signal vs ¹³C: |γ|³ I(I+1) × natural abundance, relative to the same for ¹³C (equal numbers of atoms, same conditions)."),
         );
       },
     });
 
-    container.append(el("div", { class: "cards" }, magnetCard, one.node, convert.node, table.node));
+    container.append(el("div", { class: "cards" }, magnetCard, one.node, convert.node, window_.node, table.node));
     container.lastChild.lastChild.classList.add("card-wide");
   },
 });

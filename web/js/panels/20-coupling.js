@@ -1,5 +1,5 @@
 // Panel: coupling between isotopologues — scale J from one isotope to another
-// by the ratio of magnetogyric ratios; optionally the reduced coupling K.
+// by the ratio of magnetogyric ratios (of Ξ where both share a reference compound); optionally the reduced coupling K.
 "use strict";
 
 NMR.registerPanel({
@@ -12,27 +12,27 @@ NMR.registerPanel({
       title: "Scale a coupling to another isotope",
       intro: "A coupling measured with one isotope (say ²H) predicts the coupling of the same bond with another (¹H).",
       fields: [
-        { id: "J", label: "Measured J (Hz)", value: "32", inputmode: "decimal" },
+        { id: "J", label: "Measured J (Hz)", value: "32" },
         { id: "from", label: "Measured with isotope", value: "2H", list: "nuclide-list" },
         { id: "to", label: "Predict for isotope", value: "1H", list: "nuclide-list" },
         { id: "partner", label: "Coupling partner (optional, for K)", value: "13C", list: "nuclide-list" },
       ],
       request(v) {
-        const req = { op: "scale_coupling", J: v.J.value === "" ? "" : `${v.J.value} Hz`, from: v.from.value, to: v.to.value };
+        const req = { op: "scale_coupling", J: v.J.value, from: v.from.value, to: v.to.value };
         if (v.partner.value !== "") req.partner = v.partner.value;
         return req;
       },
       render(r, out) {
         const rows = [
           ["Predicted J", el("span", {}, fmt(r.J_Hz, 5)), "Hz"],
-          ["Ratio γ(to) / γ(from)", fmt(r.ratio, 6)],
+          [r.ratio_source === "xi" ? "Ratio Ξ(to) / Ξ(from)" : "Ratio γ(to) / γ(from)", fmt(r.ratio, 7)],
           ["Sign of J", r.sign_flipped ? "flips (γ of opposite sign)" : "unchanged"],
         ];
         if (r.reduced_coupling !== null) {
           rows.push([el("span", {}, "Reduced coupling K (", nuclideLabel(r.from), "–", nuclideLabel(r.partner), ")"),
             NMR.numberNode(fmt(r.reduced_coupling, 4)), "N A⁻² m⁻³"]);
         }
-        out.replaceChildren(NMR.resultList(rows));
+        out.replaceChildren(NMR.resultList(rows), el("p", { class: "hint" }, r.ratio_note));
       },
     });
     container.append(el("div", { class: "cards" }, scale.node));

@@ -17,21 +17,20 @@ NMR.registerPanel({
       intro: "The energy of one NMR transition at this magnet and temperature, next to an optical photon if you give one.",
       fields: [
         { id: "nucleus", label: "Nucleus", value: "1H", list: "nuclide-list" },
-        { id: "magnet", label: "Magnet", value: "500", inputmode: "decimal", units: NMR.MAGNET_UNITS, keys: ["spectrometer", "field"] },
-        { id: "temperature", label: "Temperature (K)", value: "298", inputmode: "decimal" },
+        { id: "magnet", label: "Magnet", value: "500", units: NMR.MAGNET_UNITS, keys: ["spectrometer", "field"] },
+        { id: "temperature", label: "Temperature (K)", value: "298" },
         {
-          id: "photon", label: "Photon (optional)", value: "254", hint: "A UV/visible wavelength or an IR wavenumber to compare with.", inputmode: "decimal", keys: ["wavelength", "wavenumber"],
+          id: "photon", label: "Photon (optional)", value: "254", hint: "A UV/visible wavelength or an IR wavenumber to compare with.", keys: ["wavelength", "wavenumber"],
           units: [{ unit: "nm", label: "nm" }, { unit: "cm-1", label: "cm⁻¹" }],
         },
       ],
       request(v) {
         const req = {
-          op: "energy", nucleus: v.nucleus.value, temperature: v.temperature.value === "" ? "" : `${v.temperature.value} K`,
+          op: "energy", nucleus: v.nucleus.value, temperature: v.temperature.value,
           ...NMR.magnetRequest(v.magnet),
         };
         if (v.photon.value !== "") {
-          if (v.photon.unit === "nm") req.wavelength = `${v.photon.value} nm`;
-          else req.wavenumber = `${v.photon.value} cm-1`;
+          req[v.photon.unit === "nm" ? "wavelength" : "wavenumber"] = v.photon.value;
         }
         return req;
       },
@@ -64,7 +63,7 @@ NMR.registerPanel({
       fields: [
         { id: "nucleus", label: "Nucleus", value: "15N", list: "nuclide-list" },
         { id: "relative_to", label: "Relative to", value: "13C", list: "nuclide-list" },
-        { id: "enrichment", label: "Enrichment (%, optional)", value: "", inputmode: "decimal", keys: ["enrichment_percent"] },
+        { id: "enrichment", label: "Enrichment (%, optional)", value: "", keys: ["enrichment_percent"] },
       ],
       request(v) {
         const req = { op: "sensitivity", nucleus: v.nucleus.value, relative_to: v.relative_to.value };

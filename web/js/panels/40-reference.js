@@ -45,7 +45,7 @@ NMR.registerPanel({
     const search = NMR.form({
       id: "nuclides",
       title: "Find a nuclide",
-      intro: "Search by symbol, element name or reference compound.",
+      intro: "Search by nuclide (13C, N-15, ¹⁵N, D), element symbol or name, or mass number.",
       submitLabel: "Search",
       fields: [{ id: "search", label: "Search", value: "", placeholder: "e.g. nitrogen, 19F, Sn" }],
       request: (v) => ({ op: "nuclides", search: v.search.value }),

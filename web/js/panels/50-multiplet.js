@@ -35,6 +35,12 @@ NMR.registerPanel({
         abundance: [],
       },
       {
+        name: "Made-up ammonium salt: 14N splitting partly collapsed",
+        fixed: { observe: "1H", magnet: ["400", "MHz"], center: "7.1", linewidth: "1", shape: "lorentzian" },
+        groups: [{ kind: "partner", partner: "14N", count: "1", J: "52", J_isotope: "", quadrupolar: "", T1: "5" }],
+        abundance: [],
+      },
+      {
         name: "Borohydride salt",
         fixed: { observe: "1H", magnet: ["400", "MHz"], center: "-0.4", linewidth: "3", shape: "lorentzian" },
         groups: [{ kind: "partner", partner: "B", count: "1", J: "81", J_isotope: "11B", quadrupolar: "resolved" }],
@@ -96,6 +102,22 @@ NMR.registerPanel({
       return el("div", { class: "field" }, el("label", { for: id }, label), select, error);
     }
 
+    // T1 of a quadrupolar partner: a text field in ms and a logarithmic slider (0.01 ms … 1000 ms) driving it.
+    function t1Field(g, base, key) {
+      const wrap = rowInput(`${base}-t1`, "Partner T1 (ms), quadrupolar only", g.T1 || "", `${key}.T1`, (v) => { g.T1 = v; }, { inputmode: "decimal", placeholder: "not set" });
+      const slider = el("input", { type: "range", id: `${base}-t1-slider`, min: "-2", max: "3", step: "0.05", "aria-label": "Partner T1, logarithmic from 0.01 ms to 1000 ms" });
+      slider.value = g.T1 && Number(g.T1) > 0 ? String(Math.log10(Number(g.T1))) : "3";
+      const text = wrap.querySelector("input");
+      slider.addEventListener("input", () => {
+        g.T1 = short(10 ** Number(slider.value), 3);
+        text.value = g.T1;
+        save();
+        schedule();
+      });
+      wrap.insertBefore(slider, wrap.querySelector(".field-error"));
+      return wrap;
+    }
+
     function drawRows() {
       rowErrors.clear();
       groupBox.replaceChildren(...rows.groups.map((g, i) => {
@@ -127,6 +149,12 @@ NMR.registerPanel({
           box.append(
             rowInput(`${base}-jiso`, "J belongs to isotope (elements)", g.J_isotope || "", `${key}.J_isotope`, (v) => { g.J_isotope = v; }, { list: "nuclide-list", placeholder: "default" }),
             rowSelect(`${base}-quad`, "Quadrupolar splitting", g.quadrupolar || "", [["", "Usual choice"], ["resolved", "Resolved"], ["collapsed", "Collapsed"]], `${key}.quadrupolar`, (v) => { g.quadrupolar = v; }),
+            rowSelect(`${base}-equiv`, "Same site as the observed nucleus?", g.equivalent || "", [["", "Automatic (yes for its own element)"], ["yes", "Yes: equivalent, no splitting by its isotope"], ["no", "No: a neighbouring group"]], `${key}.equivalent`, (v) => { g.equivalent = v; }),
+            rowInput(`${base}-siso`, "Enrichment here: isotope", g.site_isotope || "", `${key}.abundance`, (v) => { g.site_isotope = v; }, { list: "nuclide-list", placeholder: "e.g. 2H" }),
+            rowInput(`${base}-spct`, "Enrichment here (%)", g.site_percent || "", `${key}.abundance.pct`, (v) => { g.site_percent = v; }, { inputmode: "decimal", placeholder: "request default" }),
+            rowInput(`${base}-shiso`, "Isotope shift: isotope", g.shift_isotope || "", `${key}.isotope_shift`, (v) => { g.shift_isotope = v; }, { list: "nuclide-list", placeholder: "e.g. 2H" }),
+            rowInput(`${base}-shppm`, "Shift per atom (ppm)", g.shift_ppm || "", `${key}.isotope_shift.ppm`, (v) => { g.shift_ppm = v; }, { inputmode: "decimal", placeholder: "none" }),
+            t1Field(g, base, key),
           );
         }
         box.append(el("div", { class: "field" }, remove));
@@ -199,9 +227,10 @@ NMR.registerPanel({
     const spectrumBox = el("div");
     const spectrum = NMRPlot.create(spectrumBox, { label: "Line-shape spectrum", height: 300, fileName: "multiplet-spectrum" });
     spectrum.node.id = "mult-spectrum";
+    const rulesBox = el("div", { id: "mult-rules" });
     const isoBox = el("div", { id: "mult-isotopologues" });
     const linesBox = el("div", { id: "mult-lines" });
-    out.append(headline, ratio, warn, plots, spectrumTitle, spectrumBox, isoBox, linesBox);
+    out.append(headline, ratio, warn, rulesBox, plots, spectrumTitle, spectrumBox, isoBox, linesBox);
     card.append(out);
     // bench notebook: pin / share this result (web/js/notebook.js)
     const pin = NMR.pinSource({
@@ -212,20 +241,24 @@ NMR.registerPanel({
     container.append(el("div", { class: "cards" }, card));
 
     function groupRequest(g) {
-      const req = { count: g.count.trim() === "" ? "" : Number(g.count), J: g.J.trim() === "" ? "" : `${g.J.trim()} Hz` };
+      const req = { count: g.count.trim() === "" ? "" : Number(g.count), J: g.J.trim() };
       if (Number.isNaN(req.count)) req.count = g.count;
       if (g.kind === "spin") req.spin = (g.spin || "").trim();
       else req.partner = (g.partner || "").trim();
       if (g.kind !== "spin" && (g.J_isotope || "").trim()) req.J_isotope = g.J_isotope.trim();
       if (g.kind !== "spin" && g.quadrupolar) req.quadrupolar = g.quadrupolar;
+      if (g.kind !== "spin" && (g.T1 || "").trim()) req.T1 = `${g.T1.trim()} ms`;
+      if (g.kind !== "spin" && g.equivalent) req.equivalent = g.equivalent === "yes";
+      if (g.kind !== "spin" && (g.site_isotope || "").trim()) req.abundance = { [g.site_isotope.trim()]: (g.site_percent || "").trim() };
+      if (g.kind !== "spin" && (g.shift_isotope || "").trim()) req.isotope_shift = { [g.shift_isotope.trim()]: (g.shift_ppm || "").trim() };
       return req;
     }
     function request() {
       const req = { op: "multiplet", observe: fixed.observe.read().value, ...NMR.magnetRequest(fixed.magnet.read()) };
       const center = fixed.center.read().value;
-      if (center !== "") req.center = `${center} ppm`;
+      if (center !== "") req.center = center;
       const width = fixed.linewidth.read().value;
-      req.linewidth = width === "" ? "" : `${width} Hz`;
+      req.linewidth = width;
       req.shape = fixed.shape.read().value;
       req.spectrum = true;
       req.groups = rows.groups.map(groupRequest);
@@ -277,7 +310,44 @@ NMR.registerPanel({
       return i === 0 ? "" : ` — ${role(r, i)}`;
     }
 
+    function renderRules(r) {
+      const offers = (r.isotope_shift_suggestions || []).map((o) => {
+        const button = el("button", { type: "button", class: "small-button", "data-group": o.group },
+          `Use ${o.shift_ppm} ppm per ${o.isotope} in group ${o.group + 1}`);
+        button.addEventListener("click", () => {
+          const g = rows.groups[o.group];
+          if (!g) return;
+          g.shift_isotope = o.isotope;
+          g.shift_ppm = String(o.shift_ppm);
+          save();
+          drawRows();
+          run();
+        });
+        return el("li", {}, button, ` ${o.note} — ${o.source}.`);
+      });
+      const pc = r.partial_collapse;
+      rulesBox.replaceChildren(
+        ...(r.rules || []).map((text) => el("p", { class: "hint rule" }, text)),
+        ...(pc ? [el("p", { class: "hint rule", id: "mult-collapse" }, `Group ${pc.group + 1} (I = ${pc.spin}): T1 = ${short(pc.T1_s * 1000, 3)} ms, 2πJT1 = ${short(pc.two_pi_J_T1, 3)} — resolved when ≫ 1, one line when ≪ 1. Line shape: ${pc.source}.`)] : []),
+        ...(offers.length ? [el("p", { class: "hint" }, "Isotope shifts are not applied unless you set them. Typical values, one tap to use:"), el("ul", { class: "offers" }, ...offers)] : []),
+      );
+    }
+
+    // Hand the isotopologue shares of a one-site H/D mixture to the deuteration section
+    // (index = number of 2H atoms); a plain regrouping of the result, no physics.
+    function rememberShares(r) {
+      const isos = r.isotopologues || [];
+      const site = isos.length && isos.every((x) => x.atoms && x.atoms.length === 1) && isos.some((x) => x.atoms[0]["2H"]);
+      if (!site) return NMR.remember("mult.byD", null);
+      const positions = Object.values(isos[0].atoms[0]).reduce((a, b) => a + b, 0);
+      const integrals = new Array(positions + 1).fill(0);
+      for (const x of isos) integrals[x.atoms[0]["2H"] || 0] += x.share * 100;
+      NMR.remember("mult.byD", { positions, integrals });
+    }
+
     function render(r, warnings, sent) {
+      renderRules(r);
+      rememberShares(r);
       headline.textContent = r.label;
       ratio.textContent = r.ratio ? `Intensity ratio ${r.ratio}` : "Several isotopologues: see the table below for each pattern and share.";
       warn.replaceChildren(...warnings.map((text) => el("li", {}, text)));
@@ -318,6 +388,7 @@ NMR.registerPanel({
           { key: "share", label: "Share (%)", numeric: true, value: (x) => x.share, show: (x) => short(x.share * 100, 5) },
           { key: "mult", label: "Pattern", value: (x) => x.multiplet, show: (x) => x.multiplet },
           { key: "ratio", label: "Ratio", value: (x) => x.ratio, show: (x) => x.ratio },
+          { key: "centre", label: ppm ? "Centre (ppm)" : "Centre (Hz)", numeric: true, value: (x) => x.center_Hz, show: (x) => (ppm ? NMR.fixed(x.center_ppm, 4) : NMR.fixed(x.center_Hz, 3)) },
           { key: "role", label: "Role", value: (x) => x.role, show: (x) => x.role },
         ];
         const isoRows = r.isotopologues.map((x, i) => ({ ...x, role: role(r, i) }));

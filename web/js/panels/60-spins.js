@@ -231,16 +231,16 @@ NMR.registerPanel({
     function baseRequest() {
       const req = { op: "spin_system", observe: fixed.observe.read().value, spectrum: true };
       const width = fixed.linewidth.read().value;
-      req.linewidth = width === "" ? "" : `${width} Hz`;
+      req.linewidth = width;
       req.spins = rows.spins.map((s) => {
         const count = Number(s.count);
-        return { nucleus: s.nucleus.trim(), shift: s.shift.trim() === "" ? "" : `${s.shift.trim()} ppm`, count: s.count.trim() === "" || Number.isNaN(count) ? s.count : count };
+        return { nucleus: s.nucleus.trim(), shift: s.shift.trim(), count: s.count.trim() === "" || Number.isNaN(count) ? s.count : count };
       });
-      req.couplings = rows.couplings.map((c) => ({ between: [c.i, c.j], J: String(c.J).trim() === "" ? "" : `${String(c.J).trim()} Hz` }));
+      req.couplings = rows.couplings.map((c) => ({ between: [c.i, c.j], J: String(c.J).trim() }));
       return req;
     }
     function fieldList() {
-      return fixed.fields.read().value.split(/[,;\s]+/).filter(Boolean).map((v) => `${v} MHz`);
+      return fixed.fields.read().value;
     }
 
     function clearErrors() {

@@ -47,10 +47,16 @@ NMR.registerPanel({
       }),
       partners: NMR.sharedField("ident", {
         id: "partners", label: "Allowed partners", value: "", placeholder: "e.g. H, 2H, B, Pt", keys: ["partners"],
-        hint: "Nuclides, elements or spins (1/2, spin=3/2), comma-separated. Blank: bare spins 1/2 to 3.",
+        hint: "Nuclides, elements or spins (1/2, spin=3/2), comma-separated. Blank: spin 1/2 first on 1H, 13C, 19F and 31P (higher spins only when the intensities need them), and natural-abundance satellites for a weak symmetric pair.",
       }),
       tolerance: NMR.sharedField("ident", {
-        id: "tolerance", label: "Position tolerance (Hz)", value: "", inputmode: "decimal", placeholder: "default", keys: ["tolerance"],
+        id: "tolerance", label: "Position tolerance (Hz)", value: "", inputmode: "decimal", placeholder: "from the data", keys: ["tolerance"],
+      }),
+      linewidth: NMR.sharedField("ident", {
+        id: "linewidth", label: "Line width (Hz), if known", value: "", inputmode: "decimal", placeholder: "not known", keys: ["linewidth"],
+      }),
+      resolution: NMR.sharedField("ident", {
+        id: "resolution", label: "Digital resolution (Hz per point), if known", value: "", inputmode: "decimal", placeholder: "not known", keys: ["digital_resolution"],
       }),
       maxGroups: NMR.sharedField("ident", {
         id: "max_groups", label: "Most groups of partners", kind: "select", keys: ["max_groups"],
@@ -216,7 +222,11 @@ NMR.registerPanel({
       const partners = partnerList(fixed.partners.read().value);
       if (partners.length) req.partners = partners;
       const tolerance = fixed.tolerance.read().value;
-      if (tolerance !== "") req.tolerance = /[a-z]/i.test(tolerance) ? tolerance : `${tolerance} Hz`;
+      if (tolerance !== "") req.tolerance = tolerance;
+      for (const [key, f] of [["linewidth", fixed.linewidth], ["digital_resolution", fixed.resolution]]) {
+        const text = f.read().value;
+        if (text !== "") req[key] = text;
+      }
       req.max_groups = Number(fixed.maxGroups.read().value);
       if (mode === "paste") {
         req.peaklist = peaklist.value;
