@@ -9,6 +9,8 @@ from __future__ import annotations
 
 import csv
 
+import pytest
+
 from playwright.sync_api import expect
 
 from nmrcalc.api import handle
@@ -54,11 +56,14 @@ def test_build_export_zoom_and_errors(dist, open_page):
     with page.expect_download() as info:
         page.click("#mult-csv")
     with open(info.value.path(), newline="") as handle_csv:
-        table = list(csv.reader(handle_csv))
+        text = handle_csv.read()
+    assert text.startswith("# nmrcalc ")  # the commented header block (version, date, inputs)
+    table = list(csv.reader(line for line in text.splitlines() if not line.startswith("# ")))
     assert table[0] == ["ppm", "Hz", "intensity"]
     assert len(table) == 1 + len(want["lines"])
-    for row, line in zip(table[1:], want["lines"]):
-        assert [float(v) for v in row] == [line["ppm"], line["Hz"], line["intensity"]]
+    ordered = sorted(want["lines"], key=lambda line: -line["ppm"])  # high to low ppm, as spectra are read
+    for row, line in zip(table[1:], ordered):
+        assert [float(v) for v in row] == pytest.approx([line["ppm"], line["Hz"], line["intensity"]], rel=1e-6, abs=1e-9)
 
     raw = page.get_attribute("#mult-spectrum svg", "data-view")
     before = _view(page, "#mult-spectrum")

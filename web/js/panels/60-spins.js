@@ -348,7 +348,7 @@ NMR.registerPanel({
 
     for (const preset of PRESETS) {
       const button = el("button", { type: "button", class: "preset" }, preset.name);
-      button.addEventListener("click", () => {
+      button.addEventListener("click", () => NMR.withUndo("spins", `The example “${preset.name}”`, () => {
         fixed.magnet.input.value = preset.magnet;
         fixed.magnet.unitSelect.value = "MHz";
         fixed.magnet.save();
@@ -358,7 +358,7 @@ NMR.registerPanel({
         save();
         drawRows();
         run();
-      });
+      }));
       presetBar.append(button);
     }
     drawRows();
