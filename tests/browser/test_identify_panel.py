@@ -8,6 +8,7 @@ tests check that the page shows what the package computes (the physics of
 the search is tested in tests/test_identify*.py)."""
 
 from __future__ import annotations
+
 import re
 
 from playwright.sync_api import expect

@@ -10,7 +10,6 @@ from __future__ import annotations
 import csv
 
 import pytest
-
 from playwright.sync_api import expect
 
 from nmrcalc.api import handle
