@@ -281,13 +281,13 @@ const NMR = (() => {
     }
     return found;
   }
-  /** A field's label, hint and default from its declaration (field.param, e.g. 'frequency.min_MHz'); the field's own win. */
+  /** A field's label (with the unit) and default from its declaration, and its hint with hint: true (field.param, e.g. 'frequency.min_MHz'); the field's own win. */
   function declaredField(field) {
     const decl = field.param ? param(field.param) : null;
     if (!decl) return field;
     const unit = decl.unit && decl.unit !== "%" ? ` (${decl.unit})` : decl.unit === "%" ? " (%)" : "";
     const value = decl.default === null || decl.default === undefined || typeof decl.default === "object" ? undefined : decl.default;
-    return { label: `${decl.label}${unit}`, hint: decl.help, value, ...field };
+    return { label: `${decl.label}${unit}`, value, ...field, hint: field.hint === true ? decl.help : field.hint };
   }
 
   // ---------- forms ----------
