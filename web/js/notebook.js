@@ -269,7 +269,10 @@ const NMRNotebook = (() => {
     const decl = NMR.param(`${op}.${key}`);
     const [name, unit] = splitKey(key);
     const label = decl && decl.label ? decl.label : name;
+    // a bare number typed into a field is in the field's declared unit: show that unit beside it
+    const bare = decl && decl.unit && /^[-+−]?\d+(\.\d+)?$/.test(String(value).trim());
     const shownUnit = decl ? "" : unit;
+    if (bare) return [label, `${String(value).trim()} ${decl.unit}`];
     return [label, `${valueText(value, decl ? `${op}.${key}` : null)}${shownUnit && typeof value === "number" ? ` ${shownUnit}` : ""}`];
   }
   const inputRows = (pin) => Object.entries(pin.request).filter(([k]) => k !== "op").map(([k, v]) => labelled(pin.op, k, v));
