@@ -227,7 +227,8 @@ def machine_line() -> str:
         version = subprocess.run([chromium, "--version"], capture_output=True, text=True, timeout=30).stdout.strip()
     except (OSError, subprocess.SubprocessError):
         version = "chromium version unknown"
-    load = "load average %.2f %.2f %.2f at start" % os.getloadavg() if hasattr(os, "getloadavg") else "load unknown"
+    load = ("load average {:.2f} {:.2f} {:.2f} at start".format(*os.getloadavg()) if hasattr(os, "getloadavg")
+            else "load unknown")
     return (f"machine: {cpu}, {os.cpu_count()} cores, {mem:.1f} GiB memory, {load}; "
             f"CPython {platform.python_version()}; {version or 'chromium version unknown'}")
 
@@ -373,12 +374,12 @@ def multiplet_section(bench: Bench) -> list:
         request = {"op": "multiplet", "observe": "1H", "spectrometer": "400 MHz",
                    "groups": [{"spin": str(s), "count": c, "J": J} for s, c, J in groups]}
         lines = len(multiplet(groups))
-        physics = statistics.median(cpython_times(lambda: multiplet(groups), n))
+        physics = statistics.median(cpython_times(lambda groups=groups: multiplet(groups), n))
         api = statistics.median(cpython_times(_handled(request), n))
         page = statistics.median(page_times(bench, request, n))
         _numpy_peer(groups, "float64")  # warm-up: the numpy import and first-call costs are not timed
-        f64 = statistics.median(cpython_times(lambda: _numpy_peer(groups, "float64"), n))
-        obj = statistics.median(cpython_times(lambda: _numpy_peer(groups, object), n))
+        f64 = statistics.median(cpython_times(lambda groups=groups: _numpy_peer(groups, "float64"), n))
+        obj = statistics.median(cpython_times(lambda groups=groups: _numpy_peer(groups, object), n))
         rows.append([name, str(lines), physics, api, page, f64, obj])
         ratio_rows.append([name, page / api, physics / f64, physics / obj])
     return ([f"  median of {n}; times in ms; 'API' = the multiplet op (lines, tree, no spectrum)"]
@@ -494,9 +495,9 @@ def _molecule_rows(bench: Bench, base: dict) -> list:
         times = []
         for use_numpy in (False, True):
             solver = spin_system._solver
-            spin_system._solver = lambda _u, use_numpy=use_numpy: solver(use_numpy)
+            spin_system._solver = lambda _u, use_numpy=use_numpy, solver=solver: solver(use_numpy)
             try:
-                times.append(statistics.median(cpython_times(lambda: handle(req), 1)) / 1000)
+                times.append(statistics.median(cpython_times(lambda req=req: handle(req), 1)) / 1000)
             finally:
                 spin_system._solver = solver
         rows.append([name, page if why is None else why, times[0], times[1],

@@ -44,6 +44,7 @@ APP_ZIP = "/home/pyodide/nmrcalc.zip"  # where web/worker.js puts nmrcalc.zip (i
 # Pyodide JS modules must be data: URLs (a file:// page has an opaque origin, so blob: module
 # workers do not start), hence script-src/worker-src data:; the worker fetches nothing
 # (its fetch is answered from memory), hence connect-src 'none'.
+# img-src data: in both: PNG export draws the plot's SVG (a data: URL) onto a canvas.
 # Not possible by <meta>: frame-ancestors, report-uri/report-to, sandbox (header-only).
 SITE_CSP = (
     "default-src 'self'; script-src 'self' 'wasm-unsafe-eval'; worker-src 'self'; "

@@ -2,7 +2,8 @@
 
 import json
 
-from hypothesis import given, settings, strategies as st
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from nmrcalc.api import OPS, handle, handle_json
 

@@ -16,7 +16,7 @@ def test_readme_op_table_matches_the_declarations():
     start = text.index("-->", text.index("<!-- op table")) + 3
     end = text.index("<!-- end of op table -->")
     assert text[start:end].strip() == markdown_table(declarations()), \
-        "README op table is stale: paste `python -m nmrcalc describe --markdown`"
+        "README op table is stale: run `python build_scripts/op_table.py`"
 
 
 def codes_in_package() -> set[str]:

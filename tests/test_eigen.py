@@ -33,7 +33,7 @@ def test_returns_plain_lists_sorted_ascending():
     values, vectors = eigh([[2.0, 1.0], [1.0, 2.0]])
     assert type(values) is list and all(type(x) is float for x in values)
     assert type(vectors) is list and all(type(v) is list for v in vectors)
-    # eigenvalues of [[2,1],[1,2]] are 1 and 3 (hand calculation, from memory)
+    # eigenvalues of [[2,1],[1,2]] are 1 and 3 (hand calculation: the characteristic polynomial λ² − 4λ + 3 = 0)
     assert values == pytest.approx([1.0, 3.0], abs=1e-15)
 
 

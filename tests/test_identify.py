@@ -7,8 +7,7 @@ from fractions import Fraction as F
 import pytest
 
 from nmrcalc.errors import InputError
-from nmrcalc.physics.identify import (
-    Group, PartnerOption, _plain_lines, identify, predict, spin_option)
+from nmrcalc.physics.identify import Group, PartnerOption, _plain_lines, identify, predict, spin_option
 from nmrcalc.physics.multiplet import merge_lines, multiplet, normalized
 
 HALF = F(1, 2)

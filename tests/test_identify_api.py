@@ -138,6 +138,16 @@ def test_cli_identify_readable_json_and_file(capsys, tmp_path):
     assert "error [peaklist]" in capsys.readouterr().err
 
 
+def test_peaklist_never_drops_a_data_line_and_catches_decimal_commas():
+    # a first line with a number is data, not a header: its bad cell is reported, not dropped
+    with pytest.raises(InputError, match="line 1"):
+        parse_peaklist("7.26 x\n7.20 1\n7.10 1")
+    assert [p[1] for p in parse_peaklist("ppm intensity\n7.26 1\n7.20 1").peaks] == [7.26, 7.20]
+    with pytest.raises(InputError, match=r"did you mean 1\.5\?"):
+        parse_peaklist("1,5 100\n1,6 50")
+    assert [p[1] for p in parse_peaklist("7.26, 100\n7.20, 50").peaks] == [7.26, 7.20]  # comma-space CSV is fine
+
+
 def _labels(req):
     r = handle({"op": "identify", **req})
     assert r["ok"], r

@@ -68,8 +68,8 @@ def test_borohydride_proton():
     result = isotopologue_spectrum([(1, boron)])
     found = species_by_label(result)
     assert set(found) == {"11B1", "10B1"}
-    assert float(found["11B1"].share) == pytest.approx(0.80, abs=0.01)  # from memory
-    assert float(found["10B1"].share) == pytest.approx(0.20, abs=0.01)  # from memory
+    assert float(found["11B1"].share) == pytest.approx(0.80, abs=0.01)  # IUPAC 2001: 11B 80.1 %, 10B 19.9 %
+    assert float(found["10B1"].share) == pytest.approx(0.20, abs=0.01)  # IUPAC 2001 (as above)
     assert ratio_string(found["11B1"].sticks) == "1:1:1:1"  # I = 3/2: 2I + 1 equal lines (Günther, NMR Spectroscopy, 3rd ed.)
     assert found["11B1"].multiplet_label == "1:1:1:1 quartet"
     assert ratio_string(found["10B1"].sticks) == "1:1:1:1:1:1:1"  # I = 3: 2I + 1 equal lines (Günther, NMR Spectroscopy, 3rd ed.)
@@ -85,8 +85,8 @@ def test_platinum_satellites():
     result = isotopologue_spectrum([(1, platinum)])
     lines = result.lines
     assert [x for x, _ in lines] == pytest.approx([-600.0, 0.0, 600.0])
-    assert lines[0][1] == pytest.approx(0.169, abs=0.001)  # from memory
-    assert lines[2][1] == pytest.approx(0.169, abs=0.001)  # from memory
+    assert lines[0][1] == pytest.approx(0.169, abs=0.001)  # half of the 33.8 % given above (arithmetic)
+    assert lines[2][1] == pytest.approx(0.169, abs=0.001)  # (as above)
     assert lines[1][1] == pytest.approx(0.662)
     assert result.species[0].label == "Pt1 (no magnetic partner)"
 

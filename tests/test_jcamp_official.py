@@ -13,11 +13,11 @@ their headers only.
 
 import os
 import pathlib
-import tempfile
 import re
 import subprocess
 import sys
 import tarfile
+import tempfile
 import warnings
 
 import pytest

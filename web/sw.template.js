@@ -1,11 +1,17 @@
-// nmrcalc service worker: caches every file of the site at install so the
-// page works offline afterwards; answers from the cache first.
+// nmrcalc service worker: caches every file of the site at install (bypassing the HTTP cache,
+// so a new build never mixes with an old one) so the page works offline afterwards; answers
+// from the cache first. A new build waits until the page asks it to take over ("skip-waiting",
+// after the user chose to reload), so an open page never runs half old, half new files.
 "use strict";
 const CACHE = @CACHE@;
 const FILES = @FILES@;
 
 self.addEventListener("install", (event) => {
-  event.waitUntil(caches.open(CACHE).then((cache) => cache.addAll(FILES)).then(() => self.skipWaiting()));
+  event.waitUntil(caches.open(CACHE).then((cache) => cache.addAll(FILES.map((file) => new Request(file, { cache: "reload" })))));
+});
+
+self.addEventListener("message", (event) => {
+  if (event.data === "skip-waiting") self.skipWaiting();
 });
 
 self.addEventListener("activate", (event) => {

@@ -5,7 +5,7 @@ Format rules
 * Separators: a comma if the line has one, else a tab, else runs of spaces;
   a ``;`` line separator is accepted like a comma.  Blank lines and lines
   starting with ``#`` are skipped.
-* A header is the first line that contains a cell that is not a number.  Its
+* A header is the first line in which no cell is a number (so a data line is never taken for one).  Its
   cells name the columns: one containing ``hz`` is a position in Hz, one
   containing ``ppm`` a position in ppm; one containing ``int``, ``height``,
   ``area``, ``amp`` or ``abs`` is the intensity.  With both a Hz and a ppm
@@ -40,6 +40,9 @@ class PeakList(NamedTuple):
     unit: str | None
     intensities_given: bool
     header: list[str] | None
+
+
+_DECIMAL_COMMA = re.compile(r"^[-+−]?\d+,\d+$")  # "1,5" beside other columns split by spaces or tabs
 
 
 def _cells(line: str) -> list[str]:
@@ -78,8 +81,11 @@ def parse_peaklist(text: object, field: str = "peaklist") -> PeakList:
         line = raw.strip()
         if not line or line.startswith("#"):
             continue
+        comma = next((t for t in line.split() if _DECIMAL_COMMA.match(t)), None)
+        if comma is not None and len(line.split()) > 1:
+            raise InputError(f"{field} line {number}: '{comma}' has a decimal comma; did you mean {comma.replace(',', '.')}?", field)
         cells = _cells(raw.rstrip("\r\n "))  # keep a leading empty cell (e.g. an empty ppm column)
-        if header is None and not rows and any(c and _number(c) is None for c in cells):
+        if header is None and not rows and all(_number(c) is None for c in cells if c):
             header = cells
             continue
         rows.append((number, cells))

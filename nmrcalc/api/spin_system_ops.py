@@ -26,6 +26,7 @@ scale, ``nmrcalc.physics.larmor``); couplings do not change with the field.
 
 from __future__ import annotations
 
+import reprlib
 from fractions import Fraction
 
 from nmrcalc.api.fields import PROGRESS, flag, magnet, nucleus, quantity
@@ -124,7 +125,7 @@ def _spin_ref(x, labels: list[str], field: str) -> int:
     if isinstance(x, int) and not isinstance(x, bool) and 0 <= x < len(labels):
         return x
     raise InputError(f"between must name spins by label ({', '.join(labels[:6])}"
-                     f"{'…' if len(labels) > 6 else ''}) or index; {x!r} is neither.", field)
+                     f"{'…' if len(labels) > 6 else ''}) or index; {reprlib.repr(x)} is neither.", field)
 
 
 def _magnets(req, warnings) -> list[tuple[float, float]]:

@@ -8,13 +8,14 @@ tests check that the page shows what the package computes (the physics of
 the search is tested in tests/test_identify*.py)."""
 
 from __future__ import annotations
+
 import re
 
 from playwright.sync_api import expect
 
 from nmrcalc.api import handle
 
-# three equivalent spin-1 partners, J 19.5 Hz: 1:3:6:7:6:3:1  # Pascal-type triangle for spin 1, from memory
+# three equivalent spin-1 partners, J 19.5 Hz: 1:3:6:7:6:3:1  # three 1:1:1 triplets convolved (hand calculation)
 RATIO = [1, 3, 6, 7, 6, 3, 1]
 PEAKLIST = "Hz\tintensity\n" + "\n".join(f"{2000 + 19.5 * i:.2f}\t{w}" for i, w in enumerate(RATIO)) + "\n"
 BASE = {"op": "identify", "observe": "13C", "spectrometer": "400 MHz", "max_groups": 3, "peaklist": PEAKLIST}

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import csv
 
+import pytest
 from playwright.sync_api import expect
 
 from nmrcalc.api import handle
@@ -44,7 +45,7 @@ def test_build_export_zoom_and_errors(dist, open_page):
     page.click("#form-mult button[type=submit]")
 
     want = handle(REQUEST)["result"]
-    assert want["ratio"] == "1:3:6:7:6:3:1"  # Pascal-type triangle for three spin-1 nuclei, from memory
+    assert want["ratio"] == "1:3:6:7:6:3:1"  # three 1:1:1 triplets convolved (hand calculation)
     expect(page.locator("#mult-ratio")).to_contain_text(want["ratio"])
     rows = page.locator("#mult-lines tbody tr")
     expect(rows).to_have_count(len(want["lines"]))
@@ -54,11 +55,14 @@ def test_build_export_zoom_and_errors(dist, open_page):
     with page.expect_download() as info:
         page.click("#mult-csv")
     with open(info.value.path(), newline="") as handle_csv:
-        table = list(csv.reader(handle_csv))
+        text = handle_csv.read()
+    assert text.startswith("# nmrcalc ")  # the commented header block (version, date, inputs)
+    table = list(csv.reader(line for line in text.splitlines() if not line.startswith("# ")))
     assert table[0] == ["ppm", "Hz", "intensity"]
     assert len(table) == 1 + len(want["lines"])
-    for row, line in zip(table[1:], want["lines"]):
-        assert [float(v) for v in row] == [line["ppm"], line["Hz"], line["intensity"]]
+    ordered = sorted(want["lines"], key=lambda line: -line["ppm"])  # high to low ppm, as spectra are read
+    for row, line in zip(table[1:], ordered):
+        assert [float(v) for v in row] == pytest.approx([line["ppm"], line["Hz"], line["intensity"]], rel=1e-6, abs=1e-9)
 
     raw = page.get_attribute("#mult-spectrum svg", "data-view")
     before = _view(page, "#mult-spectrum")

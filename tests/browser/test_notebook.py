@@ -58,11 +58,12 @@ def test_notebook_and_crash_recovery(dist, open_page, tmp_path):
     page.click("#tab-notebook")
     pins = page.locator("#notebook-pins > li")
     expect(pins).to_have_count(2)
-    expect(pins.nth(0).locator("h3")).to_contain_text("frequency")
+    expect(pins.nth(0).locator("h3")).to_contain_text("One nucleus")  # the card's title, not the op name
     expect(pins.nth(1).locator(".pin-note-text")).to_have_text(HOSTILE_NOTE)
     assert page.locator("#notebook-pins img, main img").count() == 0
-    expect(pins.nth(1).locator(".pin-results")).to_contain_text("J_Hz")
-    expect(pins.nth(1).locator(".pin-inputs")).to_contain_text("32")  # the J field as typed (unit: issue 11 §5)
+    expect(pins.nth(1).locator(".pin-results")).not_to_contain_text("J_Hz")  # labels, not API keys
+    expect(pins.nth(1).locator(".pin-results")).to_contain_text(" Hz")
+    expect(pins.nth(1).locator(".pin-inputs")).to_contain_text("32")  # the J field as typed
 
     # pins survive a reload
     page.reload()
@@ -94,8 +95,9 @@ def test_notebook_and_crash_recovery(dist, open_page, tmp_path):
 
     # CSV: one row per pin, the note kept as text (a leading = is neutralised)
     _, text = _download_text(page, "#notebook-export-csv")
-    rows = list(csv.DictReader(io.StringIO(text)))
-    assert [r["op"] for r in rows] == ["frequency", "scale_coupling"]
+    assert text.startswith("# nmrcalc ")
+    rows = list(csv.DictReader(io.StringIO("".join(line for line in text.splitlines(True) if not line.startswith("# ")))))
+    assert [json.loads(r["request_json"])["op"] for r in rows] == ["frequency", "scale_coupling"]
     assert rows[1]["note"] == HOSTILE_NOTE
     assert json.loads(rows[1]["request_json"]) == exported["pins"][1]["request"]
 

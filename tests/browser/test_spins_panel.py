@@ -31,7 +31,7 @@ def test_preset_checks_fields_error_and_cancel(dist, open_page):
     rows = page.locator("#spins-checks tbody tr")
     expect(rows).to_have_count(len(want["checks"]))
     for check in want["checks"]:
-        pair = f"{check['pair'][0]}–{check['pair'][1]} ({check['nucleus']})"
+        pair = f"{check['labels'][0]}–{check['labels'][1]} ({check['nucleus']})"  # spins named by label, not index
         row = rows.filter(has_text=pair)
         expect(row).to_contain_text(f"{check['delta_nu_over_J']:.2f}")
         expect(row).to_contain_text("yes" if check["first_order"] else "no")

@@ -20,26 +20,73 @@ const NMR = (() => {
   window.nmrcalcStatus = { state: "starting", error: null, timings, restarts: 0 };
 
   // ---------- storage ----------
-  function loadStore() {
+  // Keys are namespaced and versioned ("nmrcalc.inputs.v1"): on file:// every local page shares
+  // one storage origin. What is read back is checked (a plain object of saved field values), an
+  // entry another page wrote in a form we do not know is ignored, never rewritten away. Writes merge
+  // with what another tab saved meanwhile (one key at a time), so two tabs keep each other's inputs.
+  const MAX_ENTRY_CHARS = 200_000;
+  const isPlainObject = (x) => x !== null && typeof x === "object" && !Array.isArray(x);
+  function readStore() {
+    let data;
     try {
-      return JSON.parse(localStorage.getItem(STORE_KEY) || "{}") || {};
+      data = JSON.parse(localStorage.getItem(STORE_KEY) || "{}");
     } catch (err) {
       return {};
     }
+    if (!isPlainObject(data)) return {};
+    const out = {};
+    for (const [key, value] of Object.entries(data)) {
+      if (key.length <= 200 && value !== undefined && JSON.stringify(value).length <= MAX_ENTRY_CHARS) out[key] = value;
+    }
+    return out;
   }
-  const store = loadStore();
+  let store = readStore();
+  let storageWarned = false;
+  /** Say once (per page) that storage failed; later failures stay quiet but nothing else is lost. */
+  function storageTrouble(text) {
+    if (storageWarned) return;
+    storageWarned = true;
+    notice(text, "error");
+  }
+  /** Save value under key (merged with other tabs' keys). False, with a message, if it was not saved. */
   function remember(key, value) {
-    store[key] = value;
+    const chars = JSON.stringify(value === undefined ? null : value).length;
+    const fresh = readStore();
+    if (chars > MAX_ENTRY_CHARS) {
+      store[key] = value;  // kept on screen for this visit only
+      delete fresh[key];
+      notice(`One entry is too long to keep in this browser (${chars.toLocaleString("en")} characters; at most ${MAX_ENTRY_CHARS.toLocaleString("en")}): it stays on screen but will not survive a reload. Every other input is still saved.`, "error");
+      try { localStorage.setItem(STORE_KEY, JSON.stringify(fresh)); } catch (err) { /* reported below on the next write */ }
+      return false;
+    }
+    fresh[key] = value;
+    store = { ...store, ...fresh };
     try {
-      localStorage.setItem(STORE_KEY, JSON.stringify(store));
+      localStorage.setItem(STORE_KEY, JSON.stringify(fresh));
+      return true;
     } catch (err) {
-      // storage full or disabled: inputs simply will not survive a reload
+      storageTrouble("This browser did not let the page save your inputs (storage full or disabled): they will not survive a reload. Export the bench notebook to keep your pins.");
+      return false;
     }
   }
   /** The value saved under key by remember(), or undefined. */
   function recall(key) {
     return store[key];
   }
+  /** True when this browser lets the page keep data across reloads; otherwise say so once. */
+  function checkStorage() {
+    try {
+      localStorage.setItem("nmrcalc.probe.v1", "1");
+      localStorage.removeItem("nmrcalc.probe.v1");
+      return true;
+    } catch (err) {
+      storageTrouble("This browser does not let the page keep data (storage disabled, or a private window that forbids it): your inputs and pins will not survive a reload. Export the bench notebook before you close the page.");
+      return false;
+    }
+  }
+  window.addEventListener("storage", (event) => {
+    if (event.key === STORE_KEY) store = { ...store, ...readStore() };
+  });
 
   // ---------- DOM helpers (text only, never innerHTML) ----------
   function el(tag, attrs, ...children) {
@@ -234,13 +281,13 @@ const NMR = (() => {
     }
     return found;
   }
-  /** A field's label, hint and default from its declaration (field.param, e.g. 'frequency.min_MHz'); the field's own win. */
+  /** A field's label (with the unit) and default from its declaration, and its hint with hint: true (field.param, e.g. 'frequency.min_MHz'); the field's own win. */
   function declaredField(field) {
     const decl = field.param ? param(field.param) : null;
     if (!decl) return field;
     const unit = decl.unit && decl.unit !== "%" ? ` (${decl.unit})` : decl.unit === "%" ? " (%)" : "";
     const value = decl.default === null || decl.default === undefined || typeof decl.default === "object" ? undefined : decl.default;
-    return { label: `${decl.label}${unit}`, hint: decl.help, value, ...field };
+    return { label: `${decl.label}${unit}`, value, ...field, hint: field.hint === true ? decl.help : field.hint };
   }
 
   // ---------- forms ----------
@@ -352,7 +399,16 @@ const NMR = (() => {
     formNode.append(grid);
     const formError = el("p", { class: "form-error", id: `${spec.id}-form-error`, "aria-live": "polite" });
     const button = el("button", { type: "submit", class: "primary" }, spec.submitLabel || "Calculate");
-    formNode.append(el("div", { class: "actions" }, button, formError));
+    // long work: after 250 ms a Cancel button (ends the worker; calls queue for the fresh one)
+    const cancelButton = el("button", { type: "button", class: "small-button" }, "Cancel");
+    const busy = el("div", { class: "busy", id: `${spec.id}-busy`, hidden: true, role: "status" }, el("span", {}, "Calculating…"), cancelButton);
+    cancelButton.addEventListener("click", () => {
+      sequence += 1;
+      busy.hidden = true;
+      cancel();
+      formError.textContent = "Cancelled. Change an input or press the button to try again.";
+    });
+    formNode.append(el("div", { class: "actions" }, button, formError), busy);
     const out = el("div", { class: "result", id: `${spec.id}-result`, "aria-live": "polite" });
     const warn = el("ul", { class: "warnings", id: `${spec.id}-warnings` });
     section.append(formNode, out, warn);
@@ -366,8 +422,11 @@ const NMR = (() => {
       for (const f of fields) values[f.field.id] = f.read();
       const request = override || spec.request(values);
       const mine = ++sequence;
+      const busyTimer = setTimeout(() => { busy.hidden = false; }, 250);
       const response = await api(request);
+      clearTimeout(busyTimer);
       if (mine !== sequence) return;
+      busy.hidden = true;
       for (const f of fields) f.setError("");
       formError.textContent = "";
       warn.replaceChildren();
@@ -560,7 +619,41 @@ const NMR = (() => {
 
   function registerServiceWorker() {
     if (!("serviceWorker" in navigator) || !location.protocol.startsWith("http")) return;
-    navigator.serviceWorker.register("sw.js").catch((err) => console.warn("offline cache unavailable:", err));
+    const offline = (text) => {
+      window.nmrcalcStatus.offline = text;
+      const node = document.getElementById("offline-status");
+      if (node) node.textContent = text;
+    };
+    // a worker becomes "installed" only once every file is in the cache (cache.addAll is all or nothing)
+    const offerReload = (waitingWorker) => {
+      const button = el("button", { type: "button", class: "small-button", id: "update-reload" }, "Reload now");
+      button.addEventListener("click", () => {
+        navigator.serviceWorker.addEventListener("controllerchange", () => location.reload());
+        waitingWorker.postMessage("skip-waiting");
+      });
+      notice("A new version of nmrcalc is ready: reload to use it (your inputs and pins are kept).", "info");
+      document.getElementById("page-notice").append(" ", button);
+    };
+    const follow = (sw, hadController) => {
+      const check = () => {
+        if (sw.state === "installed" && hadController) offerReload(sw);
+        else if (sw.state === "activated") offline("Ready for offline use: every file of this page is stored in this browser.");
+        else if (sw.state === "redundant") offline("Not ready for offline use: the files could not all be stored (reload while online to try again).");
+      };
+      sw.addEventListener("statechange", check);
+      check();
+    };
+    navigator.serviceWorker.register("sw.js").then((registration) => {
+      const hadController = Boolean(navigator.serviceWorker.controller);
+      if (registration.active && !registration.installing && !registration.waiting) offline("Ready for offline use: every file of this page is stored in this browser.");
+      else offline("Storing the files for offline use…");
+      if (registration.waiting && hadController) offerReload(registration.waiting);
+      if (registration.installing) follow(registration.installing, hadController);
+      registration.addEventListener("updatefound", () => follow(registration.installing, Boolean(navigator.serviceWorker.controller)));
+    }).catch((err) => {
+      offline("Not available for offline use in this browser.");
+      console.warn("offline cache unavailable:", err);
+    });
   }
 
   // One <datalist id="nuclide-list"> for every nucleus input, filled from the API.
@@ -611,6 +704,7 @@ const NMR = (() => {
     startWorker();  // first: Python boots while the panels are built
     fillNuclideList();
     buildShell();
+    checkStorage();
     if (NMR.openShareLink) NMR.openShareLink(location.hash);
     // caching the files for offline use waits until the first calculations are done
     ready.then(() => setTimeout(registerServiceWorker, 2000));
@@ -657,7 +751,7 @@ const NMR = (() => {
 
   return {
     api, ready, el, fmt, fixed, calculation, nuclideLabel, numberNode, form, sharedField, resultList, sortableTable,
-    registerPanel, whenShown, start, timings, magnetRequest, MAGNET_UNITS, remember, recall, cancel, param,
+    registerPanel, whenShown, start, timings, magnetRequest, MAGNET_UNITS, remember, recall, cancel, param, storageTrouble,
     forms, selectTab: (id) => selectTab(id, false), panelIds: () => panels.map((p) => p.id), panelOf, notice,
     // test hook: the live worker, so a browser test can send it a message it fails on
     debugWorker: () => worker,

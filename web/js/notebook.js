@@ -7,7 +7,8 @@
 const NMRNotebook = (() => {
   const KEY = "nmrcalc.notebook.v1";
   const FORMAT = "nmrcalc-notebook";
-  const MAX_PINS = 500;
+  const MAX_PINS = 2000;
+  const MAX_PIN_CHARS = 400_000;
   const MAX_NOTE = 2000;
   const MAX_LINK = 100_000;
   const listeners = [];
@@ -21,24 +22,65 @@ const NMRNotebook = (() => {
   const isPlain = (x) => x !== null && typeof x === "object" && !Array.isArray(x);
   const isScalar = (x) => x === null || ["string", "number", "boolean"].includes(typeof x);
 
+  // What is stored under KEY: the pins this page can read, and (kept aside, written back untouched)
+  // anything else found there, so another local page cannot make us wipe the notebook.
   function load() {
+    let data;
     try {
-      const data = JSON.parse(localStorage.getItem(KEY) || "[]");
-      return Array.isArray(data) ? data.filter((p) => { try { checkPin(p); return true; } catch (e) { return false; } }) : [];
+      data = JSON.parse(localStorage.getItem(KEY) || "[]");
     } catch (err) {
-      return [];
+      return { good: [], foreign: [], raw: localStorage.getItem(KEY) };
     }
+    if (!Array.isArray(data)) return { good: [], foreign: [data] };
+    const good = [];
+    const foreign = [];
+    for (const p of data) {
+      try {
+        checkPin(p);
+        good.push(p);
+      } catch (err) {
+        foreign.push(p);
+      }
+    }
+    return { good, foreign };
   }
-  let pins = load();
+  let loaded = { good: [], foreign: [] };
+  try { loaded = load(); } catch (err) { /* storage disabled: NMR.start says so */ }
+  let pins = loaded.good;
+  const removed = new Set();
+  if (loaded.foreign.length || loaded.raw) {
+    const n = loaded.foreign.length || 1;
+    document.addEventListener("DOMContentLoaded", () => NMR.notice(`${n} notebook entr${n === 1 ? "y" : "ies"} in this browser could not be read (written by another page or version); kept as they are, not shown.`, "error"));
+  }
 
+  // Merge on write: the pins another tab saved since we last read are kept (by id), ours added,
+  // ours deleted left out. Near the browser's limit the notebook says so and offers export.
+  const WARN_CHARS = 3_500_000;
   function save() {
+    let ok = true;
     try {
-      localStorage.setItem(KEY, JSON.stringify(pins));
+      const current = load();
+      if (current.raw) localStorage.setItem(`${KEY}.unreadable`, current.raw);  // not JSON: set aside, not wiped
+      const mine = new Set(pins.map((p) => p.id));
+      const theirs = current.good.filter((p) => !mine.has(p.id) && !removed.has(p.id));
+      pins = [...pins, ...theirs];
+      const text = JSON.stringify([...pins, ...current.foreign]);
+      localStorage.setItem(KEY, text);
+      if (text.length > WARN_CHARS) {
+        NMR.notice(`The notebook holds ${(text.length / 1e6).toFixed(1)} million characters, close to what this browser keeps (about 5): export it as JSON (Bench notebook → Export JSON) and delete old pins.`, "error");
+      }
     } catch (err) {
-      NMR.notice("The notebook could not be saved in this browser (storage full or disabled); export it as JSON to keep it.", "error");
+      ok = false;
+      NMR.notice("The notebook could not be saved in this browser (storage full or disabled): the pins are shown until you close the page. Export it as JSON (Bench notebook → Export JSON) to keep them.", "error");
     }
     listeners.forEach((fn) => fn());
+    return ok;
   }
+  window.addEventListener("storage", (event) => {
+    if (event.key !== KEY) return;
+    pins = load().good.filter((p) => !removed.has(p.id));
+    listeners.forEach((fn) => fn());
+  });
 
   const newestFirst = (a, b) => (a.time === b.time ? (a.id < b.id ? 1 : -1) : (a.time < b.time ? 1 : -1));
 
@@ -135,13 +177,15 @@ const NMRNotebook = (() => {
       version: version(),
     };
     checkPin(pin);
+    if (pins.length >= MAX_PINS) fail(`the notebook already holds ${MAX_PINS} pins; export it and delete some first`);
+    if (JSON.stringify(pin).length > MAX_PIN_CHARS) fail("its inputs are too long to keep (a very long paste?); shorten them and pin again");
     pins.push(pin);
-    if (pins.length > MAX_PINS) pins = list().slice(0, MAX_PINS);
     save();
     return pin;
   }
 
   function remove(id) {
+    removed.add(id);
     pins = pins.filter((p) => p.id !== id);
     save();
   }
@@ -160,19 +204,86 @@ const NMRNotebook = (() => {
     }
     if (!isPlain(data) || data.format !== FORMAT || !Array.isArray(data.pins)) fail("the file is not an nmrcalc notebook export");
     if (data.pins.length > MAX_PINS) fail(`the file has more than ${MAX_PINS} entries`);
+    if (pins.length + data.pins.length > MAX_PINS) fail(`the notebook would hold more than ${MAX_PINS} pins; export it and delete some first`);
     data.pins.forEach(checkPin);
     const known = new Set(pins.map((p) => p.id));
     const fresh = data.pins.filter((p) => !known.has(p.id));
+    fresh.forEach((p) => removed.delete(p.id));
     pins.push(...fresh);
     save();
     return fresh.length;
   }
 
-  // CSV (RFC 4180 quoting). A note starting with = + - @ gets a leading ' so a
+  // ---------- values as a chemist files them ----------
+  const UNIT_SUFFIX = { T: "T", G: "G", mT: "mT", Hz: "Hz", kHz: "kHz", MHz: "MHz", ppm: "ppm", K: "K",
+    s: "s", ms: "ms", us: "µs", percent: "%", eV: "eV" };
+  // Result keys as a chemist reads them: [label, unit]; other keys fall back to "name_unit" -> "Name (unit)".
+  const RESULT_LABELS = {
+    field_T: ["Magnetic field", "T"], field_G: ["Magnetic field", "G"], proton_MHz: ["¹H frequency", "MHz"],
+    scale: ["Reference scale", ""], symbol: ["Nucleus", ""], spin: ["Spin I", ""], abundance_percent: ["Natural abundance", "%"],
+    larmor_MHz: ["Bare-nucleus Larmor frequency", "MHz"], reference_MHz: ["0 ppm (Ξ) frequency", "MHz"],
+    difference_ppm: ["Bare nucleus vs 0 ppm", "ppm"], receptivity_C: ["Signal relative to ¹³C at natural abundance", ""],
+    J: ["Transition energy", "J"], J_per_mol: ["Energy per mole", "J/mol"], cal_per_mol: ["Energy per mole", "cal/mol"],
+    kcal_per_mol: ["Energy per mole", "kcal/mol"], eV: ["Transition energy", "eV"], "wavenumber_cm-1": ["Wavenumber", "cm⁻¹"],
+    frequency_Hz: ["Transition frequency", "Hz"], temperature_K: ["Temperature", "K"], nucleus: ["Nucleus", ""],
+    population_excess: ["Population excess (fraction)", ""], photon_over_nmr: ["Photon energy / NMR energy", ""],
+    J_Hz: ["Scaled coupling J", "Hz"], J_from_Hz: ["Measured coupling J", "Hz"], ratio: ["Ratio", ""],
+    from: ["From isotope", ""], to: ["To isotope", ""], sign_flipped: ["Sign flipped", ""], estimate: ["Estimate", ""],
+    reduced_coupling: ["Reduced coupling K", "N A⁻² m⁻³"], reduced_coupling_unit: ["Unit of K", ""], partner: ["Coupling partner", ""],
+    center_ppm: ["Centre", "ppm"], observe_MHz: ["Observe frequency", "MHz"], label: ["Pattern", ""], observe: ["Observed nucleus", ""],
+  };
+  /** "field_T" -> ["Magnetic field", "T"], "lines (count)" -> ["Lines (number)", ""], "x_ppm" -> ["X", "ppm"]. */
+  function splitKey(key) {
+    const counted = /^(.*) \(count\)$/.exec(key);
+    if (counted) return [`${splitKey(counted[1])[0]} (number)`, ""];
+    if (RESULT_LABELS[key]) return RESULT_LABELS[key];
+    const match = /^(.*?)_([A-Za-z]+)$/.exec(key);
+    const [name, unit] = match && UNIT_SUFFIX[match[2]] ? [match[1], UNIT_SUFFIX[match[2]]] : [key, ""];
+    const words = name.replace(/_/g, " ");
+    return [words.charAt(0).toUpperCase() + words.slice(1), unit];
+  }
+  /** A number without float noise: 12 significant digits at most, big ones as × 10ⁿ. */
+  function cleanNumber(value) {
+    if (!Number.isFinite(value)) return String(value);
+    if (Number.isInteger(value) && Math.abs(value) < 1e7) return String(value);
+    if (Math.abs(value) >= 1e7 || (value !== 0 && Math.abs(value) < 1e-3)) return NMR.fmt(value, 7).replace(/\.?0+ ×/, " ×");
+    return String(Number(value.toPrecision(7)));
+  }
+  /** Any stored value as text: numbers rounded, lists of rows as "a 1, b 2; a 3, b 4", never JSON.
+   * path ("op.key") names the declaration whose item labels name a row's keys. */
+  function valueText(value, path) {
+    if (typeof value === "number") return cleanNumber(value);
+    if (typeof value === "boolean") return value ? "yes" : "no";
+    if (value === null || value === undefined) return "—";
+    if (Array.isArray(value)) return value.map((v) => valueText(v, path)).join("; ");
+    if (typeof value === "object") {
+      return Object.entries(value).map(([k, v]) => {
+        const decl = path ? NMR.param(`${path}.${k}`) : null;
+        return `${decl && decl.label ? decl.label.toLowerCase() : k.replace(/_/g, " ")} ${valueText(v, path ? `${path}.${k}` : null)}`;
+      }).join(", ");
+    }
+    return String(value);
+  }
+  /** [label, text] for request key `key` of op `op` (its declared label and unit) or a result key. */
+  function labelled(op, key, value) {
+    const decl = NMR.param(`${op}.${key}`);
+    const [name, unit] = splitKey(key);
+    const label = decl && decl.label ? decl.label : name;
+    // a bare number typed into a field is in the field's declared unit: show that unit beside it
+    const bare = decl && decl.unit && /^[-+−]?\d+(\.\d+)?$/.test(String(value).trim());
+    const shownUnit = decl ? "" : unit;
+    if (bare) return [label, `${String(value).trim()} ${decl.unit}`];
+    return [label, `${valueText(value, decl ? `${op}.${key}` : null)}${shownUnit && typeof value === "number" ? ` ${shownUnit}` : ""}`];
+  }
+  const inputRows = (pin) => Object.entries(pin.request).filter(([k]) => k !== "op").map(([k, v]) => labelled(pin.op, k, v));
+  const resultRows = (pin) => Object.entries(pin.summary).map(([k, v]) => labelled(pin.op, k, v));
+
+  // CSV (RFC 4180 quoting). Every cell (but a plain number) starting with = + - @ tab or CR gets a leading ' so a
   // spreadsheet shows it as text rather than running it as a formula.
-  function csvCell(value, isText) {
+  function csvCell(value) {
     let text = value === null || value === undefined ? "" : String(value);
-    if (isText && /^[=+\-@\t\r]/.test(text)) text = `'${text}`;
+    const plainNumber = /^[-+]?\d+(\.\d+)?(e[-+]?\d+)?$/i.test(text);  // -57.9 stays a number
+    if (!plainNumber && /^[=+\-@\t\r]/.test(text)) text = `'${text}`;
     return /[",\r\n]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text;
   }
 
@@ -180,13 +291,31 @@ const NMRNotebook = (() => {
     return Object.entries(request).filter(([k]) => k !== "op").map(([k, v]) => `${k}=${typeof v === "string" ? v : JSON.stringify(v)}`).join("; ");
   }
 
+  /** Comment lines ("# …") that open every CSV export: tool version, date, then the given lines. */
+  function csvHeader(lines) {
+    return [`nmrcalc ${version() || "(version unknown)"}`, `exported ${new Date().toISOString()}`, ...lines]
+      // unquoted, so "#" opens the line for every CSV reader; a spreadsheet splits it at commas, so
+      // each piece is guarded like a cell
+      .map((line) => `# ${String(line).replace(/[\r\n\t]+/g, " ").replace(/"/g, "'")}`.split(",")
+        .map((piece) => piece.replace(/^(\s*)([=+\-@])/, "$1'$2")).join(","));
+  }
+
+  /** A line table as CSV: the header block (every input of `request`, labelled), then one line per row,
+   * high to low ppm as spectra are read (Hz when there is no ppm), the Hz offset beside. */
+  function linesCSV(request, lines) {
+    const inputs = Object.entries(request).filter(([k]) => k !== "op" && k !== "spectrum").map(([k, v]) => labelled(request.op, k, v));
+    const key = (l) => (typeof l.ppm === "number" ? l.ppm : l.Hz);
+    const ordered = lines.slice().sort((a, b) => key(b) - key(a));
+    const body = ordered.map((l) => [l.ppm, l.Hz, l.intensity].map((v) => csvCell(typeof v === "number" ? cleanNumber(v) : "")).join(","));
+    return `${[...csvHeader([`calculation: ${request.op}`, ...inputs.map(([label, value]) => `${label}: ${value}`), "lines from high to low ppm; Hz = offset from the centre"]), "ppm,Hz,intensity", ...body].join("\r\n")}\r\n`;
+  }
+
   function toCSV() {
-    const head = ["time", "note", "panel", "op", "inputs", "results", "request_json", "version"];
-    const lines = [head.join(",")];
+    const head = ["time", "note", "panel", "calculation", "inputs", "results", "request_json", "version"];
+    const lines = [...csvHeader(["one row per pin; inputs and results as label = value", "request_json recomputes the pin with python -m nmrcalc api"]), head.join(",")];
     for (const p of list()) {
-      const results = Object.entries(p.summary).map(([k, v]) => `${k}=${v}`).join("; ");
-      lines.push([csvCell(p.time), csvCell(p.note, true), csvCell(p.panel), csvCell(p.op), csvCell(requestText(p.request), true),
-        csvCell(results, true), csvCell(JSON.stringify(p.request)), csvCell(p.version)].join(","));
+      const text = (rows) => rows.map(([label, value]) => `${label} = ${value}`).join("; ");
+      lines.push([p.time, p.note, p.panel, p.title || p.op, text(inputRows(p)), text(resultRows(p)), JSON.stringify(p.request), p.version].map(csvCell).join(","));
     }
     return `${lines.join("\r\n")}\r\n`;
   }
@@ -253,15 +382,36 @@ const NMRNotebook = (() => {
       NMR.notice(`This pin could not be re-opened: ${err.message}.`, "error");
       return false;
     }
-    show(entry.panel, handle, entry.inputs, entry.request);
+    show(entry.panel, handle, entry.inputs, entry.what);
     return true;
   }
 
-  function show(panel, handle, inputs, request) {
+  /** Replace the inputs of pin source `handle` by replace(), offering one-step undo of what was typed
+   * (a notice with an Undo button that puts the previous inputs back and computes them). */
+  function withUndo(handle, what, replace) {
+    const before = handle.snapshot();
+    replace();
+    NMR.notice(`${what} replaced the inputs of “${handle.node.querySelector("h2") ? handle.node.querySelector("h2").textContent : handle.id}”.`, "info");
+    const undo = NMR.el("button", { type: "button", class: "small-button", id: "undo-replace" }, "Undo");
+    undo.addEventListener("click", () => {
+      handle.setInputs(before);
+      NMR.ready.then(() => handle.run());
+      NMR.notice("The previous inputs are back.", "info");
+    });
+    document.getElementById("page-notice").append(" ", undo);
+  }
+  NMR.withUndo = (formId, what, replace) => {
+    const handle = source(formId);
+    if (handle) withUndo(handle, what, replace);
+    else replace();
+  };
+
+  function show(panel, handle, inputs, what) {
     NMR.selectTab(panel);
-    handle.setInputs(inputs);
-    // after the panel's own first calculation (queued on ready earlier), so this request is the one shown
-    NMR.ready.then(() => handle.run(request));
+    withUndo(handle, what || "Re-opening a pin", () => handle.setInputs(inputs));
+    // The request is rebuilt from the restored fields (never the stored one), so what is shown beside
+    // the inputs is what they compute; after the panel's own first calculation (queued on ready earlier).
+    NMR.ready.then(() => handle.run());
     handle.node.scrollIntoView({ block: "start" });
   }
 
@@ -270,7 +420,7 @@ const NMRNotebook = (() => {
   NMR.openInputs = (panel, form, inputs) => {
     const handle = source(form);
     if (!handle || !NMR.panelIds().includes(panel)) return false;
-    show(panel, handle, inputs);
+    show(panel, handle, inputs, "Opening it here");
     return true;
   };
 
@@ -278,8 +428,7 @@ const NMRNotebook = (() => {
     if (!hash || !hash.startsWith("#calc=")) return;
     try {
       const entry = parseShare(hash);
-      reopen(entry);
-      NMR.notice(`Opened a shared calculation (${entry.request.op}) in “${entry.panel}”. It is computed here, offline.`, "info");
+      reopen({ ...entry, what: `A shared link (${entry.request.op}, computed here, offline)` });
     } catch (err) {
       const reason = err instanceof NotebookError ? err.message : "it could not be read";
       NMR.notice(`This link's calculation could not be opened: ${reason}. The page works as usual.`, "error");
@@ -308,6 +457,28 @@ const NMRNotebook = (() => {
     const bar = NMR.pinBar({ form: id });
     return { node: bar.node, update: (state) => bar.update(state ? { ...state, inputs: snapshot() } : null) };
   };
+
+  // The latest good result of each pin source, for captions of exported plots.
+  const latest = new Map();
+  /** Caption lines (at most `width` characters each) for a plot inside a card: tool version, the
+   * calculation's title and every input of the result it shows. Empty when the card has no result. */
+  function captionLines(node, width) {
+    for (const [form, state] of latest) {
+      const handle = source(form);
+      if (!handle || !handle.node.contains(node)) continue;
+      const title = handle.node.querySelector("h2");
+      const words = [`nmrcalc ${version()}`, title ? title.textContent : form,
+        ...Object.entries(state.request).filter(([k]) => k !== "op" && k !== "spectrum").map(([k, v]) => labelled(state.request.op, k, v).join(": "))]
+        .join(" · ").split(" ");
+      const lines = [""];
+      for (const word of words) {
+        if (lines[lines.length - 1].length + word.length + 1 > width) lines.push("");
+        lines[lines.length - 1] += (lines[lines.length - 1] ? " " : "") + word;
+      }
+      return lines;
+    }
+    return [`nmrcalc ${version()}`];
+  }
 
   // ---------- the Pin bar under each result ----------
   NMR.pinBar = ({ form }) => {
@@ -338,7 +509,14 @@ const NMRNotebook = (() => {
     };
     const doSave = () => {
       if (!state) return;
-      const pin = add(form, state, noteInput.value);
+      let pin;
+      try {
+        pin = add(form, state, noteInput.value);
+      } catch (err) {
+        if (!(err instanceof NotebookError)) throw err;
+        status.textContent = `Not pinned: ${err.message}.`;
+        return;
+      }
       status.textContent = `Pinned at ${new Date(pin.time).toLocaleTimeString()}.`;
       close();
     };
@@ -361,6 +539,8 @@ const NMRNotebook = (() => {
       /** The latest good result {request, result, inputs}, or null after an error. */
       update(next) {
         state = next;
+        if (next) latest.set(form, next);
+        else latest.delete(form);
         pinButton.disabled = !next;
         shareButton.disabled = !next;
         if (!next) linkBox.hidden = true;
@@ -375,5 +555,5 @@ const NMRNotebook = (() => {
   window.addEventListener("beforeprint", stampPrintDate);
   document.addEventListener("DOMContentLoaded", stampPrintDate);
 
-  return { list, add, remove, exportJSON, importJSON, toCSV, shareLink, parseShare, reopen, requestText, NotebookError, onChange: (fn) => listeners.push(fn) };
+  return { list, add, remove, exportJSON, importJSON, toCSV, shareLink, parseShare, reopen, requestText, NotebookError, inputRows, resultRows, csvCell, csvHeader, cleanNumber, linesCSV, captionLines, onChange: (fn) => listeners.push(fn) };
 })();

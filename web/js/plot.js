@@ -70,12 +70,30 @@ const NMRPlot = (() => {
     for (let i = 0; i < bytes.length; i += 0x8000) binary += String.fromCharCode(...bytes.subarray(i, i + 0x8000));
     return `data:image/svg+xml;base64,${btoa(binary)}`;
   }
-  function exportSVG(svg, name) {
-    downloadURL(`${name}.svg`, svgDataURL(svg));
-  }
-  function exportPNG(svg, name) {
+  // The exported picture carries its own caption: the tool version and the inputs of the result
+  // it shows (from the notebook's record of the card's latest result), wrapped under the plot.
+  function withCaption(svg) {
+    const lines = typeof NMRNotebook !== "undefined" ? NMRNotebook.captionLines(svg, 110) : [];
+    const copy = svg.cloneNode(true);
     const width = Number(svg.getAttribute("width"));
     const height = Number(svg.getAttribute("height"));
+    const extra = lines.length ? lines.length * 14 + 10 : 0;
+    copy.setAttribute("height", String(height + extra));
+    copy.setAttribute("viewBox", `0 0 ${width} ${height + extra}`);
+    const colors = palette();
+    if (extra) copy.append(svgEl("rect", { x: 0, y: height, width, height: extra, fill: colors.bg }));
+    lines.forEach((line, i) => {
+      const text = svgEl("text", { x: 8, y: height + 16 + i * 14, "font-size": 11, "font-family": FONT, fill: colors.ink });
+      text.textContent = line;
+      copy.append(text);
+    });
+    return { node: copy, width, height: height + extra };
+  }
+  function exportSVG(svg, name) {
+    downloadURL(`${name}.svg`, svgDataURL(withCaption(svg).node));
+  }
+  function exportPNG(svg, name) {
+    const { node, width, height } = withCaption(svg);
     const image = new Image();
     image.onload = () => {
       const canvas = document.createElement("canvas");
@@ -86,7 +104,7 @@ const NMRPlot = (() => {
       context.drawImage(image, 0, 0, width, height);
       downloadURL(`${name}.png`, canvas.toDataURL("image/png"));
     };
-    image.src = svgDataURL(svg);
+    image.src = svgDataURL(node);
   }
 
   function toolButton(label, text, onClick) {

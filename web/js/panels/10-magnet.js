@@ -82,7 +82,7 @@ NMR.registerPanel({
         { id: "nucleus", label: "Nucleus", value: "13C", list: "nuclide-list" },
         { id: "low", label: "From (ppm)", value: "-10", keys: ["low_ppm"] },
         { id: "high", label: "To (ppm)", value: "230", keys: ["high_ppm"] },
-        { id: "points", label: "Complex points", value: "32768", inputmode: "numeric", keys: ["points"] },
+        { id: "points", param: "acquisition_window.points", value: "32768", inputmode: "numeric", keys: ["points"] },
         { id: "pulse", label: "90° pulse (µs, optional)", value: "10", keys: ["pulse_90"], hint: "A bare number is in µs; or type e.g. 12.5 us, 0.01 ms." },
       ],
       request(v) {
@@ -122,9 +122,9 @@ NMR.registerPanel({
       submitLabel: "Show table",
       fields: [
         { id: "spinhalf", label: "Spin ½ only", kind: "checkbox", value: false, keys: ["spin_half_only"] },
-        { id: "minab", label: "Minimum abundance (%)", value: "", keys: ["min_abundance_percent"] },
-        { id: "minmhz", label: "From (MHz)", value: "", keys: ["min_MHz"] },
-        { id: "maxmhz", label: "To (MHz)", value: "", keys: ["max_MHz"] },
+        { id: "minab", param: "frequency.min_abundance_percent", value: "", keys: ["min_abundance_percent"] },
+        { id: "minmhz", param: "frequency.min_MHz", value: "", keys: ["min_MHz"] },
+        { id: "maxmhz", param: "frequency.max_MHz", value: "", keys: ["max_MHz"] },
       ],
       request(v) {
         const req = { op: "frequency", spin_half_only: v.spinhalf.value, ...NMR.magnetRequest(v.magnet) };

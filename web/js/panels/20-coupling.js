@@ -12,10 +12,10 @@ NMR.registerPanel({
       title: "Scale a coupling to another isotope",
       intro: "A coupling measured with one isotope (say ²H) predicts the coupling of the same bond with another (¹H).",
       fields: [
-        { id: "J", label: "Measured J (Hz)", value: "32" },
-        { id: "from", label: "Measured with isotope", value: "2H", list: "nuclide-list" },
-        { id: "to", label: "Predict for isotope", value: "1H", list: "nuclide-list" },
-        { id: "partner", label: "Coupling partner (optional, for K)", value: "13C", list: "nuclide-list" },
+        { id: "J", param: "scale_coupling.J", value: "32" },
+        { id: "from", param: "scale_coupling.from", value: "2H", list: "nuclide-list" },
+        { id: "to", param: "scale_coupling.to", value: "1H", list: "nuclide-list" },
+        { id: "partner", param: "scale_coupling.partner", label: "Coupling partner (optional, for K)", value: "13C", list: "nuclide-list" },
       ],
       request(v) {
         const req = { op: "scale_coupling", J: v.J.value, from: v.from.value, to: v.to.value };

@@ -18,7 +18,7 @@ NMR.registerPanel({
       fields: [
         { id: "nucleus", label: "Nucleus", value: "1H", list: "nuclide-list" },
         { id: "magnet", label: "Magnet", value: "500", units: NMR.MAGNET_UNITS, keys: ["spectrometer", "field"] },
-        { id: "temperature", label: "Temperature (K)", value: "298" },
+        { id: "temperature", param: "energy.temperature", value: "298" },
         {
           id: "photon", label: "Photon (optional)", value: "254", hint: "A UV/visible wavelength or an IR wavenumber to compare with.", keys: ["wavelength", "wavenumber"],
           units: [{ unit: "nm", label: "nm" }, { unit: "cm-1", label: "cm⁻¹" }],
@@ -63,7 +63,7 @@ NMR.registerPanel({
       fields: [
         { id: "nucleus", label: "Nucleus", value: "15N", list: "nuclide-list" },
         { id: "relative_to", label: "Relative to", value: "13C", list: "nuclide-list" },
-        { id: "enrichment", label: "Enrichment (%, optional)", value: "", keys: ["enrichment_percent"] },
+        { id: "enrichment", param: "sensitivity.enrichment_percent", label: "Enrichment (%, optional)", value: "", keys: ["enrichment_percent"] },
       ],
       request(v) {
         const req = { op: "sensitivity", nucleus: v.nucleus.value, relative_to: v.relative_to.value };

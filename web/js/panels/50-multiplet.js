@@ -345,7 +345,7 @@ NMR.registerPanel({
       NMR.remember("mult.byD", { positions, integrals });
     }
 
-    function render(r, warnings) {
+    function render(r, warnings, sent) {
       renderRules(r);
       rememberShares(r);
       headline.textContent = r.label;
@@ -403,7 +403,7 @@ NMR.registerPanel({
         { key: "Hz", label: "Offset (Hz)", numeric: true, value: (l) => l.Hz, show: (l) => NMR.fixed(l.Hz, 3) },
         { key: "intensity", label: "Relative intensity", numeric: true, value: (l) => l.intensity, show: (l) => short(l.intensity, 5) },
       ];
-      const csv = ["ppm,Hz,intensity", ...r.lines.map((l) => `${l.ppm === undefined ? "" : l.ppm},${l.Hz},${l.intensity}`)].join("\n") + "\n";
+      const csv = NMRNotebook.linesCSV(sent, r.lines);
       const tsv = ["ppm\tHz\tintensity", ...r.lines.map((l) => `${l.ppm === undefined ? "" : l.ppm}\t${l.Hz}\t${l.intensity}`)].join("\n");
       const copy = el("button", { type: "button", class: "small-button", id: "mult-copy" }, "Copy table");
       const note = el("span", { class: "hint", "aria-live": "polite" });
@@ -436,14 +436,14 @@ NMR.registerPanel({
           return;
         }
         out.classList.remove("stale");
-        render(response.result, response.warnings || []);
+        render(response.result, response.warnings || [], sent);
         pin.update({ request: sent, result: response.result });
       },
     });
 
     for (const preset of PRESETS) {
       const button = el("button", { type: "button", class: "preset" }, preset.name);
-      button.addEventListener("click", () => {
+      button.addEventListener("click", () => NMR.withUndo("mult", `The example “${preset.name}”`, () => {
         for (const [id, value] of Object.entries(preset.fixed)) {
           const f = fixed[id];
           if (Array.isArray(value)) {
@@ -458,7 +458,7 @@ NMR.registerPanel({
         save();
         drawRows();
         run();
-      });
+      }));
       presetBar.append(button);
     }
     drawRows();

@@ -214,11 +214,12 @@ NMR.registerPanel({
     const spectrum = NMRPlot.create(spectrumBox, { label: "Exact spectrum", height: 300, fileName: "spin-system" });
     spectrum.node.id = "spins-spectrum";
     const checkBox = el("div", { id: "spins-checks" });
+    const transitionBox = el("div", { id: "spins-transitions" });
     const stackBox = el("div");
     const stack = NMRPlot.create(stackBox, { label: "The system at several fields", height: 460, fileName: "spin-system-fields" });
     stack.node.id = "spins-stack";
     const stackError = el("p", { class: "form-error", id: "spins-stack-error", "aria-live": "polite" });
-    out.append(warn, spectrumTitle, spectrumBox, checkBox, el("h3", { class: "sub-title" }, "Several fields on one ppm axis"), stackError, stackBox);
+    out.append(warn, spectrumTitle, spectrumBox, checkBox, transitionBox, el("h3", { class: "sub-title" }, "Several fields on one ppm axis"), stackError, stackBox);
     card.append(out);
     // bench notebook: pin / share this result (web/js/notebook.js)
     const pin = NMR.pinSource({
@@ -296,6 +297,8 @@ NMR.registerPanel({
       checkBox.replaceChildren(
         el("h3", { class: "sub-title" }, `First-order check, pair by pair (first order when Δν/J ≥ ${r.first_order_threshold})`),
         r.checks.length ? NMR.sortableTable(columns, r.checks, "Coupled pairs: Δν/J and the magnet where it reaches the first-order limit") : el("p", { class: "hint" }, "No coupled pairs of like nuclides: only those are checked; a coupling between different nuclides (e.g. ¹H–¹⁹F) is treated as first order."),
+      );
+      transitionBox.replaceChildren(
         el("h3", { class: "sub-title" }, "Clusters"),
         el("ul", { id: "spins-clusters" }, ...r.clusters.map((c) => el("li", {}, `${c.labels.join(", ")}: ${c.method === "exact" ? "exact" : `weak links to first order, positions within about ${fmt(c.error_Hz, 2)} Hz`}`))),
         el("h3", { class: "sub-title" }, "Transitions"),
@@ -348,7 +351,7 @@ NMR.registerPanel({
 
     for (const preset of PRESETS) {
       const button = el("button", { type: "button", class: "preset" }, preset.name);
-      button.addEventListener("click", () => {
+      button.addEventListener("click", () => NMR.withUndo("spins", `The example “${preset.name}”`, () => {
         fixed.magnet.input.value = preset.magnet;
         fixed.magnet.unitSelect.value = "MHz";
         fixed.magnet.save();
@@ -358,7 +361,7 @@ NMR.registerPanel({
         save();
         drawRows();
         run();
-      });
+      }));
       presetBar.append(button);
     }
     drawRows();

@@ -28,7 +28,7 @@ NMR.registerPanel({
     plot.node.id = "spec-plot";
 
     const input = (id, label, attrs) => {
-      const node = el("input", { id, inputmode: "decimal", ...attrs });
+      const node = el("input", { type: "text", id, inputmode: "decimal", ...attrs });
       return { node, row: el("div", { class: "field" }, el("label", { for: id }, label), node) };
     };
     const refShift = input("spec-ref-shift", "Shift of the chosen peak (ppm)", { placeholder: "e.g. 7.26" });

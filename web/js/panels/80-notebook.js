@@ -35,10 +35,9 @@ NMR.registerPanel({
 
     function pinItem(pin) {
       const when = new Date(pin.time);
-      const results = Object.entries(pin.summary).map(([k, v]) => el("div", { class: "value" },
-        el("dt", {}, k), el("dd", {}, typeof v === "number" && !Number.isInteger(v) ? NMR.fmt(v, 7) : String(v))));
-      const inputs = Object.entries(pin.request).filter(([k]) => k !== "op").map(([k, v]) => el("div", { class: "value" },
-        el("dt", {}, k), el("dd", {}, typeof v === "string" ? v : JSON.stringify(v))));
+      const row = ([label, value]) => el("div", { class: "value" }, el("dt", {}, label), el("dd", {}, value));
+      const results = NMRNotebook.resultRows(pin).map(row);
+      const inputs = NMRNotebook.inputRows(pin).map(row);
       const reopen = el("button", { type: "button", class: "small-button pin-reopen" }, "Re-open");
       reopen.addEventListener("click", () => NMRNotebook.reopen(pin));
       const share = el("button", { type: "button", class: "small-button pin-share-link" }, "Share link");
@@ -55,7 +54,7 @@ NMR.registerPanel({
         status.textContent = "Pin deleted.";
       });
       return el("li", { class: "card pin", "data-pin-id": pin.id },
-        el("h3", {}, `${pin.title || pin.form} · ${pin.op}`),
+        el("h3", {}, pin.title || pin.form),
         el("p", { class: "pin-meta" }, el("time", { datetime: pin.time }, when.toLocaleString()), ` · panel: ${pin.panel}`, pin.version ? ` · nmrcalc ${pin.version}` : ""),
         pin.note ? el("p", { class: "pin-note-text" }, pin.note) : null,
         el("h4", {}, "Inputs"), el("dl", { class: "values pin-inputs" }, ...inputs),
@@ -73,7 +72,7 @@ NMR.registerPanel({
     container.append(el("div", { class: "cards" },
       el("section", { class: "card card-wide", "aria-labelledby": "notebook-title" },
         el("h2", { id: "notebook-title" }, "Bench notebook"),
-        el("p", { class: "intro" }, "Results you pin, with your note and the time. Kept in this browser; export them to keep a copy or move them to another device."),
+        el("p", { class: "intro" }, "Results you pin, with your note and the time. Kept in this browser; export them to keep a copy or move them to another device. Opened from a file (file://), this notebook is shared with every other local file this browser opens: Export JSON is your backup."),
         el("div", { class: "actions no-print" }, exportJson, exportCsv, importLabel, printButton),
         status, count, listNode)));
     draw();
