@@ -12,7 +12,6 @@ from nmrcalc.physics.lineshape import (
     MAX_EVALUATIONS,
     MAX_POINTS,
     MIN_POINTS_PER_FWHM,
-    benchmark_cases,
     gaussian,
     hz_to_ppm,
     lorentzian,
@@ -175,10 +174,6 @@ def test_ppm_axis():
         hz_to_ppm([0.0], 0.0)
     assert info.value.field == "observe_freq_MHz"
 
-
-def test_benchmark_cases_run():
-    for name, case in benchmark_cases():
-        assert case().y, name
 
 
 def test_long_lorentzian_grid_matches_direct_sum():

@@ -83,7 +83,8 @@ def parse_peaklist(text: object, field: str = "peaklist") -> PeakList:
             continue
         comma = next((t for t in line.split() if _DECIMAL_COMMA.match(t)), None)
         if comma is not None and len(line.split()) > 1:
-            raise InputError(f"{field} line {number}: '{comma}' has a decimal comma; did you mean {comma.replace(',', '.')}?", field)
+            raise InputError(f"{field} line {number}: '{comma}' has a decimal comma; "
+                             f"did you mean {comma.replace(',', '.')}?", field)
         cells = _cells(raw.rstrip("\r\n "))  # keep a leading empty cell (e.g. an empty ppm column)
         if header is None and not rows and all(_number(c) is None for c in cells if c):
             header = cells

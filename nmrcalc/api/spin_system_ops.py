@@ -27,7 +27,6 @@ scale, ``nmrcalc.physics.larmor``); couplings do not change with the field.
 from __future__ import annotations
 
 import reprlib
-from fractions import Fraction
 
 from nmrcalc.api.fields import PROGRESS, flag, magnet, nucleus, quantity
 from nmrcalc.api.params import MAGNET, SPECTRUM, Op, Param
@@ -35,8 +34,7 @@ from nmrcalc.errors import InputError
 from nmrcalc.nuclides import Nuclide
 from nmrcalc.physics import larmor, lineshape
 from nmrcalc.physics.multiplet import multiplet
-from nmrcalc.physics.spin_system import (MAX_COUNT, Site, clusters, equivalence_caveats, first_order_checks,
-                                         transitions)
+from nmrcalc.physics.spin_system import MAX_COUNT, Site, clusters, equivalence_caveats, first_order_checks, transitions
 from nmrcalc.units import split_list
 
 MAX_FIELDS = 12
@@ -205,7 +203,7 @@ def _block(spins, labels, couplings, observe, field_T, proton_MHz, req, progress
                 fo = lineshape.sample_spectrum(first, width, shape, window_Hz=(exact.x_Hz[0], exact.x_Hz[-1]))
                 spectrum["first_order_y"] = fo.y
         except InputError as e:
-            raise InputError(e.message, {"fwhm_Hz": "linewidth"}.get(e.field, e.field), e.code) from None
+            raise InputError(e.message, "linewidth" if e.field == "fwhm_Hz" else e.field, e.code) from None
         block["spectrum"] = spectrum
     return block
 
@@ -237,7 +235,8 @@ DECLARED = {"spin_system": Op(
     one_of=(("spectrometer", "field"),), limits=f"{MAX_SPINS} spin entries; {MAX_FIELDS} fields", params=(
         Param("observe", "nuclide", default="1H", label="Observed nucleus", help="e.g. 1H", example="1H"),
         Param("spins", "objects", required=True, label="Spins", max_items=MAX_SPINS,
-              help="each NUCLEUS,SHIFT_PPM[,COUNT], e.g. 1H,7.10", cli="--spin", cli_order=("nucleus", "shift", "count"),
+              help="each NUCLEUS,SHIFT_PPM[,COUNT], e.g. 1H,7.10", cli="--spin",
+              cli_order=("nucleus", "shift", "count"),
               example=[{"nucleus": "1H", "shift": 1.0, "count": 2}, {"nucleus": "1H", "shift": "1.1 ppm"},
                        {"nucleus": "19F", "shift": -70}], items=(
             Param("nucleus", "nuclide", required=True, label="Nucleus", help="e.g. 1H"),
@@ -250,7 +249,8 @@ DECLARED = {"spin_system": Op(
               help="each I,J,HZ with spins named by label or numbered from 0, e.g. A,B,8.0", cli="--coupling",
               cli_order=("between", "between", "J"),
               example=[{"between": [0, 1], "J": 7}, {"between": [1, 2], "J": "48 Hz"}], items=(
-            Param("between", "pair", required=True, label="Between", help="the two spins, e.g. [\"A\", \"B\"] or [0, 1]"),
+            Param("between", "pair", required=True, label="Between",
+                  help="the two spins, e.g. [\"A\", \"B\"] or [0, 1]"),
             Param("J", "quantity", unit="coupling", required=True, label="J", help="the coupling in Hz"),
         )),
         *MAGNET,

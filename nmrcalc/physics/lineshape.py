@@ -48,8 +48,9 @@ from __future__ import annotations
 
 import math
 import reprlib
+from collections.abc import Iterable
 from fractions import Fraction
-from typing import Iterable, NamedTuple
+from typing import NamedTuple
 
 from nmrcalc.errors import InputError
 
@@ -141,7 +142,8 @@ def sample_spectrum(
         raise InputError(f"shape must be one of {', '.join(SHAPES)}, got {reprlib.repr(shape)}", field="shape")
     density = _finite(points_per_fwhm, "points_per_fwhm")
     if density < MIN_POINTS_PER_FWHM:
-        raise InputError(f"points_per_fwhm must be at least {MIN_POINTS_PER_FWHM}, got {density}", field="points_per_fwhm")
+        raise InputError(f"points_per_fwhm must be at least {MIN_POINTS_PER_FWHM}, got {density}",
+                         field="points_per_fwhm")
     if isinstance(max_points, bool) or not isinstance(max_points, int) or not 2 <= max_points <= MAX_POINTS:
         raise InputError(f"max_points must be a whole number from 2 to {MAX_POINTS}", field="max_points")
     if window_Hz is None:
@@ -267,13 +269,3 @@ def hz_to_ppm(offsets_Hz: Iterable[float], observe_freq_MHz: float, centre_ppm: 
     freq = _positive(observe_freq_MHz, "observe_freq_MHz")
     centre = _finite(centre_ppm, "centre_ppm")
     return [centre + _finite(x, "offsets_Hz") / freq for x in offsets_Hz]
-
-
-def benchmark_cases() -> list[tuple[str, object]]:
-    """Named zero-argument callables for a benchmark script (no timing here)."""
-    septet = [(k * 7.0, float(math.comb(6, k))) for k in range(7)]
-    return [
-        ("septet, Lorentzian, 1 Hz, default grid", lambda: sample_spectrum(septet, 1.0)),
-        ("septet, Gaussian, 0.2 Hz, default grid", lambda: sample_spectrum(septet, 0.2, shape="gaussian")),
-        ("50 lines x 100000 points, Lorentzian", lambda: sample_spectrum([(k * 3.0, 1.0) for k in range(50)], 0.01, margin_fwhm=0)),
-    ]

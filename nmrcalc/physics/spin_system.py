@@ -462,10 +462,10 @@ def _expectations(states, V, link_pos, n_linked):
         return [tuple(row) for row in z.tolist()]
     out = []
     for v in V:
-        z = [0.0] * n_linked
+        zs = [0.0] * n_linked
         for a, slot in link_pos:
-            z[slot] += sum(c * c * st[a] for c, st in zip(v, states)) / 2
-        out.append(tuple(z))
+            zs[slot] += sum(c * c * st[a] for c, st in zip(v, states)) / 2
+        out.append(tuple(zs))
     return out
 
 
@@ -548,8 +548,8 @@ def _transition_amplitudes(entries, dim_f, E_i, V_i, E_f, V_f):
         for si, ti, c, tag in entries:
             ws[tag][ti] += c * vb[si]
         for fa, (Ea, va) in enumerate(zip(E_f, V_f)):
-            parts = {site: sum(map(mul, va, w)) for site, w in ws.items()}
-            yield Ea - Eb, sum(parts.values()), max(parts, key=lambda k: parts[k] ** 2), fa, ib
+            share = {site: sum(map(mul, va, w)) for site, w in ws.items()}
+            yield Ea - Eb, sum(share.values()), max(share, key=lambda k: share[k] ** 2), fa, ib
 
 
 def _solver(use_numpy):
@@ -682,7 +682,7 @@ def transitions(sites, couplings, observe: str, *, use_numpy: bool | None = None
         own: list = []
         states: list = []
 
-        def emit(freq, inten, site, d, scale=scale, own=own):
+        def emit(freq, inten, site, d, scale=scale, own=own, linked=linked):
             if linked:
                 if inten > 0.0:
                     own.append((freq, inten * scale, site, d))
@@ -693,7 +693,7 @@ def transitions(sites, couplings, observe: str, *, use_numpy: bool | None = None
             states.append((weight / full_dim, z))
 
         for spins, weight in _compositions(units):
-            _composition_lines(units, spins, lambda a, b: unit_J[a][b], observe,
+            _composition_lines(units, spins, lambda a, b, unit_J=unit_J: unit_J[a][b], observe,
                                float(weight), solve, emit, tick, slot if linked else None, record)
         if linked:
             held.append((set(component), own, states))
