@@ -28,11 +28,11 @@ from __future__ import annotations
 
 import reprlib
 
-from nmrcalc.api.fields import PROGRESS, flag, magnet, nucleus, quantity
+from nmrcalc.api.fields import PROGRESS, flag, magnet, nucleus, quantity, zero_ppm_MHz
 from nmrcalc.api.params import MAGNET, SPECTRUM, Op, Param
 from nmrcalc.errors import InputError
 from nmrcalc.nuclides import Nuclide
-from nmrcalc.physics import larmor, lineshape
+from nmrcalc.physics import lineshape
 from nmrcalc.physics.multiplet import multiplet
 from nmrcalc.physics.spin_system import MAX_COUNT, Site, clusters, equivalence_caveats, first_order_checks, transitions
 from nmrcalc.units import split_list
@@ -146,7 +146,8 @@ def _magnets(req, warnings) -> list[tuple[float, float]]:
 
 
 def _ref_MHz(nuc: Nuclide, field_T: float, proton_MHz: float) -> float:
-    return larmor.reference_MHz(nuc, proton_MHz) or larmor.larmor_MHz(nuc, field_T)
+    """0 ppm of ``nuc`` (fields.zero_ppm_MHz; the op states a fallback once, in its warnings)."""
+    return zero_ppm_MHz(nuc, field_T, proton_MHz, [])
 
 
 def _first_order_lines(sites, couplings, observe: str) -> list[tuple[float, float]]:
@@ -216,6 +217,8 @@ def op_spin_system(req, warnings):
     labels = _labels(req)
     couplings = _couplings(req, labels)
     magnets = _magnets(req, warnings)
+    for nuc in {observe.symbol: observe, **{n.symbol: n for n, _, _ in spins}}.values():
+        zero_ppm_MHz(nuc, *magnets[0], warnings)  # warns where a nucleus has no Ξ (bare Larmor used)
     report = PROGRESS.get()
     blocks = []
     for k, (f, p) in enumerate(magnets):
