@@ -428,7 +428,7 @@ const NMRNotebook = (() => {
     if (!hash || !hash.startsWith("#calc=")) return;
     try {
       const entry = parseShare(hash);
-      reopen({ ...entry, what: `A shared link (${entry.request.op}, computed here, offline)` });
+      reopen({ ...entry, what: "A shared calculation (computed here, offline)" });
     } catch (err) {
       const reason = err instanceof NotebookError ? err.message : "it could not be read";
       NMR.notice(`This link's calculation could not be opened: ${reason}. The page works as usual.`, "error");
