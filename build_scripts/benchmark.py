@@ -126,26 +126,34 @@ BOOT_RUNS = 9
 FIRST_RESULT = "window.nmrcalcStatus && window.nmrcalcStatus.timings.firstResult"
 
 
-def page_section(bench: Bench) -> list:
-    dist = ROOT / "dist"
-    if build_web.main(["--out", str(dist)]) != 0:
-        raise SystemExit("build failed")
-    single = dist / "nmrcalc.html"
+@contextmanager
+def bare_and_site(dist: Path):
+    """(bare_url, site_url): a bare Pyodide boot page beside the core files, and the folder build,
+    each served on localhost while the block runs."""
     tmp_root = ROOT / "bench_results" / "tmp"
     tmp_root.mkdir(parents=True, exist_ok=True)
-    timings: dict[str, list[float]] = {"bare": [], "single": [], "site": []}
     with tempfile.TemporaryDirectory(dir=tmp_root) as tmp:
         bare = Path(tmp)
         for name in build_web.CORE_FILES:
             shutil.copyfile(build_web.PYODIDE_DIR / name, bare / name)
         (bare / "index.html").write_text(BARE_PAGE)
         with serve(bare) as bare_url, serve(dist / "site") as site_url:
-            # interleaved, so a change in machine load affects all three alike; at least
-            # BOOT_RUNS boots each, since one boot varies by about a tenth on a 2-core machine
-            for _ in range(max(bench.runs, BOOT_RUNS)):
-                timings["bare"].append(_time_until(bench, bare_url + "index.html", "window.bareBootMs"))
-                timings["single"].append(_time_until(bench, single.resolve().as_uri(), FIRST_RESULT))
-                timings["site"].append(_time_until(bench, site_url + "index.html", FIRST_RESULT))
+            yield bare_url, site_url
+
+
+def page_section(bench: Bench) -> list:
+    dist = ROOT / "dist"
+    if build_web.main(["--out", str(dist)]) != 0:
+        raise SystemExit("build failed")
+    single = dist / "nmrcalc.html"
+    timings: dict[str, list[float]] = {"bare": [], "single": [], "site": []}
+    with bare_and_site(dist) as (bare_url, site_url):
+        # interleaved, so a change in machine load affects all three alike; at least
+        # BOOT_RUNS boots each, since one boot varies by about a tenth on a 2-core machine
+        for _ in range(max(bench.runs, BOOT_RUNS)):
+            timings["bare"].append(_time_until(bench, bare_url + "index.html", "window.bareBootMs"))
+            timings["single"].append(_time_until(bench, single.resolve().as_uri(), FIRST_RESULT))
+            timings["site"].append(_time_until(bench, site_url + "index.html", FIRST_RESULT))
     bare_ms, single_ms, site_ms = (statistics.median(timings[k]) for k in ("bare", "single", "site"))
     core = build_web.core_size()
     size = single.stat().st_size
@@ -649,29 +657,22 @@ def engines_section(bench: Bench) -> list:
         raise SystemExit("build failed")
     rows = ["  one run per engine (not a median): boots vary by a tenth or more on this machine"]
     memory: list = []
-    tmp_root = ROOT / "bench_results" / "tmp"
-    tmp_root.mkdir(parents=True, exist_ok=True)
-    with tempfile.TemporaryDirectory(dir=tmp_root) as tmp:
-        bare = Path(tmp)
-        for name in build_web.CORE_FILES:
-            shutil.copyfile(build_web.PYODIDE_DIR / name, bare / name)
-        (bare / "index.html").write_text(BARE_PAGE)
-        with serve(bare) as bare_url, serve(dist / "site") as site_url:
-            for engine in ("chromium", "firefox", "webkit"):
-                driver = _EngineDriver(bench, engine)
-                try:
-                    bare_ms = _engine_time(driver, bare_url + "index.html", "window.bareBootMs")
-                    single_ms = _engine_time(driver, (dist / "nmrcalc.html").resolve().as_uri(), FIRST_RESULT)
-                    site_ms = _engine_time(driver, site_url + "index.html", FIRST_RESULT)
-                    rows += [(f"{engine}: bare Pyodide boot", bare_ms / 1000, "s"),
-                             (f"{engine}: single file first result / bare boot", single_ms / bare_ms, "x"),
-                             (f"{engine}: folder build first result / bare boot", site_ms / bare_ms, "x")]
-                    if engine == "chromium":
-                        memory = _memory_per_panel(driver, site_url + "index.html")
-                except Exception as exc:  # one engine that fails must not hide the others
-                    rows.append(f"  {engine}: FAILED: {type(exc).__name__}: {exc}")
-                finally:
-                    driver.close()
+    with bare_and_site(dist) as (bare_url, site_url):
+        for engine in ("chromium", "firefox", "webkit"):
+            driver = _EngineDriver(bench, engine)
+            try:
+                bare_ms = _engine_time(driver, bare_url + "index.html", "window.bareBootMs")
+                single_ms = _engine_time(driver, (dist / "nmrcalc.html").resolve().as_uri(), FIRST_RESULT)
+                site_ms = _engine_time(driver, site_url + "index.html", FIRST_RESULT)
+                rows += [(f"{engine}: bare Pyodide boot", bare_ms / 1000, "s"),
+                         (f"{engine}: single file first result / bare boot", single_ms / bare_ms, "x"),
+                         (f"{engine}: folder build first result / bare boot", site_ms / bare_ms, "x")]
+                if engine == "chromium":
+                    memory = _memory_per_panel(driver, site_url + "index.html")
+            except Exception as exc:  # one engine that fails must not hide the others
+                rows.append(f"  {engine}: FAILED: {type(exc).__name__}: {exc}")
+            finally:
+                driver.close()
     return rows + ["  Python's wasm memory (peak so far; the walk runs each panel's first example and buttons):"] + memory
 
 

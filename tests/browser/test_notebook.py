@@ -12,6 +12,7 @@ import csv
 import io
 import json
 
+from pinning import pin
 from playwright.sync_api import expect
 
 from nmrcalc.api import handle
@@ -19,12 +20,6 @@ from nmrcalc.api import handle
 HOSTILE_NOTE = "<img src=x onerror=alert(1)> =SUM(A1) sample 7b, CDCl3"
 
 
-def _pin(page, form_id, note):
-    card = page.locator(f"#card-{form_id}")
-    card.locator(".pin-open").click()
-    card.locator(".pin-note").fill(note)
-    card.locator(".pin-note").press("Enter")
-    expect(card.locator(".pin-status")).to_contain_text("Pinned")
 
 
 def _download_text(page, button):
@@ -48,11 +43,11 @@ def test_notebook_and_crash_recovery(dist, open_page, tmp_path):
     page.click("#form-scale button[type=submit]")
     want = handle({"op": "scale_coupling", "J": "32 Hz", "from": "2H", "to": "1H", "partner": "13C"})["result"]
     expect(page.locator("#scale-result")).to_contain_text(f"{want['J_Hz']:#.5g}")
-    _pin(page, "scale", HOSTILE_NOTE)
+    pin(page, "scale", HOSTILE_NOTE)
     page.click("#tab-magnet")
     page.click("#form-larmor button[type=submit]")
     expect(page.locator("#larmor-result")).not_to_be_empty()
-    _pin(page, "larmor", "second pin")
+    pin(page, "larmor", "second pin")
 
     # the notebook lists both, newest first, the note as literal text
     page.click("#tab-notebook")
@@ -173,7 +168,7 @@ def _panel_with_rows(rec):
     page.click("#form-mult button[type=submit]")
     page.wait_for_function("() => window.nmrcalcStatus.pending === 0")
     expect(page.locator("#card-mult .pin-open")).to_be_enabled()
-    _pin(page, "mult", "rows pin")
+    pin(page, "mult", "rows pin")
     link_state = page.evaluate("NMRNotebook.list()[0]")
     assert link_state["form"] == "mult" and link_state["inputs"]["mult.rows"]["groups"][0]["J"] == "21.7"
     assert link_state["request"]["op"] == "multiplet"

@@ -12,15 +12,8 @@ import csv
 import io
 import json
 
+from pinning import pin
 from playwright.sync_api import expect
-
-
-def _pin(page, form_id, note):
-    card = page.locator(f"#card-{form_id}")
-    card.locator(".pin-open").click()
-    card.locator(".pin-note").fill(note)
-    card.locator(".pin-note").press("Enter")
-    expect(card.locator(".pin-status")).to_contain_text("Pinned")
 
 
 def _calculate(page, tab, form_id):
@@ -51,11 +44,11 @@ def test_two_tabs_keep_both_pins_and_inputs(dist, open_page):
     a.click("#tab-coupling")
     a.fill("#scale-J", "32")
     _calculate(a, "coupling", "scale")
-    _pin(a, "scale", "from tab A")
+    pin(a, "scale", "from tab A")
     b.click("#tab-energy")
     b.fill("#energy-temperature", "77")
     _calculate(b, "magnet", "larmor")
-    _pin(b, "larmor", "from tab B")  # tab B loaded before A pinned: last writer must not win
+    pin(b, "larmor", "from tab B")  # tab B loaded before A pinned: last writer must not win
 
     for page in (a, b):
         page.reload()
@@ -70,7 +63,7 @@ def test_two_tabs_keep_both_pins_and_inputs(dist, open_page):
     a.click("#tab-notebook")
     a.locator("#notebook-pins .pin-delete").first.click()
     _calculate(b, "coupling", "scale")
-    _pin(b, "scale", "third")
+    pin(b, "scale", "third")
     assert len(a.evaluate("JSON.parse(localStorage.getItem('nmrcalc.notebook.v1'))")) == 2
     expect(a.locator("#notebook-pins > li")).to_have_count(2)
 
@@ -102,7 +95,7 @@ def test_oversized_paste_and_foreign_storage(dist, open_page):
     rec.wait_ready()
     expect(page.locator("#page-notice")).to_contain_text("could not be read")
     _calculate(page, "magnet", "larmor")
-    _pin(page, "larmor", "after junk")
+    pin(page, "larmor", "after junk")
     stored = page.evaluate("JSON.parse(localStorage.getItem('nmrcalc.notebook.v1'))")
     assert {"id": 1} in stored and "x" in stored and any(p.get("note") == "after junk" for p in stored if isinstance(p, dict))
     assert not rec.errors, rec.errors
@@ -119,7 +112,7 @@ def test_share_link_is_computed_from_its_fields(dist, open_page):
     expect(page.locator("#energy-temperature")).to_have_value("298")
     page.wait_for_function("() => window.nmrcalcStatus.pending === 0")
     expect(page.locator("#card-energy .pin-open")).to_be_enabled()
-    _pin(page, "energy", "link")
+    pin(page, "energy", "link")
     assert page.evaluate("NMRNotebook.list()[0].request.temperature") == "298"  # as typed: a bare number is in K
 
 
@@ -128,7 +121,7 @@ def test_pins_and_csv_are_fileable(dist, open_page):
     rec = open_page(url, offline=True)
     page = rec.page
     _calculate(page, "magnet", "larmor")
-    _pin(page, "larmor", "-5 =cmd @x")
+    pin(page, "larmor", "-5 =cmd @x")
     page.click("#tab-notebook")
     card = page.locator("#notebook-pins > li").first
     shown = card.inner_text()
