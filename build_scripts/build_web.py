@@ -189,15 +189,12 @@ def declarations_json(package_dir: Path) -> str:
     return json.dumps(described, ensure_ascii=False, separators=(",", ":")).replace("<", "\\u003c")
 
 
-def fill(template: str, head: str, body: str, csp: str, version: str) -> str:
+def fill(template: str, head: str, body: str, csp: str, version: str, params_json: str) -> str:
     return (template.replace("@CSP@", csp).replace("@VERSION@", version).replace("@HEAD@", head)
-            .replace("@PARAMS@", PARAMS_JSON[0]).replace("@BODY@", body))
+            .replace("@PARAMS@", params_json).replace("@BODY@", body))
 
 
-PARAMS_JSON = [""]  # set once by main() from the package being built
-
-
-def build_site(out: Path, package_bytes: bytes, version: str) -> None:
+def build_site(out: Path, package_bytes: bytes, version: str, params_json: str) -> None:
     if out.exists():
         shutil.rmtree(out)
     (out / "icons").mkdir(parents=True)
@@ -221,7 +218,7 @@ def build_site(out: Path, package_bytes: bytes, version: str) -> None:
     ])
     body = '<script defer src="app.js"></script>'
     csp = SITE_CSP.replace("script-src 'self'", f"script-src 'self' {sha256_source(boot)}")
-    (out / "index.html").write_text(fill((WEB / "index.html").read_text(), head, body, csp, version))
+    (out / "index.html").write_text(fill((WEB / "index.html").read_text(), head, body, csp, version, params_json))
     files = sorted(p.relative_to(out).as_posix() for p in out.rglob("*") if p.is_file())
     content = hashlib.sha256(b"".join((out / f).read_bytes() for f in files)).hexdigest()[:12]
     (out / "sw.js").write_text(service_worker(files, content))
@@ -234,7 +231,7 @@ def data_block(name: str, payload: bytes, kind: str, gzip_it: bool) -> str:
             f'data-kind="{kind}" data-gzip="{1 if gzip_it else 0}">{text}</script>')
 
 
-def build_single(out_file: Path, package_bytes: bytes, version: str) -> None:
+def build_single(out_file: Path, package_bytes: bytes, version: str, params_json: str) -> None:
     css = (WEB / "css" / "app.css").read_text()
     script = page_script()
     # in the order the worker needs them; each is posted to it as soon as it is parsed
@@ -258,7 +255,7 @@ def build_single(out_file: Path, package_bytes: bytes, version: str) -> None:
     head = '<link rel="icon" href="data:,">\n<style>' + css + "</style>"
     body = "\n".join(blocks) + "\n<script>" + script + "</script>"
     out_file.parent.mkdir(parents=True, exist_ok=True)
-    out_file.write_text(fill((WEB / "index.html").read_text(), head, body, csp, version))
+    out_file.write_text(fill((WEB / "index.html").read_text(), head, body, csp, version, params_json))
 
 
 def core_size() -> int:
@@ -284,10 +281,10 @@ def main(argv: list[str] | None = None) -> int:
         print(f"missing {', '.join(missing)} in {PYODIDE_DIR}: run `npm ci` in {ROOT} first", file=sys.stderr)
         return 1
     package_bytes = package_zip(args.package_dir)
-    PARAMS_JSON[0] = declarations_json(args.package_dir)
+    params_json = declarations_json(args.package_dir)
     version = package_version(args.package_dir)
-    build_site(args.out / "site", package_bytes, version)
-    build_single(args.out / "nmrcalc.html", package_bytes, version)
+    build_site(args.out / "site", package_bytes, version, params_json)
+    build_single(args.out / "nmrcalc.html", package_bytes, version, params_json)
     write_notices([args.out, args.out / "site"])
     single = (args.out / "nmrcalc.html").stat().st_size
     print(f"nmrcalc {version}: {args.out / 'site'} and {args.out / 'nmrcalc.html'}")

@@ -107,8 +107,6 @@ def _scalar(p: Param, text: str):
             return float(text)
         except ValueError:
             return text.strip()
-    if p.kind == "pair":
-        return text.strip()
     return text.strip()
 
 
