@@ -23,29 +23,46 @@ The grid is even with ``points_per_fwhm`` points per line width (default
 points the step widens, but never below ``MIN_POINTS_PER_FWHM`` points per
 width; past that ``InputError(code="too_large")`` is raised.  The work is
 counted as the profile evaluations actually made (each line on every point, or,
-for Lorentzians on a long grid, on the knots plus its near window; for
-Gaussians on its ``GAUSS_CUTOFF_SIGMA`` reach); above ``MAX_EVALUATIONS`` the
-density drops to ``MIN_POINTS_PER_FWHM`` first, and only then is the request
-refused, with the size and the remedy in the message.  The automatic window is the stick
-extent plus ``margin_fwhm`` widths on each side.  Pure Python lists, ascending
-in Hz.  Gaussian tails beyond ``GAUSS_CUTOFF_SIGMA`` standard deviations (a
-relative height below 1e-31) are not evaluated.
+for Lorentzians on a long grid, the knots and bins below; for Gaussians on its
+``GAUSS_CUTOFF_SIGMA`` reach); above ``DENSE_EVALUATIONS`` the density drops to
+``MIN_POINTS_PER_FWHM`` first, and above ``MAX_EVALUATIONS`` at that density
+the request is refused, with the size and the remedy in the message.  The
+automatic window is the stick extent plus ``margin_fwhm`` widths on each side.
+Pure Python lists, ascending in Hz.  Gaussian tails beyond
+``GAUSS_CUTOFF_SIGMA`` standard deviations (a relative height below 1e-31) are
+not evaluated.
 
 Lorentzian tails fall off slowly (``(w/2d)²`` of the peak at a distance
-``d``), so every line touches every point.  On a grid long against the
-line width (where it needs fewer evaluations) each line is
-therefore evaluated exactly only within ``NEAR_FWHM`` widths; the sum of all
-lines is evaluated on knots about ``KNOT_FWHM`` widths apart and
-interpolated linearly in between, and near each line the interpolated part
-of that line is replaced by its exact value.  Beyond ``NEAR_FWHM`` widths the
-error of linear interpolation, ``h² |f''| / 8`` with ``f = p (w/2)² / d²``
-and ``f'' ≈ 6 f / d²``, is ``(3/16) (h/w)² (w/d)⁴ p`` for a line of peak
-height ``p`` (knot spacing ``h``, width ``w``, distance ``d``): at most
-about 2.5e-6 ``p`` per line, so at most that times the summed peak heights.
+``d``), so every line touches every point.  On a grid long against the line
+width (more than ``DIRECT_FWHM`` widths; shorter grids are summed directly) the
+sum is evaluated on knots and interpolated linearly in between:
+
+* Knots.  A knot at distance ``D`` from the nearest line is followed by the
+  next one ``h = min(KNOT_SPREAD D, c (0.75 D)² / w)`` later (at least one grid
+  step), ``c = sqrt(16 INTERP_ERROR / 3)``; near lines every point is a knot.
+  Every line is then at least ``0.75 D`` from the interval, and the error of
+  linear interpolation, ``h² |f''| / 8`` with ``f = p (w/2)² / d²`` and
+  ``f'' ≈ 6 f / d²``, i.e. ``(3/16) (h/w)² (w/d)⁴ p`` for a line of peak height
+  ``p``, is at most ``INTERP_ERROR p`` (1.5e-6 p) per line.
+* Bins.  Sorted lines are joined into bins of at most ``BIN_FWHM`` widths, those
+  into bins four times wider, and so on (a tree).  Far from a bin its lines are
+  one line of their summed area at their centroid ``c``: the first moment cancels
+  and the error is at most ``(1/2) Σ a (x − c)² |f''|``, ``(3/4) (var/w²) (w/d)⁴ p``
+  for a bin of variance ``var`` (of its line positions, weighted by area) at
+  distance ``d`` and ``p`` its peak height.  A bin is used only beyond
+  ``d = w (0.75 (var/w²) / BIN_ERROR)^(1/4)`` (6.6 widths for two equal lines 0.1
+  w apart), where that is at most ``BIN_ERROR p`` (1e-6 p); nearer, its parts are
+  used, down to each line evaluated exactly (a bin of one line is exact at any
+  distance).
+So every point is within (INTERP_ERROR + BIN_ERROR) = 2.5e-6 times the summed
+peak heights of the direct sum, and the work is about the lines times the
+points within a few widths of them plus the knots times the bins of each size:
+a spectrum of thousands of lines spread over kHz is drawn, not refused.
 """
 
 from __future__ import annotations
 
+import bisect
 import math
 import reprlib
 from collections.abc import Iterable
@@ -59,9 +76,15 @@ MIN_POINTS_PER_FWHM = 5
 DEFAULT_MARGIN_FWHM = 10.0
 MAX_POINTS = 100_000
 MAX_EVALUATIONS = 5_000_000
+DENSE_EVALUATIONS = 1_000_000  # above this the density drops to MIN_POINTS_PER_FWHM first
 GAUSS_CUTOFF_SIGMA = 12.0
-NEAR_FWHM = 15
-KNOT_FWHM = 0.75
+KNOT_SPREAD = 0.25  # knot spacing at most this fraction of the distance to the nearest line
+INTERP_ERROR = 1.5e-6  # linear-interpolation error per line, relative to its peak height
+DIRECT_FWHM = 100  # grids up to this many widths are summed directly (exactly linear in the sticks)
+BIN_FWHM = 0.05  # extent of the finest bins (line widths); each coarser level is 4 times wider
+BIN_ERROR = 1e-6  # error of a bin at its centroid per line, relative to its peak height
+# h <= c (0.75 d)² / w with c = sqrt(16 INTERP_ERROR / 3) keeps (3/16) (h/w)² (w/d_min)⁴ <= INTERP_ERROR
+_KNOT_CURVE = math.sqrt(16 * INTERP_ERROR / 3) * (1 - KNOT_SPREAD) ** 2
 SHAPES = ("lorentzian", "gaussian")
 
 _FWHM_TO_SIGMA = 1.0 / (2.0 * math.sqrt(2.0 * math.log(2.0)))
@@ -174,11 +197,13 @@ def sample_spectrum(
                 field="fwhm_Hz",
                 code="too_large",
             )
-    work = _evaluations(len(lines), count, span / (count - 1), fwhm, shape)
-    if work > MAX_EVALUATIONS and density > MIN_POINTS_PER_FWHM:
+    if shape == "lorentzian":
+        lines = sorted((x0, a * fwhm / (2.0 * math.pi)) for x0, a in lines)  # L = scale / (d² + (w/2)²)
+    work, plan = _evaluations(lines, count, low, span / (count - 1), fwhm, shape)
+    if work > DENSE_EVALUATIONS and density > MIN_POINTS_PER_FWHM:
         # fewer points per line width before refusing (never below MIN_POINTS_PER_FWHM)
         count = min(count, math.ceil(span / fwhm * MIN_POINTS_PER_FWHM) + 1)
-        work = _evaluations(len(lines), count, span / (count - 1), fwhm, shape)
+        work, plan = _evaluations(lines, count, low, span / (count - 1), fwhm, shape)
     if work > MAX_EVALUATIONS:
         raise InputError(
             f"{len(lines)} lines on {count} points need about {work} evaluations, above the limit of "
@@ -190,8 +215,8 @@ def sample_spectrum(
     x_Hz = [low + i * step for i in range(count)]
     x_Hz[-1] = high
     y = [0.0] * count
-    if shape == "lorentzian":
-        y = _lorentzian_sum(lines, fwhm, x_Hz, step)
+    if plan is not None:
+        y = _lorentzian_sum(lines, fwhm, x_Hz, plan)
     else:
         sigma = fwhm * _FWHM_TO_SIGMA
         reach = GAUSS_CUTOFF_SIGMA * sigma
@@ -206,54 +231,146 @@ def sample_spectrum(
     return SampledSpectrum(x_Hz, y, step)
 
 
-def _evaluations(n_lines: int, count: int, step: float, fwhm: float, shape: str) -> int:
-    """Profile evaluations the sampling will make (the same near/far decision as ``_lorentzian_sum``)."""
+def _evaluations(lines: list[tuple[float, float]], count: int, low: float, step: float, fwhm: float,
+                 shape: str) -> tuple[int, _LorentzianPlan | None]:
+    """Profile evaluations the sampling will make, and the Lorentzian plan that makes them."""
     if shape == "gaussian":
-        return n_lines * min(count, 2 * math.ceil(GAUSS_CUTOFF_SIGMA * fwhm * _FWHM_TO_SIGMA / step) + 1)
-    reach = math.ceil(NEAR_FWHM * fwhm / step)
-    every = max(1, round(KNOT_FWHM * fwhm / step))
-    return n_lines * min(count, count // every + 3 * (2 * reach + 1))
+        return len(lines) * min(count, 2 * math.ceil(GAUSS_CUTOFF_SIGMA * fwhm * _FWHM_TO_SIGMA / step) + 1), None
+    plan = _LorentzianPlan(lines, count, low, step, fwhm)
+    return plan.work, plan
 
 
-def _lorentzian_sum(lines: list[tuple[float, float]], fwhm: float, x_Hz: list[float], step: float) -> list[float]:
-    """Sum of area-normalized Lorentzians on the even grid ``x_Hz`` (near/far split: module docstring)."""
+class _Bin(NamedTuple):
+    """Lines ``first:end`` of one level below (level 0: the lines) joined at their centroid.
+
+    ``spread`` = Σ scale (x − centre)²; ``reach`` = the distance beyond which the centroid is used.
+    """
+
+    lo: float
+    hi: float
+    centre: float
+    scale: float
+    spread: float
+    reach: float
+    first: int
+    end: int
+
+
+class _LorentzianPlan:
+    """Knots, the bin tree and the evaluation count of one Lorentzian sampling (module docstring).
+
+    ``lines`` = sorted (position, scale) with L = scale / (d² + (w/2)²).  ``direct`` is True
+    on grids of at most ``DIRECT_FWHM`` widths: every line on every point.
+    """
+
+    def __init__(self, lines: list[tuple[float, float]], count: int, low: float, step: float, fwhm: float):
+        positions = [x for x, _ in lines]
+        n = len(positions)
+        # every point is a knot where the spacing rule gives under 2 steps: within D of a line
+        D = max(2 * step / KNOT_SPREAD, math.sqrt(2 * step * fwhm / _KNOT_CURVE))
+        dense: list[list[int]] = []
+        for x in positions:
+            lo, hi = max(0, math.ceil((x - D - low) / step)), min(count - 1, math.floor((x + D - low) / step))
+            if lo > hi:
+                continue
+            if dense and lo <= dense[-1][1] + 1:
+                dense[-1][1] = max(dense[-1][1], hi)
+            else:
+                dense.append([lo, hi])
+        knots, k, run = [0], 0, 0
+        while k < count - 1:
+            while run < len(dense) and dense[run][1] <= k:
+                run += 1
+            if run < len(dense) and dense[run][0] <= k:
+                knots.extend(range(k + 1, dense[run][1] + 1))
+                k = dense[run][1]
+                continue
+            x = low + k * step
+            j = bisect.bisect_left(positions, x)
+            d = min(x - positions[j - 1] if j else math.inf, positions[j] - x if j < n else math.inf)
+            h = min(KNOT_SPREAD * d, _KNOT_CURVE * d * d / fwhm)
+            k = min(count - 1, k + max(1, int(h / step)))
+            knots.append(k)
+        self.knots = knots
+        self.xk = [low + k * step for k in knots]
+        self.levels: list[list[_Bin]] = [[_Bin(x, x, x, a, 0.0, 0.0, i, i + 1) for i, (x, a) in enumerate(lines)]]
+        extent = BIN_FWHM * fwhm
+        while len(self.levels[-1]) > 1 and extent < 4 * (positions[-1] - positions[0] + fwhm):
+            below, level, start = self.levels[-1], [], 0
+            for i in range(1, len(below) + 1):
+                if i == len(below) or below[i].hi - below[start].lo > extent:
+                    part = below[start:i]
+                    total = sum(b.scale for b in part)
+                    centre = sum(b.centre * b.scale for b in part) / total if total > 0 else part[0].centre
+                    spread = sum(b.spread + b.scale * (b.centre - centre) ** 2 for b in part)
+                    # (3/4) (var/w²) (w/d)⁴ <= BIN_ERROR with var = spread / total
+                    reach = fwhm * (0.75 * spread / (total * fwhm * fwhm) / BIN_ERROR) ** 0.25 if total > 0 else 0.0
+                    level.append(_Bin(part[0].lo, part[-1].hi, centre, total, spread, reach, start, i))
+                    start = i
+            self.levels.append(level)
+            extent *= 4
+        self.work = 0
+        for b in self.levels[-1]:
+            self._walk(len(self.levels) - 1, b, 0, len(knots), None, None)
+        # decided by the grid alone, so that spectra summed line by line equal the spectrum of all lines
+        self.direct = (count - 1) * step <= DIRECT_FWHM * fwhm
+        if self.direct:
+            self.work = n * count
+
+    def _walk(self, level: int, b: _Bin, first: int, end: int, total: list[float] | None,
+              half2: float | None) -> None:
+        """Add bin ``b`` on knots ``first:end``: at its centroid beyond its reach, else through its parts.
+
+        With ``total`` None only count the evaluations.
+        """
+        if level == 0:
+            a, z = first, end
+        else:
+            a = max(first, bisect.bisect_left(self.xk, b.lo - b.reach, first, end))
+            z = min(end, bisect.bisect_right(self.xk, b.hi + b.reach, a, end))
+        far = (a - first) + (end - z)
+        if total is None:
+            self.work += far if level else z - a
+        elif half2 is not None:
+            xk, c, s = self.xk, b.centre, b.scale
+            if a > first:
+                total[first:a] = [v + s / ((x - c) * (x - c) + half2) for v, x in zip(total[first:a], xk[first:a])]
+            if end > z:
+                total[z:end] = [v + s / ((x - c) * (x - c) + half2) for v, x in zip(total[z:end], xk[z:end])]
+            if level == 0:
+                total[a:z] = [v + s / ((x - c) * (x - c) + half2) for v, x in zip(total[a:z], xk[a:z])]
+        if level and z > a:
+            for part in self.levels[level - 1][b.first:b.end]:
+                self._walk(level - 1, part, a, z, total, half2)
+
+
+def _lorentzian_sum(lines: list[tuple[float, float]], fwhm: float, x_Hz: list[float],
+                    plan: _LorentzianPlan) -> list[float]:
+    """Lorentzians (sorted (position, scale), L = scale / (d² + (w/2)²)) on the even grid ``x_Hz``.
+
+    Evaluated on ``plan``'s knots through its bin tree and interpolated linearly (module docstring).
+    """
     half2 = (fwhm / 2.0) ** 2
-    lines = [(x0, a * fwhm / (2.0 * math.pi)) for x0, a in lines]  # L = scale / (d² + (w/2)²)
-    count, reach = len(x_Hz), math.ceil(NEAR_FWHM * fwhm / step)
-    every = max(1, round(KNOT_FWHM * fwhm / step))
-    # evaluations per line: every point, against the knots plus a near window (about 3 x dearer per point);
-    # decided by the grid alone, so that spectra summed line by line equal the spectrum of all lines
-    if count <= count // every + 3 * (2 * reach + 1):
+    count = len(x_Hz)
+    if plan.direct:
         y = [0.0] * count
         for x0, scale in lines:
             y = [v + scale / ((x - x0) * (x - x0) + half2) for v, x in zip(y, x_Hz)]
         return y
-    knots = list(range(0, count, every))
-    if knots[-1] != count - 1:
-        knots.append(count - 1)
-    xk = [x_Hz[k] for k in knots]
+    knots = plan.knots
+    plan.xk = [x_Hz[k] for k in knots]
     total = [0.0] * len(knots)
-    for x0, scale in lines:
-        total = [v + scale / ((x - x0) * (x - x0) + half2) for v, x in zip(total, xk)]
-    y = []
+    for b in plan.levels[-1]:
+        plan._walk(len(plan.levels) - 1, b, 0, len(knots), total, half2)
+    y: list[float] = []
     for s in range(len(knots) - 1):
         k0, v0 = knots[s], total[s]
+        if knots[s + 1] == k0 + 1:
+            y.append(v0)
+            continue
         slope = (total[s + 1] - v0) / (knots[s + 1] - k0)
         y.extend(v0 + slope * (i - k0) for i in range(k0, knots[s + 1]))
     y.append(total[-1])
-    low = x_Hz[0]
-    for x0, scale in lines:
-        # near the line: its exact value instead of its interpolated one (the two agree at the knots)
-        centre = round((x0 - low) / step)
-        first, last = max(0, centre - reach), min(count - 1, centre + reach)
-        for s in range(first // every, min(last // every, len(knots) - 2) + 1):
-            k0, k1 = knots[s], knots[s + 1]
-            d0, d1 = xk[s] - x0, xk[s + 1] - x0
-            at0 = scale / (d0 * d0 + half2)
-            slope = (scale / (d1 * d1 + half2) - at0) / (k1 - k0)
-            a, b = max(k0 + 1, first), min(k1, last + 1)
-            y[a:b] = [v + scale / ((x - x0) * (x - x0) + half2) - at0 - slope * (i - k0)
-                      for i, v, x in zip(range(a, b), y[a:b], x_Hz[a:b])]
     return y
 
 

@@ -69,7 +69,7 @@ import itertools
 import math
 from dataclasses import dataclass
 from fractions import Fraction
-from operator import mul
+from operator import itemgetter, mul
 
 from nmrcalc.errors import InputError
 from nmrcalc.physics.eigen import eigh
@@ -238,6 +238,10 @@ class _Unit:
     site: int
 
 
+# Transitions weaker than this (intensities sum to 1) are not kept: forbidden lines come out of
+# the eigenvectors at 1e-20 to 1e-33 and would only cost merging.  Even 10^7 of them add up to
+# 1e-6 of the total, and min_rel_intensity (1e-6 of the strongest line) drops lines far above it.
+NEGLIGIBLE_INTENSITY = 1e-13
 WEAK_LINK_MIN_RATIO = 20.0  # |Δν|/|J| a weak link needs besides J²/|Δν| <= tolerance
 
 
@@ -552,6 +556,41 @@ def _transition_amplitudes(entries, dim_f, E_i, V_i, E_f, V_f):
             yield Ea - Eb, sum(share.values()), max(share, key=lambda k: share[k] ** 2), fa, ib
 
 
+def _partner_shifts(component, other, states, weak, slot, sites, tol_Hz):
+    """The other cluster's eigenstates as the shifts they give this cluster's lines.
+
+    A line of ``component`` whose linked sites change <Σ I_z> by d moves by Σ_a d_a g_a in
+    an eigenstate of ``other`` with g_a = Σ_b J_ab <I_zb> (first order in the weak links).
+    States with g equal within a cell of tol_Hz / D per slot, D = Σ_a 2 n_a I_a bounding
+    Σ |d_a|, are joined at their weighted mean g: the shifts they give differ by at most
+    tol_Hz, the tolerance at which lines are merged anyway.  Returns None without links,
+    else (columns, means, spans, weights): per slot a the g_a of every joined state, the
+    weighted mean g_a and the max − min of g_a; and the joined states' weights.
+    """
+    links = [(slot[a], slot[b], J_ab) for (i, j), J_ab in weak.items()
+             for a, b in ((i, j), (j, i)) if a in component and b in other]
+    if not links:
+        return None
+    own_slots = sorted({a for a, _, _ in links})
+    bound = sum(2 * sites[s].count * float(sites[s].spin) for s in slot if slot[s] in own_slots)
+    cell = max(tol_Hz, 1e-9) / bound
+    cells: dict[tuple, list] = {}
+    for p, z in states:
+        g = [0.0] * len(own_slots)
+        for a, b, J_ab in links:
+            g[own_slots.index(a)] += J_ab * z[b]
+        acc = cells.setdefault(tuple(round(x / cell) for x in g), [[0.0] * len(g), 0.0])
+        acc[0] = [u + p * x for u, x in zip(acc[0], g)]
+        acc[1] += p
+    joined = [([u / w for u in sums], w) for sums, w in cells.values() if w > 0.0]
+    weights = [w for _, w in joined]
+    total = sum(weights)
+    columns = [(a, [g[k] for g, _ in joined]) for k, a in enumerate(own_slots)]
+    means = [(a, sum(map(mul, column, weights)) / total) for a, column in columns]
+    spans = [(a, max(column) - min(column)) for a, column in columns]
+    return columns, means, spans, weights
+
+
 def _solver(use_numpy):
     """Block eigensolver: numpy.linalg.eigh if wanted and importable, else ``eigh``."""
     if use_numpy is False:
@@ -571,7 +610,7 @@ def _merge(lines, tol_Hz: float) -> list[tuple[float, float, int]]:
     Each line is (freq, intensity, site); a merged line keeps the site of its strongest part.
     """
     merged: list[list] = []
-    for freq, inten, site in sorted(lines):
+    for freq, inten, site in sorted(lines, key=itemgetter(0)):
         if merged and freq - merged[-1][0] <= tol_Hz:
             last = merged[-1]
             total = last[1] + inten
@@ -683,11 +722,13 @@ def transitions(sites, couplings, observe: str, *, use_numpy: bool | None = None
         states: list = []
 
         def emit(freq, inten, site, d, scale=scale, own=own, linked=linked):
+            inten *= scale
+            if inten < NEGLIGIBLE_INTENSITY:
+                return
             if linked:
-                if inten > 0.0:
-                    own.append((freq, inten * scale, site, d))
+                own.append((freq, inten, site, d))
             else:
-                raw.append((freq, inten * scale, site))
+                raw.append((freq, inten, site))
 
         def record(weight, z, states=states, full_dim=full_dim):
             states.append((weight / full_dim, z))
@@ -699,27 +740,25 @@ def transitions(sites, couplings, observe: str, *, use_numpy: bool | None = None
             held.append((set(component), own, states))
 
     for component, own, _ in held:
-        partners = []
-        for other, _, states in held:
-            if other is component:
-                continue
-            links = [(slot[a], slot[b], J_ab) for (i, j), J_ab in weak.items()
-                     for a, b in ((i, j), (j, i)) if a in component and b in other]
-            if links:
-                partners.append((links, states))
-        spreads: dict = {}
+        spreads = [_partner_shifts(component, other, states, weak, slot, sites, merge_tol_Hz)
+                   for other, _, states in held if other is not component]
+        spreads = [sp for sp in spreads if sp is not None]
         for freq, inten, site, d in own:
-            # first order: the other cluster's eigenstate shifts this line by Σ J d_a <I_zb>; lines with
-            # the same Δ<I_z> (to 1e-9) share one distribution of shifts
-            key = tuple(round(x, 9) for x in d)
-            if key not in spreads:
-                shifts = [(0.0, 1.0)]
-                for links, states in partners:
-                    spread = _merge([(sum(J_ab * d[a] * z[b] for a, b, J_ab in links), p, 0)
-                                     for p, z in states], merge_tol_Hz / 10)
-                    shifts = [(x + y, w * p) for x, w in shifts for y, p, _ in spread]
-                spreads[key] = shifts
-            raw.extend((freq + x, w * inten, site) for x, w in spreads[key])
+            # first order: each eigenstate of another cluster shifts this line by Σ_a d_a g_a; when
+            # those shifts span at most merge_tol_Hz they are one line at their weighted mean
+            xs, ws = [freq], [inten]
+            for columns, means, spans, weights in spreads:
+                if sum(abs(d[a]) * width for a, width in spans) <= merge_tol_Hz:
+                    centre = sum(d[a] * g_a for a, g_a in means)
+                    xs = [x + centre for x in xs]
+                    continue
+                shift = [0.0] * len(weights)
+                for a, column in columns:
+                    da = d[a]
+                    shift = [u + da * g for u, g in zip(shift, column)]
+                xs = [x + u for x in xs for u in shift]
+                ws = [w * p for w in ws for p in weights]
+            raw.extend(zip(xs, ws, itertools.repeat(site)))
 
     if progress is not None:
         progress(1.0)
