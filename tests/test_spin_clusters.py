@@ -6,6 +6,7 @@ numpy.linalg.eigh: H = Σ ν_k I_zk + Σ J_kl I_k·I_l (PSB 1959 = Pople, Schnei
 Bernstein, High-resolution NMR, ch. 6); lines |<f|F_x|i>|² with ν = E_f − E_i.
 """
 
+import bisect
 import itertools
 import math
 from fractions import Fraction
@@ -108,3 +109,34 @@ def test_weak_links_are_not_used_when_exact():
     ours = [(x, w) for x, w in exact if w > 1e-6]
     assert len(ours) == len(strong)
     assert all(abs(a[0] - b[0]) < 1e-6 and abs(a[1] - b[1]) < 1e-9 for a, b in zip(ours, strong))
+
+
+
+@pytest.mark.parametrize("para_ppm", [
+    7.23,
+    pytest.param(7.16, marks=pytest.mark.xfail(strict=True, reason=(
+        "known defect: with the para H 4 Hz from the ortho H (|J| 1.2 Hz) the ring's levels are nearly "
+        "degenerate, the links' I_z I_z part mixes them, and lines move 0.09 Hz while error_Hz states 0.004"))),
+])
+def test_phenyl_ethyl_weak_links_within_a_hundredth_of_a_hertz(para_ppm):
+    # a made-up ethylbenzene-like fragment, 10 nuclei: ring (ortho, meta, para H as five spins) + CH2 + CH3,
+    # benzylic 0.6 Hz links to both ortho H, at 400 MHz; the issue-14 target: lines within 0.01 Hz of the
+    # exact answer.  Reference: the exact engine (no weak links), itself checked against numpy.linalg.eigh of
+    # the full Hamiltonian in test_weak_links_are_not_used_when_exact (PSB 1959)
+    ppm = [7.17, 7.17, 7.27, 7.27, para_ppm, 2.64, 1.23]
+    counts = [1, 1, 1, 1, 1, 2, 3]
+    J = [(0, 2, 7.6), (1, 3, 7.6), (2, 4, 7.4), (3, 4, 7.4), (0, 4, 1.2), (1, 4, 1.2), (0, 1, 1.8), (2, 3, 1.4),
+         (0, 3, 0.6), (1, 2, 0.6), (5, 6, 7.6), (0, 5, 0.6), (1, 5, 0.6)]
+    sites = [Site("1H", HALF, p * 400.0, c) for p, c in zip(ppm, counts)]
+    found = clusters(sites, J, "1H", weak_link_tol_Hz=0.01)
+    assert [c["method"] for c in found] == ["weak-link", "weak-link"]
+    assert max(c["error_Hz"] for c in found) < 0.01
+    approx = transitions(sites, J, "1H", weak_link_tol_Hz=0.01, merge_tol_Hz=1e-4, min_rel_intensity=0)
+    exact = sorted(x for x, _, _ in transitions(sites, J, "1H", merge_tol_Hz=1e-4, min_rel_intensity=0))
+
+    def off(x):
+        k = bisect.bisect(exact, x)
+        return min(abs(x - exact[j]) for j in (k - 1, k) if 0 <= j < len(exact))
+
+    strongest = max(w for _, w, _ in approx)
+    assert max(off(x) for x, w, _ in approx if w >= 1e-4 * strongest) <= 0.01

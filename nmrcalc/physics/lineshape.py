@@ -352,8 +352,8 @@ def _lorentzian_sum(lines: list[tuple[float, float]], fwhm: float, x_Hz: list[fl
     """
     half2 = (fwhm / 2.0) ** 2
     count = len(x_Hz)
+    y = [0.0] * count
     if plan.direct:
-        y = [0.0] * count
         for x0, scale in lines:
             y = [v + scale / ((x - x0) * (x - x0) + half2) for v, x in zip(y, x_Hz)]
         return y
@@ -362,7 +362,7 @@ def _lorentzian_sum(lines: list[tuple[float, float]], fwhm: float, x_Hz: list[fl
     total = [0.0] * len(knots)
     for b in plan.levels[-1]:
         plan._walk(len(plan.levels) - 1, b, 0, len(knots), total, half2)
-    y: list[float] = []
+    y = []
     for s in range(len(knots) - 1):
         k0, v0 = knots[s], total[s]
         if knots[s + 1] == k0 + 1:

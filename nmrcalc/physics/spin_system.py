@@ -67,9 +67,11 @@ the same frame.
 
 import itertools
 import math
+from collections.abc import Callable, Iterable, Iterator
 from dataclasses import dataclass
 from fractions import Fraction
 from operator import itemgetter, mul
+from typing import Any
 
 from nmrcalc.errors import InputError
 from nmrcalc.physics.eigen import eigh
@@ -83,6 +85,13 @@ MAX_TOTAL_DIM = 4096
 # spins stay below 10; a site of more than 64 equivalent spins is not chemistry).
 MAX_SPIN = 10
 MAX_COUNT = 64
+
+Links = dict[tuple[int, int], float]  # (i, j) with i < j -> J_Hz
+State = tuple[int, ...]  # 2m of every spin of one composition
+# block eigensolver: values, vectors (rows of lists, or columns of a numpy array)
+Solver = Callable[[list[list[float]]], tuple[Any, Any]]
+# a partner cluster's shifts (_partner_shifts): per slot its g column, mean and span; the weights
+Spread = tuple[list[tuple[int, list[float]]], list[tuple[int, float]], list[tuple[int, float]], list[float]]
 
 
 @dataclass(frozen=True)
@@ -102,7 +111,7 @@ class Site:
 
 # ---------------------------------------------------------------- validation
 
-def _checked_sites(sites) -> list[Site]:
+def _checked_sites(sites: Any) -> list[Site]:
     try:
         sites = list(sites)
     except TypeError:
@@ -132,7 +141,7 @@ def _checked_sites(sites) -> list[Site]:
     return out
 
 
-def _checked_spin(value, field: str) -> Fraction:
+def _checked_spin(value: Any, field: str) -> Fraction:
     if isinstance(value, bool):
         raise InputError("spin must be a positive multiple of 1/2", field=field)
     try:
@@ -146,7 +155,7 @@ def _checked_spin(value, field: str) -> Fraction:
     return spin
 
 
-def _checked_real(value, field: str) -> float:
+def _checked_real(value: Any, field: str) -> float:
     if isinstance(value, bool):
         raise InputError("must be a number", field=field)
     try:
@@ -158,7 +167,7 @@ def _checked_real(value, field: str) -> float:
     return x
 
 
-def _checked_couplings(couplings, n_sites: int) -> dict[tuple[int, int], float]:
+def _checked_couplings(couplings: Any, n_sites: int) -> Links:
     """Map (i, j) with i < j to J_Hz; zero couplings are kept out of the map."""
     try:
         couplings = list(couplings)
@@ -189,7 +198,7 @@ def _checked_couplings(couplings, n_sites: int) -> dict[tuple[int, int], float]:
 
 # ------------------------------------------------------- spin composition
 
-def total_spin_multiplicities(n: int, spin) -> list[tuple[Fraction, int]]:
+def total_spin_multiplicities(n: int, spin: Any) -> list[tuple[Fraction, int]]:
     """Total spins F (descending) and multiplicities for n spins of ``spin``.
 
     Clebsch–Gordan counting: the number N(M) of product states with total M is
@@ -238,6 +247,9 @@ class _Unit:
     site: int
 
 
+Planned = tuple[list[int], list[_Unit], int]  # component, its units, total dimension after factoring
+
+
 # Transitions weaker than this (intensities sum to 1) are not kept: forbidden lines come out of
 # the eigenvectors at 1e-20 to 1e-33 and would only cost merging.  Even 10^7 of them add up to
 # 1e-6 of the total, and min_rel_intensity (1e-6 of the strongest line) drops lines far above it.
@@ -245,7 +257,7 @@ NEGLIGIBLE_INTENSITY = 1e-13
 WEAK_LINK_MIN_RATIO = 20.0  # |Δν|/|J| a weak link needs besides J²/|Δν| <= tolerance
 
 
-def _split_links(sites, J, observe, tol_Hz):
+def _split_links(sites: list[Site], J: Links, observe: str, tol_Hz: float | None) -> tuple[Links, Links]:
     """(strong, weak) couplings: weak = like observed spins with |Δν| >= 20|J| and J²/|Δν| <= tol_Hz."""
     if tol_Hz is None:
         return J, {}
@@ -264,7 +276,7 @@ def _split_links(sites, J, observe, tol_Hz):
     return strong, weak
 
 
-def clusters(sites, couplings, observe: str, weak_link_tol_Hz: float | None = None) -> list[dict]:
+def clusters(sites: Any, couplings: Any, observe: str, weak_link_tol_Hz: float | None = None) -> list[dict]:
     """Clusters solved apart: {"spins", "method" ("exact" | "weak-link"), "error_Hz", "links"}.
 
     Sites joined by no coupling path are exact apart.  With ``weak_link_tol_Hz``
@@ -299,7 +311,7 @@ def clusters(sites, couplings, observe: str, weak_link_tol_Hz: float | None = No
     return out
 
 
-def components(n_sites: int, couplings) -> list[list[int]]:
+def components(n_sites: int, couplings: Any) -> list[list[int]]:
     """Sites joined by chains of non-zero couplings (solved separately and summed: exact)."""
     return _components(n_sites, _checked_couplings(couplings, n_sites))
 
@@ -308,7 +320,7 @@ def _components(n_sites: int, J: dict[tuple[int, int], float]) -> list[list[int]
     """Connected components of the coupling graph (non-zero J only), each sorted."""
     parent = list(range(n_sites))
 
-    def root(i):
+    def root(i: int) -> int:
         while parent[i] != i:
             parent[i] = parent[parent[i]]
             i = parent[i]
@@ -322,7 +334,7 @@ def _components(n_sites: int, J: dict[tuple[int, int], float]) -> list[list[int]
     return list(groups.values())
 
 
-def _units(sites, component, factor_equivalence: bool) -> list[_Unit]:
+def _units(sites: list[Site], component: list[int], factor_equivalence: bool) -> list[_Unit]:
     units = []
     for s in component:
         site = sites[s]
@@ -335,7 +347,7 @@ def _units(sites, component, factor_equivalence: bool) -> list[_Unit]:
     return units
 
 
-def _compositions(units):
+def _compositions(units: list[_Unit]) -> Iterator[tuple[list[tuple[int, int]], int]]:
     """Yield (spins, weight): spins = list of (unit index, 2F) with F > 0."""
     for choice in itertools.product(*(u.options for u in units)):
         weight = math.prod(m for _, m in choice)
@@ -343,7 +355,7 @@ def _compositions(units):
         yield spins, weight
 
 
-def _block_profile(units, spins) -> tuple[int, int]:
+def _block_profile(units: list[_Unit], spins: list[tuple[int, int]]) -> tuple[int, int]:
     """(largest block dimension, Σ block dim³) for one composition."""
     largest, cube_sum = 1, 1
     for nucleus in dict.fromkeys(units[k].nucleus for k, _ in spins):
@@ -353,7 +365,7 @@ def _block_profile(units, spins) -> tuple[int, int]:
     return largest, cube_sum
 
 
-def _plan(sites, J, observe, factor_equivalence):
+def _plan(sites: list[Site], J: Links, observe: str, factor_equivalence: bool) -> list[Planned]:
     """(component, units, total dimension after factoring) for components with observed spins."""
     plan = []
     for component in _components(len(sites), J):
@@ -368,7 +380,7 @@ def _plan(sites, J, observe, factor_equivalence):
 _MAX_COUNTED_2F = 512  # beyond this Σ 2F in one component the largest block is not counted
 
 
-def _size_report(plan) -> tuple[int | None, int, int]:
+def _size_report(plan: list[Planned]) -> tuple[int | None, int, int]:
     """(largest block, largest total dimension, Σ dim³) over the plan.
 
     The largest block comes from taking the largest F of every group: a larger
@@ -393,7 +405,7 @@ def _size_report(plan) -> tuple[int | None, int, int]:
     return largest, total_dim, work
 
 
-def problem_size(sites, couplings, observe: str, *, factor_equivalence: bool = True) -> dict:
+def problem_size(sites: Any, couplings: Any, observe: str, *, factor_equivalence: bool = True) -> dict:
     """Largest block and largest total dimension (per component) that ``simulate`` would meet.
 
     ``largest_block`` is None for systems too big to count quickly (Σ 2F > 512
@@ -406,7 +418,7 @@ def problem_size(sites, couplings, observe: str, *, factor_equivalence: bool = T
     return {"largest_block": largest, "total_dim": total_dim}
 
 
-def _checked_observe(sites, observe) -> None:
+def _checked_observe(sites: list[Site], observe: Any) -> None:
     if not any(s.nucleus == observe for s in sites):
         names = ", ".join(sorted({s.nucleus for s in sites}))
         raise InputError(f"observe must be one of the nuclei present ({names})", field="observe")
@@ -420,7 +432,7 @@ def _ladder(two_f: int, two_m: int, up: bool) -> float:
     return 0.5 * math.sqrt(two_f * (two_f + 2) - two_m * (two_m + sign))
 
 
-def _blocks(two_fs, nuc_of, n_nuclei) -> dict[tuple, list[tuple]]:
+def _blocks(two_fs: list[int], nuc_of: list[int], n_nuclei: int) -> dict[State, list[State]]:
     """Product states (tuples of 2m) grouped by the tuple of per-nuclide total 2M."""
     blocks: dict[tuple, list[tuple]] = {}
     for state in itertools.product(*(range(-tf, tf + 1, 2) for tf in two_fs)):
@@ -431,7 +443,8 @@ def _blocks(two_fs, nuc_of, n_nuclei) -> dict[tuple, list[tuple]]:
     return blocks
 
 
-def _block_hamiltonian(states, index, nu, two_fs, pairs) -> list[list[float]]:
+def _block_hamiltonian(states: list[State], index: dict[State, int], nu: list[float], two_fs: list[int],
+                       pairs: list[tuple[int, int, float, bool]]) -> list[list[float]]:
     """H in one block: Σ ν m + Σ J m_a m_b on the diagonal, J/2 (I+I- + I-I+) for like pairs."""
     H = [[0.0] * len(states) for _ in states]
     for i, s in enumerate(states):
@@ -450,7 +463,8 @@ def _block_hamiltonian(states, index, nu, two_fs, pairs) -> list[list[float]]:
     return H
 
 
-def _expectations(states, V, link_pos, n_linked):
+def _expectations(states: list[State], V: Any, link_pos: list[tuple[int, int]],
+                  n_linked: int) -> list[tuple[float, ...]] | None:
     """<Σ I_z> of each linked site in every eigenvector of one block (tuples in ``link_pos`` order)."""
     if not n_linked:
         return None
@@ -473,7 +487,10 @@ def _expectations(states, V, link_pos, n_linked):
     return out
 
 
-def _composition_lines(units, spins, J_units, observe, weight, solve, emit, tick, linked=None, record=None):
+def _composition_lines(units: list[_Unit], spins: list[tuple[int, int]], J_units: Callable[[int, int], float],
+                       observe: str, weight: float, solve: Solver, emit: Callable[..., None],
+                       tick: Callable[[int], None], linked: dict[int, int] | None = None,
+                       record: Callable[[float, tuple[float, ...]], None] | None = None) -> None:
     """Diagonalize every block of one composition and emit (freq_Hz, raw intensity, site, Δ<I_z>).
 
     ``linked`` maps every weakly linked site (of all clusters) to a slot; then each line also carries
@@ -494,13 +511,15 @@ def _composition_lines(units, spins, J_units, observe, weight, solve, emit, tick
             if Jab != 0.0:
                 pairs.append((a, b, Jab, nuc_of[a] == nuc_of[b]))
     link_pos = [(a, linked[units[k].site]) for a, (k, _) in enumerate(spins) if linked and units[k].site in linked]
-    solved, expect = {}, {}
+    solved: dict[State, tuple[list[State], dict[State, int], tuple[Any, Any]]] = {}
+    expect: dict[State, list[tuple[float, ...]] | None] = {}
     for key, states in _blocks(two_fs, nuc_of, len(nuclei)).items():
         index = {s: i for i, s in enumerate(states)}
         solved[key] = (states, index, solve(_block_hamiltonian(states, index, nu, two_fs, pairs)))
         expect[key] = _expectations(states, solved[key][2][1], link_pos, len(linked or ()))
-        if record is not None and linked:
-            for z in expect[key]:
+        zs = expect[key]
+        if record is not None and zs is not None:
+            for z in zs:
                 record(weight, z)
         tick(len(states) ** 3)
     obs_spins = [a for a in range(len(spins)) if nuc_of[a] == obs]
@@ -519,11 +538,12 @@ def _composition_lines(units, spins, J_units, observe, weight, solve, emit, tick
                     entries.append((si, f_index[tuple(t)], _ladder(two_fs[a], s[a], True), units[spins[a][0]].site))
         z_i, z_f = expect[key], expect[tuple(target)]
         for freq, amp, site, fa, ib in _transition_amplitudes(entries, len(f_states), E_i, V_i, E_f, V_f):
-            d = () if z_i is None else tuple(x - y for x, y in zip(z_f[fa], z_i[ib]))
+            d = () if z_i is None or z_f is None else tuple(x - y for x, y in zip(z_f[fa], z_i[ib]))
             emit(freq, 0.25 * weight * amp * amp, site, d)
 
 
-def _transition_amplitudes(entries, dim_f, E_i, V_i, E_f, V_f):
+def _transition_amplitudes(entries: list[tuple[int, int, float, int]], dim_f: int, E_i: Any, V_i: Any, E_f: Any,
+                           V_f: Any) -> Iterator[tuple[float, float, int, int, int]]:
     """Yield (E_f[a] − E_i[b], <f_a|F_+|i_b>, site, a, b) for every eigenpair across two blocks.
 
     ``site`` is the observed site whose own I_+ gives the largest part
@@ -556,7 +576,8 @@ def _transition_amplitudes(entries, dim_f, E_i, V_i, E_f, V_f):
             yield Ea - Eb, sum(share.values()), max(share, key=lambda k: share[k] ** 2), fa, ib
 
 
-def _partner_shifts(component, other, states, weak, slot, sites, tol_Hz):
+def _partner_shifts(component: set[int], other: set[int], states: list[tuple[float, tuple[float, ...]]],
+                    weak: Links, slot: dict[int, int], sites: list[Site], tol_Hz: float) -> Spread | None:
     """The other cluster's eigenstates as the shifts they give this cluster's lines.
 
     A line of ``component`` whose linked sites change <Σ I_z> by d moves by Σ_a d_a g_a in
@@ -591,7 +612,7 @@ def _partner_shifts(component, other, states, weak, slot, sites, tol_Hz):
     return columns, means, spans, weights
 
 
-def _solver(use_numpy):
+def _solver(use_numpy: bool | None) -> Solver:
     """Block eigensolver: numpy.linalg.eigh if wanted and importable, else ``eigh``."""
     if use_numpy is False:
         return eigh
@@ -604,7 +625,7 @@ def _solver(use_numpy):
     return lambda H: numpy.linalg.eigh(numpy.array(H, dtype=float))
 
 
-def _merge(lines, tol_Hz: float) -> list[tuple[float, float, int]]:
+def _merge(lines: Iterable[tuple[float, float, int]], tol_Hz: float) -> list[tuple[float, float, int]]:
     """Join lines whose position is within ``tol_Hz`` of the running weighted mean.
 
     Each line is (freq, intensity, site); a merged line keeps the site of its strongest part.
@@ -631,9 +652,10 @@ def _count_text(n: int) -> str:
     return f"more than 10^{int((n.bit_length() - 1) * math.log10(2))}"
 
 
-def simulate(sites, couplings, observe: str, *, use_numpy: bool | None = None,
+def simulate(sites: Any, couplings: Any, observe: str, *, use_numpy: bool | None = None,
              factor_equivalence: bool = True, merge_tol_Hz: float = 1e-3,
-             min_rel_intensity: float = 1e-6, progress=None) -> list[tuple[float, float]]:
+             min_rel_intensity: float = 1e-6,
+             progress: Callable[[float], None] | None = None) -> list[tuple[float, float]]:
     """Lines (freq_Hz, intensity) of the ``observe`` nuclide, ascending in frequency.
 
     Same arguments as ``transitions``, which also names the site of each line.
@@ -643,9 +665,9 @@ def simulate(sites, couplings, observe: str, *, use_numpy: bool | None = None,
         merge_tol_Hz=merge_tol_Hz, min_rel_intensity=min_rel_intensity, progress=progress)]
 
 
-def transitions(sites, couplings, observe: str, *, use_numpy: bool | None = None,
+def transitions(sites: Any, couplings: Any, observe: str, *, use_numpy: bool | None = None,
                 factor_equivalence: bool = True, merge_tol_Hz: float = 1e-3,
-                min_rel_intensity: float = 1e-6, progress=None,
+                min_rel_intensity: float = 1e-6, progress: Callable[[float], None] | None = None,
                 weak_link_tol_Hz: float | None = None) -> list[tuple[float, float, int]]:
     """Lines (freq_Hz, intensity, site) of the ``observe`` nuclide, ascending in frequency.
 
@@ -699,7 +721,7 @@ def transitions(sites, couplings, observe: str, *, use_numpy: bool | None = None
     sum_rule = sum(s.count * float(s.spin * (s.spin + 1)) for s in sites if s.nucleus == observe)
     done = [0]
 
-    def tick(cost):
+    def tick(cost: int) -> None:
         done[0] += cost
         if progress is not None:
             progress(min(1.0, done[0] / work))
@@ -721,7 +743,8 @@ def transitions(sites, couplings, observe: str, *, use_numpy: bool | None = None
         own: list = []
         states: list = []
 
-        def emit(freq, inten, site, d, scale=scale, own=own, linked=linked):
+        def emit(freq: float, inten: float, site: int, d: tuple[float, ...], scale: float = scale,
+                 own: list = own, linked: dict[int, int] = linked) -> None:
             inten *= scale
             if inten < NEGLIGIBLE_INTENSITY:
                 return
@@ -730,19 +753,21 @@ def transitions(sites, couplings, observe: str, *, use_numpy: bool | None = None
             else:
                 raw.append((freq, inten, site))
 
-        def record(weight, z, states=states, full_dim=full_dim):
+        def record(weight: float, z: tuple[float, ...], states: list = states, full_dim: int = full_dim) -> None:
             states.append((weight / full_dim, z))
 
+        def J_units(a: int, b: int, unit_J: list[list[float]] = unit_J) -> float:
+            return unit_J[a][b]
+
         for spins, weight in _compositions(units):
-            _composition_lines(units, spins, lambda a, b, unit_J=unit_J: unit_J[a][b], observe,
+            _composition_lines(units, spins, J_units, observe,
                                float(weight), solve, emit, tick, slot if linked else None, record)
         if linked:
             held.append((set(component), own, states))
 
-    for component, own, _ in held:
-        spreads = [_partner_shifts(component, other, states, weak, slot, sites, merge_tol_Hz)
-                   for other, _, states in held if other is not component]
-        spreads = [sp for sp in spreads if sp is not None]
+    for cluster, own, _ in held:
+        spreads = [sp for other, _, states in held if other is not cluster
+                   if (sp := _partner_shifts(cluster, other, states, weak, slot, sites, merge_tol_Hz)) is not None]
         for freq, inten, site, d in own:
             # first order: each eigenstate of another cluster shifts this line by Σ_a d_a g_a; when
             # those shifts span at most merge_tol_Hz they are one line at their weighted mean
@@ -769,7 +794,7 @@ def transitions(sites, couplings, observe: str, *, use_numpy: bool | None = None
 
 # ------------------------------------------------------------ diagnostics
 
-def first_order_checks(sites, couplings, threshold: float = 10.0,
+def first_order_checks(sites: Any, couplings: Any, threshold: float = 10.0,
                        spectrometer_1H_MHz: float | None = None) -> list[dict]:
     """Δν/|J| for every coupled pair of like-nuclide sites with J ≠ 0.
 
@@ -810,7 +835,7 @@ def first_order_checks(sites, couplings, threshold: float = 10.0,
     return out
 
 
-def equivalence_caveats(sites, couplings, shift_tol_Hz: float = 1e-6, J_tol_Hz: float = 1e-6,
+def equivalence_caveats(sites: Any, couplings: Any, shift_tol_Hz: float = 1e-6, J_tol_Hz: float = 1e-6,
                         labels: list[str] | None = None) -> list[str]:
     """Warn about chemically equivalent but magnetically inequivalent site pairs.
 
@@ -826,7 +851,7 @@ def equivalence_caveats(sites, couplings, shift_tol_Hz: float = 1e-6, J_tol_Hz: 
     shift_tol_Hz = _checked_real(shift_tol_Hz, "shift_tol_Hz")
     J_tol_Hz = _checked_real(J_tol_Hz, "J_tol_Hz")
 
-    def coupling(a, b):
+    def coupling(a: int, b: int) -> float:
         return J.get((min(a, b), max(a, b)), 0.0)
 
     names = labels if labels is not None else [f"site {k + 1}" for k in range(len(sites))]
