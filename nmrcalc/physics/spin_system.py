@@ -490,12 +490,14 @@ def _expectations(states: list[State], V: Any, link_pos: list[tuple[int, int]],
 def _composition_lines(units: list[_Unit], spins: list[tuple[int, int]], J_units: Callable[[int, int], float],
                        observe: str, weight: float, solve: Solver, emit: Callable[..., None],
                        tick: Callable[[int], None], linked: dict[int, int] | None = None,
-                       record: Callable[[float, tuple[float, ...]], None] | None = None) -> None:
+                       record: Callable[[float, tuple[float, ...]], None] | None = None,
+                       min_raw: float = 0.0) -> None:
     """Diagonalize every block of one composition and emit (freq_Hz, raw intensity, site, Δ<I_z>).
 
     ``linked`` maps every weakly linked site (of all clusters) to a slot; then each line also carries
     the change of <Σ I_z> of every linked site (final − initial eigenstate) and
-    ``record(weight, z)`` receives every eigenstate's <Σ I_z> per slot.
+    ``record(weight, z)`` receives every eigenstate's <Σ I_z> per slot.  Lines whose raw intensity
+    is below ``min_raw`` are dropped by ``emit``, so their site is not worked out.
     """
     nuclei = list(dict.fromkeys(units[k].nucleus for k, _ in spins))
     nuc_of = [nuclei.index(units[k].nucleus) for k, _ in spins]
@@ -537,19 +539,23 @@ def _composition_lines(units: list[_Unit], spins: list[tuple[int, int]], J_units
                     t[a] += 2
                     entries.append((si, f_index[tuple(t)], _ladder(two_fs[a], s[a], True), units[spins[a][0]].site))
         z_i, z_f = expect[key], expect[tuple(target)]
-        for freq, amp, site, fa, ib in _transition_amplitudes(entries, len(f_states), E_i, V_i, E_f, V_f):
+        for freq, amp, site, fa, ib in _transition_amplitudes(entries, len(f_states), E_i, V_i, E_f, V_f,
+                                                               min_raw / (0.25 * weight)):
             d = () if z_i is None or z_f is None else tuple(x - y for x, y in zip(z_f[fa], z_i[ib]))
             emit(freq, 0.25 * weight * amp * amp, site, d)
 
 
 def _transition_amplitudes(entries: list[tuple[int, int, float, int]], dim_f: int, E_i: Any, V_i: Any, E_f: Any,
-                           V_f: Any) -> Iterator[tuple[float, float, int, int, int]]:
+                           V_f: Any, min_amp2: float = 0.0) -> Iterator[tuple[float, float, int, int, int]]:
     """Yield (E_f[a] − E_i[b], <f_a|F_+|i_b>, site, a, b) for every eigenpair across two blocks.
 
     ``site`` is the observed site whose own I_+ gives the largest part
-    |<f_a|Σ_site I_+|i_b>|² of the amplitude: the spin the line "mostly belongs to".
+    |<f_a|Σ_site I_+|i_b>|² of the amplitude: the spin the line "mostly belongs to".  Lines with
+    amplitude² below ``min_amp2`` (which the caller drops) get the first site without the shares.
     """
     sites = sorted({tag for *_, tag in entries})
+    if not sites:
+        return
     if hasattr(V_i, "shape"):  # numpy arrays: columns are eigenvectors
         import numpy
 
@@ -569,11 +575,17 @@ def _transition_amplitudes(entries: list[tuple[int, int, float, int]], dim_f: in
         return
     for ib, (Eb, vb) in enumerate(zip(E_i, V_i)):
         ws = {site: [0.0] * dim_f for site in sites}
+        every = [0.0] * dim_f
         for si, ti, c, tag in entries:
             ws[tag][ti] += c * vb[si]
+            every[ti] += c * vb[si]
         for fa, (Ea, va) in enumerate(zip(E_f, V_f)):
+            amp = sum(map(mul, va, every))
+            if len(sites) == 1 or amp * amp < min_amp2:  # one site, or a line the caller drops
+                yield Ea - Eb, amp, sites[0], fa, ib
+                continue
             share = {site: sum(map(mul, va, w)) for site, w in ws.items()}
-            yield Ea - Eb, sum(share.values()), max(share, key=lambda k: share[k] ** 2), fa, ib
+            yield Ea - Eb, amp, max(share, key=lambda k: share[k] ** 2), fa, ib
 
 
 def _partner_shifts(component: set[int], other: set[int], states: list[tuple[float, tuple[float, ...]]],
@@ -761,7 +773,8 @@ def transitions(sites: Any, couplings: Any, observe: str, *, use_numpy: bool | N
 
         for spins, weight in _compositions(units):
             _composition_lines(units, spins, J_units, observe,
-                               float(weight), solve, emit, tick, slot if linked else None, record)
+                               float(weight), solve, emit, tick, slot if linked else None, record,
+                               NEGLIGIBLE_INTENSITY / scale)
         if linked:
             held.append((set(component), own, states))
 
