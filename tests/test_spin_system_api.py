@@ -185,3 +185,27 @@ def test_weak_links_split_unless_exact():
     for line in split["lines"]:
         if line["intensity"] > 1e-3:
             assert min(abs(line["Hz"] - x) for x in exact_Hz) <= bound + 2e-3  # 2e-3: merge tolerances
+
+
+def test_sixteen_nuclei_in_two_weakly_linked_clusters_are_drawn_at_half_a_hertz():
+    # made-up (3-methylbutyl)phenyl fragment (the benchmark's 16-nucleus molecule): five ring H and an
+    # 11-H chain joined by 0.6 Hz benzylic links; too large to solve in one piece, so weak links, and its
+    # 0.5 Hz spectrum over 2.6 kHz is drawn, not refused
+    ring = ((7.17, "H-2"), (7.17, "H-6"), (7.27, "H-3"), (7.27, "H-5"), (7.16, "H-4"))
+    spins = [{"nucleus": "1H", "shift": s, "label": n} for s, n in ring]
+    spins += [{"nucleus": "1H", "shift": s, "count": c, "label": n} for s, c, n in
+              ((2.62, 2, "H-1'"), (1.50, 2, "H-2'"), (1.60, 1, "H-3'"), (0.94, 6, "H-4'"))]
+    J = [(("H-2", "H-3"), 7.6), (("H-6", "H-5"), 7.6), (("H-3", "H-4"), 7.4), (("H-5", "H-4"), 7.4),
+         (("H-2", "H-4"), 1.2), (("H-6", "H-4"), 1.2), (("H-2", "H-6"), 1.8), (("H-3", "H-5"), 1.4),
+         (("H-2", "H-5"), 0.6), (("H-6", "H-3"), 0.6), (("H-1'", "H-2'"), 7.9), (("H-2'", "H-3'"), 6.8),
+         (("H-3'", "H-4'"), 6.6), (("H-2", "H-1'"), 0.6), (("H-6", "H-1'"), 0.6)]
+    req = {"op": "spin_system", "observe": "1H", "spectrometer": "400 MHz", "spins": spins,
+           "couplings": [{"between": list(p), "J": j} for p, j in J], "spectrum": True, "linewidth": "0.5 Hz"}
+    r = run(req)
+    assert sum(s.get("count", 1) for s in spins) == 16
+    assert [c["method"] for c in r["clusters"]] == ["weak-link", "weak-link"]
+    assert len(r["lines"]) > 1000 and len(r["spectrum"]["y"]) == len(r["spectrum"]["x_ppm"]) > 20000
+    # every 1H is counted once: the intensities sum to 1 (sum rule, module docstring of spin_system), less
+    # the thousands of lines below 1e-6 of the strongest, which are dropped
+    assert math.isclose(sum(l["intensity"] for l in r["lines"]), 1.0, rel_tol=1e-4)
+    assert handle({**req, "exact": True})["error"]["code"] == "too_large"
