@@ -170,7 +170,7 @@ def _line_dicts(lines, ref_MHz):
     return [{"Hz": x, "ppm": x / ref_MHz, "intensity": y} for x, y in lines]
 
 
-def _block(spins, labels, couplings, observe, field_T, proton_MHz, req, progress=None) -> dict:
+def _block(spins, labels, couplings, observe, field_T, proton_MHz, req, warnings, progress=None) -> dict:
     sites = [Site(nuc.symbol, nuc.spin, shift * _ref_MHz(nuc, field_T, proton_MHz), count)
              for nuc, shift, count in spins]
     tol = None if flag(req, "exact") else WEAK_LINK_TOL_HZ
@@ -184,8 +184,16 @@ def _block(spins, labels, couplings, observe, field_T, proton_MHz, req, progress
                "first_order_from_MHz": c.get("threshold_1H_MHz")}
               for c in first_order_checks(sites, couplings, threshold=FIRST_ORDER_THRESHOLD,
                                           spectrometer_1H_MHz=proton_MHz)]
+    found_clusters = clusters(sites, couplings, observe.symbol, tol,
+                              factor_equivalence=flag(req, "factor_equivalence", True))
     groups = [{"spins": c["spins"], "labels": [labels[k] for k in c["spins"]], "method": c["method"],
-               "error_Hz": c["error_Hz"]} for c in clusters(sites, couplings, observe.symbol, tol)]
+               "error_Hz": c["error_Hz"]} for c in found_clusters]
+    for c in found_clusters:
+        if tol is not None and c["mixing_Hz"] > tol:
+            names = ", ".join(labels[k] for k in c["spins"])
+            warnings.append(f"The cluster {names} is split from its weakly coupled partners only approximately "
+                            f"(joined, the system is too large to solve exactly): its lines may be off by up to "
+                            f"{c['error_Hz']:.2g} Hz (weak-link tolerance {tol:g} Hz).")
     block = {"spectrometer_MHz": proton_MHz, "field_T": field_T, "observe_MHz": ref,
              "lines": _line_dicts(lines, ref), "checks": checks, "first_order_threshold": FIRST_ORDER_THRESHOLD,
              "clusters": groups, "weak_link_tol_Hz": tol,
@@ -223,7 +231,7 @@ def op_spin_system(req, warnings):
     blocks = []
     for k, (f, p) in enumerate(magnets):
         step = None if report is None else (lambda x, k=k: report((k + x) / len(magnets)))
-        blocks.append(_block(spins, labels, couplings, observe, f, p, req, step))
+        blocks.append(_block(spins, labels, couplings, observe, f, p, req, warnings, step))
     offsets0 = [Site(nuc.symbol, nuc.spin, shift, count) for nuc, shift, count in spins]
     warnings.extend(equivalence_caveats(offsets0, couplings, labels=labels))
     if any(nuc.quadrupolar and nuc.symbol != "2H" for nuc, _, _ in spins):

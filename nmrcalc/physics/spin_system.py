@@ -276,38 +276,174 @@ def _split_links(sites: list[Site], J: Links, observe: str, tol_Hz: float | None
     return strong, weak
 
 
-def clusters(sites: Any, couplings: Any, observe: str, weak_link_tol_Hz: float | None = None) -> list[dict]:
-    """Clusters solved apart: {"spins", "method" ("exact" | "weak-link"), "error_Hz", "links"}.
+def _level_mixing(E: Any, V: Any, diag: list[float]) -> list[float]:
+    """Per eigenstate k of one block: Σ_{l≠k} (√(Δ_kl² + 4 W_kl²) − |Δ_kl|) / 2, W = <l|V|k>, Δ = E_k − E_l.
+
+    ``diag`` is a diagonal perturbation V (in the product basis) of the block.  Each
+    term is the exact level shift of a two-level system, which is W²/|Δ| (second-order
+    Rayleigh–Schrödinger) when |W| ≪ |Δ| and never more than |W| (first-order degenerate
+    theory) when the levels are (nearly) degenerate: the floor on the denominator.
+    """
+    if hasattr(V, "shape"):
+        import numpy
+
+        W = V.T @ (numpy.array(diag)[:, None] * V)
+        D = numpy.abs(E[:, None] - E[None, :])
+        T = (numpy.sqrt(D * D + 4 * W * W) - D) / 2
+        numpy.fill_diagonal(T, 0.0)
+        return [float(x) for x in T.sum(axis=1)]
+    weighted = [[c * x for c, x in zip(v, diag)] for v in V]
+    out = []
+    for k, (Ek, vk) in enumerate(zip(E, weighted)):
+        total = 0.0
+        for l, (El, vl) in enumerate(zip(E, V)):
+            if l != k:
+                w, d = sum(map(mul, vk, vl)), abs(Ek - El)
+                total += (math.sqrt(d * d + 4 * w * w) - d) / 2
+        out.append(total)
+    return out
+
+
+def _mixing_bound(sites: list[Site], group: list[int], strong: Links, links: list[tuple[int, int, float]],
+                  solve: Solver) -> float:
+    """Largest second-order level shift e of ``group`` by V = Σ_a g_a I_za, g_a = Σ_b J_ab z_b.
+
+    V is the part of the weak ``links`` (a in ``group``, b in a partner, J_ab) that the
+    first-order treatment keeps only on the diagonal: to cluster A, a partner eigenstate
+    with <Σ I_zb> = z_b acts as an extra shift g_a of each linked site a, and V mixes A's
+    eigenstates |k> within each block (the same total M per nuclide): δE_k = Σ_{l≠k}
+    |<l|V|k>|² / (E_k − E_l), Rayleigh–Schrödinger perturbation theory, second order
+    (any quantum-mechanics text, e.g. Sakurai, *Modern Quantum Mechanics*, §5.1), each
+    term taken in its two-level form (``_level_mixing``) so that nearly degenerate levels
+    give at most |<l|V|k>|.  Each term is convex in z, and |z_b| <= n_b I_b, so the largest
+    over all partner states is at a corner z_b = ±n_b I_b; all corners are tried (z and −z
+    give the same).
+    """
+    partner = sorted({b for _, b, _ in links})
+    corners = []
+    for signs in itertools.product((1, -1), repeat=max(len(partner) - 1, 0)):
+        z = {b: sites[b].count * float(sites[b].spin) * sg for b, sg in zip(partner, (1,) + signs)}
+        g: dict[int, float] = {}
+        for a, b, J_ab in links:
+            g[a] = g.get(a, 0.0) + J_ab * z[b]
+        corners.append(g)
+    units = _units(sites, group, True)
+    pairs_J = {(a, b): strong.get((min(ua.site, ub.site), max(ua.site, ub.site)), 0.0)
+               for a, ua in enumerate(units) for b, ub in enumerate(units) if ua.site != ub.site}
+    worst = 0.0
+    for spins, _ in _compositions(units):
+        nuclei = list(dict.fromkeys(units[k].nucleus for k, _ in spins))
+        nuc_of = [nuclei.index(units[k].nucleus) for k, _ in spins]
+        two_fs = [tf for _, tf in spins]
+        nu = [units[k].offset_Hz for k, _ in spins]
+        pairs = [(a, b, pairs_J[(spins[a][0], spins[b][0])], nuc_of[a] == nuc_of[b])
+                 for a in range(len(spins)) for b in range(a + 1, len(spins))
+                 if pairs_J.get((spins[a][0], spins[b][0]), 0.0) != 0.0]
+        at = [(a, units[k].site) for a, (k, _) in enumerate(spins) if units[k].site in corners[0]]
+        if not at:
+            continue
+        for states in _blocks(two_fs, nuc_of, len(nuclei)).values():
+            if len(states) < 2:
+                continue
+            index = {st: i for i, st in enumerate(states)}
+            E, V = solve(_block_hamiltonian(states, index, nu, two_fs, pairs))
+            for g in corners:
+                diag = [sum(g[site] * st[a] / 2 for a, site in at) for st in states]
+                worst = max(worst, max(_level_mixing(E, V, diag)))
+    return worst
+
+
+def _weak_split(sites: list[Site], J: Links, observe: str, tol_Hz: float | None, factor_equivalence: bool,
+                solve: Solver) -> tuple[Links, Links, dict[int, float]]:
+    """(strong, weak, mixing error per site's cluster): ``_split_links``, then the second-order check.
+
+    A line of cluster A is a difference of two of A's levels in one eigenstate of each
+    partner B, so the mixing (``_mixing_bound``) moves it by at most 2 e_A + Σ_B 2 e_B
+    (B's levels shift by up to e_B in A's field, differently in A's two states).  A
+    cluster whose bound exceeds ``tol_Hz`` is joined to its partners (its links solved
+    exactly) when the joined cluster fits MAX_BLOCK_DIM / MAX_TOTAL_DIM; otherwise it
+    stays split and its bound is reported.  Repeated until nothing changes.  When the split
+    clusters themselves exceed the size limits the bound is not worked out (math.inf).
+    """
+    strong, weak = _split_links(sites, J, observe, tol_Hz)
+    while weak:
+        largest, total_dim, _ = _size_report(_plan(sites, strong, observe, factor_equivalence))
+        if largest is None or largest > MAX_BLOCK_DIM or total_dim > MAX_TOTAL_DIM:
+            return strong, weak, dict.fromkeys(range(len(sites)), math.inf)  # too large: not estimated
+        groups = _components(len(sites), strong)
+        root = {s: k for k, group in enumerate(groups) for s in group}
+        own = [0.0] * len(groups)
+        partners: list[set[int]] = [set() for _ in groups]
+        for k, group in enumerate(groups):
+            links = [(a, b, J_ab) for (i, j), J_ab in weak.items() for a, b in ((i, j), (j, i)) if root[a] == k]
+            partners[k] = {root[b] for _, b, _ in links}
+            if links:
+                own[k] = _mixing_bound(sites, group, strong, links, solve)
+        mixing = [2 * own[k] + sum(2 * own[b] for b in partners[k]) for k in range(len(groups))]
+        joined = False
+        for k in sorted(range(len(groups)), key=lambda k: -mixing[k]):
+            if tol_Hz is None or mixing[k] <= tol_Hz:
+                break
+            joins = {p: J_p for p, J_p in weak.items() if k in (root[p[0]], root[p[1]])}
+            trial = {**strong, **joins}
+            plan = [entry for entry in _plan(sites, trial, observe, factor_equivalence) if groups[k][0] in entry[0]]
+            largest, total_dim, _ = _size_report(plan)
+            if largest is not None and largest <= MAX_BLOCK_DIM and total_dim <= MAX_TOTAL_DIM:
+                strong = trial
+                weak = {p: J_p for p, J_p in weak.items() if p not in joins}
+                joined = True
+                break
+        if not joined:
+            return strong, weak, {s: mixing[root[s]] for s in root}
+    return strong, weak, dict.fromkeys(range(len(sites)), 0.0)
+
+
+def clusters(sites: Any, couplings: Any, observe: str, weak_link_tol_Hz: float | None = None, *,
+             factor_equivalence: bool = True, use_numpy: bool | None = None) -> list[dict]:
+    """Clusters solved apart: {"spins", "method", "error_Hz", "flip_flop_Hz", "mixing_Hz", "links"}.
 
     Sites joined by no coupling path are exact apart.  With ``weak_link_tol_Hz``
     a coupling between like observed sites with |Δν| >= 20 |J| and J²/|Δν| <=
     ``weak_link_tol_Hz`` (both in Hz at the chosen field) is a weak link, treated to
-    first order.  The neglected flip-flop terms J/2 (F_+ F_− + F_− F_+) between
+    first order, provided the second-order mixing bound below is also <= the
+    tolerance or the joined cluster is too large to solve exactly (``_weak_split``).
+    ``error_Hz`` bounds how far a line of the cluster is from the exact one; it is
+    the sum of two parts:
+
+    ``flip_flop_Hz``: the neglected flip-flop terms J/2 (F_+ F_− + F_− F_+) between
     the clusters shift each level by second-order perturbation theory by at most
     (Σ_links |J| c_i c_j)² / (4 |Δν|) (the amplitudes of one cluster's links can
     add; c = (n + 1)/2 bounds a ladder element of a group of n spins-½; for one
     AB pair this is J²/(4Δν), the AB quartet's C = √(Δν² + J²) ≈ Δν + J²/(2Δν)),
-    so a line moves by about twice that.  ``error_Hz`` is that times 4, a margin
+    so a line moves by about twice that.  This part is that times 4, a margin
     for energy denominators of strongly coupled clusters spread below Δν and for
     near-degenerate lines: 2 (Σ_links |J| c_i c_j)² / min |Δν|.  The margin is
     set by the dense numpy reference (tests/test_spin_clusters.py: at 60 MHz a
     strongly coupled ethyl line moved 0.013 Hz against an unmargined 0.006 Hz).
+
+    ``mixing_Hz``: the links' I_za I_zb part, kept only on the diagonal, is a shift
+    g_a = Σ_b J_ab <I_zb> of each linked site a that mixes the cluster's own
+    eigenstates; with nearly degenerate levels (energy denominators of a few Hz,
+    not |Δν|) this dominates.  Bound: 2 e_A + Σ_partners 2 e_B, e the largest
+    second-order shift Σ_{l≠k} |<l|V|k>|² / |E_k − E_l| (Rayleigh–Schrödinger,
+    ``_mixing_bound``, two-level form for near degeneracy).
     """
     sites = _checked_sites(sites)
     J = _checked_couplings(couplings, len(sites))
     _checked_observe(sites, observe)
     if weak_link_tol_Hz is not None:
         weak_link_tol_Hz = _checked_real(weak_link_tol_Hz, "weak_link_tol_Hz")
-    strong, weak = _split_links(sites, J, observe, weak_link_tol_Hz)
+    strong, weak, mixing = _weak_split(sites, J, observe, weak_link_tol_Hz, factor_equivalence, _solver(use_numpy))
     out = []
     for group in _components(len(sites), strong):
         links = [(i, j, J_ij) for (i, j), J_ij in sorted(weak.items()) if i in group or j in group]
         c = [(sites[k].count * float(2 * sites[k].spin) + 1) / 2 for k in range(len(sites))]
         amplitude = sum(abs(J_ij) * c[i] * c[j] for i, j, J_ij in links)
-        error = 2 * amplitude ** 2 / min((abs(sites[i].offset_Hz - sites[j].offset_Hz) for i, j, _ in links),
-                                     default=1.0)
-        out.append({"spins": group, "method": "weak-link" if links else "exact", "error_Hz": error,
-                    "links": links})
+        flip_flop = 2 * amplitude ** 2 / min((abs(sites[i].offset_Hz - sites[j].offset_Hz) for i, j, _ in links),
+                                             default=1.0)
+        mix = mixing[group[0]] if links else 0.0
+        out.append({"spins": group, "method": "weak-link" if links else "exact", "error_Hz": flip_flop + mix,
+                    "flip_flop_Hz": flip_flop, "mixing_Hz": mix, "links": links})
     return out
 
 
@@ -711,7 +847,7 @@ def transitions(sites: Any, couplings: Any, observe: str, *, use_numpy: bool | N
     solve = _solver(use_numpy)
     if weak_link_tol_Hz is not None:
         weak_link_tol_Hz = _checked_real(weak_link_tol_Hz, "weak_link_tol_Hz")
-    J, weak = _split_links(sites, J, observe, weak_link_tol_Hz)
+    J, weak, _ = _weak_split(sites, J, observe, weak_link_tol_Hz, factor_equivalence, solve)
 
     plan = _plan(sites, J, observe, factor_equivalence)
     largest, total_dim, work = _size_report(plan)
