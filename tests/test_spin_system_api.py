@@ -209,3 +209,29 @@ def test_sixteen_nuclei_in_two_weakly_linked_clusters_are_drawn_at_half_a_hertz(
     # the thousands of lines below 1e-6 of the strongest, which are dropped
     assert math.isclose(sum(l["intensity"] for l in r["lines"]), 1.0, rel_tol=1e-4)
     assert handle({**req, "exact": True})["error"]["code"] == "too_large"
+    # the ring H at 7.17/7.16 ppm (4 Hz apart, J 1.2 Hz) have nearly degenerate levels that the links' I_z I_z
+    # part mixes (second-order bound, spin_system.clusters): the split stays, its error is stated and warned
+    full = handle(req)
+    assert all(c["error_Hz"] > 0.01 for c in r["clusters"])
+    stated = [w for w in full["warnings"] if "split from its weakly coupled partners only approximately" in w]
+    assert len(stated) == 2 and f"up to {r['clusters'][0]['error_Hz']:.2g} Hz" in stated[0]
+
+
+def test_nearly_degenerate_ring_is_joined_and_solved_exactly():
+    # made-up ethylbenzene-like fragment (10 nuclei) with the para H 4 Hz from the ortho H: the weak links'
+    # second-order mixing bound exceeds the 0.01 Hz tolerance, and the joined system fits, so it is exact
+    ring = ((7.17, "H-2"), (7.17, "H-6"), (7.27, "H-3"), (7.27, "H-5"), (7.16, "H-4"))
+    spins = [{"nucleus": "1H", "shift": s, "label": n} for s, n in ring]
+    spins += [{"nucleus": "1H", "shift": 2.64, "count": 2, "label": "CH2"},
+              {"nucleus": "1H", "shift": 1.23, "count": 3, "label": "CH3"}]
+    J = [(("H-2", "H-3"), 7.6), (("H-6", "H-5"), 7.6), (("H-3", "H-4"), 7.4), (("H-5", "H-4"), 7.4),
+         (("H-2", "H-4"), 1.2), (("H-6", "H-4"), 1.2), (("H-2", "H-6"), 1.8), (("H-3", "H-5"), 1.4),
+         (("H-2", "H-5"), 0.6), (("H-6", "H-3"), 0.6), (("CH2", "CH3"), 7.6), (("H-2", "CH2"), 0.6),
+         (("H-6", "CH2"), 0.6)]
+    req = {"op": "spin_system", "observe": "1H", "spectrometer": "400 MHz", "spins": spins,
+           "couplings": [{"between": list(p), "J": j} for p, j in J]}
+    full = handle(req)
+    assert [(c["method"], c["error_Hz"]) for c in full["result"]["clusters"]] == [("exact", 0.0)]
+    assert not any("approximately" in w for w in full["warnings"])
+    # the same lines as "exact": true (the exact engine, checked against numpy.linalg.eigh in test_spin_clusters)
+    assert full["result"]["lines"] == handle({**req, "exact": True})["result"]["lines"]
