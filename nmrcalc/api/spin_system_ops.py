@@ -11,9 +11,11 @@ lines with ``spin``, the index of the observed spin each mostly belongs to, and
 its label), ``clusters`` (sites joined by coupling paths, each solved alone and
 summed — exact, since their Hamiltonians commute; clusters joined only by weak
 links, |Δν| >= 20 |J| and J²/|Δν| <= ``WEAK_LINK_TOL_HZ`` in Hz at the chosen
-field, are solved apart with those links to first order, ``method``
-"weak-link" and ``error_Hz`` the estimate of ``spin_system.clusters``;
-``"exact": true`` solves every link exactly) and ``first_order_threshold``
+field, and whose second-order mixing bound is also within that tolerance, are
+solved apart with those links to first order, ``method`` "weak-link" and
+``error_Hz`` the bound of ``spin_system.clusters`` on how far a line is from the
+exact one; a system too large to join stays split with its larger ``error_Hz``
+and a warning saying so; ``"exact": true`` solves every link exactly) and ``first_order_threshold``
 (the Δν/J used by ``checks``).
 
 ``factor_equivalence`` (default true) lets the solver use groups of equivalent

@@ -49,6 +49,8 @@ Public interface::
         -> list[tuple[float, float]]   # (freq_Hz, intensity), ascending freq_Hz
     transitions(same arguments) -> list[tuple[float, float, int]]  # plus the site each line mostly belongs to
     components(n_sites, couplings) -> list[list[int]]   # sites joined by coupling paths
+    clusters(sites, couplings, observe, weak_link_tol_Hz=None, *, factor_equivalence=True)
+        -> list[dict]   # clusters solved apart, method and error bound (error_Hz = flip_flop_Hz + mixing_Hz)
     first_order_checks(sites, couplings, threshold=10.0, spectrometer_1H_MHz=None)
         -> list[dict]
     equivalence_caveats(sites, couplings, shift_tol_Hz=1e-6, J_tol_Hz=1e-6) -> list[str]
@@ -65,6 +67,7 @@ frequency of that nuclide, converted by the caller); result frequencies are in
 the same frame.
 """
 
+import functools
 import itertools
 import math
 from collections.abc import Callable, Iterable, Iterator
@@ -353,8 +356,19 @@ def _mixing_bound(sites: list[Site], group: list[int], strong: Links, links: lis
     return worst
 
 
-def _weak_split(sites: list[Site], J: Links, observe: str, tol_Hz: float | None, factor_equivalence: bool,
-                solve: Solver) -> tuple[Links, Links, dict[int, float]]:
+def _weak_split(sites: list[Site], J: Links, observe: str, tol_Hz: float | None,
+                factor_equivalence: bool) -> tuple[Links, Links, dict[int, float]]:
+    """``_joined_split`` (its docstring), remembered for the last few systems (and size limits):
+    ``clusters`` and ``transitions`` of one request ask for the same split."""
+    strong, weak, mixing = _joined_split(tuple(sites), tuple(sorted(J.items())), observe, tol_Hz, factor_equivalence,
+                                         (MAX_BLOCK_DIM, MAX_TOTAL_DIM))
+    return dict(strong), dict(weak), dict(mixing)
+
+
+@functools.lru_cache(maxsize=4)
+def _joined_split(site_tuple: tuple[Site, ...], J_items: tuple[tuple[tuple[int, int], float], ...], observe: str,
+                  tol_Hz: float | None, factor_equivalence: bool,
+                  limits: tuple[int, int]) -> tuple[Links, Links, dict[int, float]]:
     """(strong, weak, mixing error per site's cluster): ``_split_links``, then the second-order check.
 
     A line of cluster A is a difference of two of A's levels in one eigenstate of each
@@ -365,10 +379,11 @@ def _weak_split(sites: list[Site], J: Links, observe: str, tol_Hz: float | None,
     stays split and its bound is reported.  Repeated until nothing changes.  When the split
     clusters themselves exceed the size limits the bound is not worked out (math.inf).
     """
-    strong, weak = _split_links(sites, J, observe, tol_Hz)
+    sites, solve = list(site_tuple), _solver(None)
+    strong, weak = _split_links(sites, dict(J_items), observe, tol_Hz)
     while weak:
         largest, total_dim, _ = _size_report(_plan(sites, strong, observe, factor_equivalence))
-        if largest is None or largest > MAX_BLOCK_DIM or total_dim > MAX_TOTAL_DIM:
+        if largest is None or largest > limits[0] or total_dim > limits[1]:
             return strong, weak, dict.fromkeys(range(len(sites)), math.inf)  # too large: not estimated
         groups = _components(len(sites), strong)
         root = {s: k for k, group in enumerate(groups) for s in group}
@@ -388,7 +403,7 @@ def _weak_split(sites: list[Site], J: Links, observe: str, tol_Hz: float | None,
             trial = {**strong, **joins}
             plan = [entry for entry in _plan(sites, trial, observe, factor_equivalence) if groups[k][0] in entry[0]]
             largest, total_dim, _ = _size_report(plan)
-            if largest is not None and largest <= MAX_BLOCK_DIM and total_dim <= MAX_TOTAL_DIM:
+            if largest is not None and largest <= limits[0] and total_dim <= limits[1]:
                 strong = trial
                 weak = {p: J_p for p, J_p in weak.items() if p not in joins}
                 joined = True
@@ -399,7 +414,7 @@ def _weak_split(sites: list[Site], J: Links, observe: str, tol_Hz: float | None,
 
 
 def clusters(sites: Any, couplings: Any, observe: str, weak_link_tol_Hz: float | None = None, *,
-             factor_equivalence: bool = True, use_numpy: bool | None = None) -> list[dict]:
+             factor_equivalence: bool = True) -> list[dict]:
     """Clusters solved apart: {"spins", "method", "error_Hz", "flip_flop_Hz", "mixing_Hz", "links"}.
 
     Sites joined by no coupling path are exact apart.  With ``weak_link_tol_Hz``
@@ -433,7 +448,7 @@ def clusters(sites: Any, couplings: Any, observe: str, weak_link_tol_Hz: float |
     _checked_observe(sites, observe)
     if weak_link_tol_Hz is not None:
         weak_link_tol_Hz = _checked_real(weak_link_tol_Hz, "weak_link_tol_Hz")
-    strong, weak, mixing = _weak_split(sites, J, observe, weak_link_tol_Hz, factor_equivalence, _solver(use_numpy))
+    strong, weak, mixing = _weak_split(sites, J, observe, weak_link_tol_Hz, factor_equivalence)
     out = []
     for group in _components(len(sites), strong):
         links = [(i, j, J_ij) for (i, j), J_ij in sorted(weak.items()) if i in group or j in group]
@@ -847,7 +862,7 @@ def transitions(sites: Any, couplings: Any, observe: str, *, use_numpy: bool | N
     solve = _solver(use_numpy)
     if weak_link_tol_Hz is not None:
         weak_link_tol_Hz = _checked_real(weak_link_tol_Hz, "weak_link_tol_Hz")
-    J, weak, _ = _weak_split(sites, J, observe, weak_link_tol_Hz, factor_equivalence, solve)
+    J, weak, _ = _weak_split(sites, J, observe, weak_link_tol_Hz, factor_equivalence)
 
     plan = _plan(sites, J, observe, factor_equivalence)
     largest, total_dim, work = _size_report(plan)
