@@ -61,12 +61,15 @@ def page_script() -> str:
     """The page's ES modules (web/js/main.js and everything it imports) bundled by esbuild into one
     classic script (an IIFE: no module loading at run time, so the single file's inline script keeps
     working from file:// under its hash-only CSP). Strict mode, as in the modules, by a banner; no
-    minifying, so the shipped script stays readable."""
+    minifying, so the shipped script stays readable. The about panel's licence notices get the
+    Pyodide version and esbuild's licence text as the constants PYODIDE_VERSION and ESBUILD_LICENSE."""
     if not ESBUILD.exists():
         raise SystemExit(f"missing {ESBUILD}: run `npm ci` in {ROOT} first")
+    defines = {"PYODIDE_VERSION": pyodide_version(), "ESBUILD_LICENSE": esbuild_license()}
     run = subprocess.run(
         [str(ESBUILD), str(PAGE_ENTRY.relative_to(ROOT)), "--bundle", "--format=iife", "--charset=utf8",
-         "--banner:js=\"use strict\";", "--log-level=warning"],
+         "--banner:js=\"use strict\";", "--log-level=warning",
+         *(f"--define:{name}={json.dumps(value)}" for name, value in defines.items())],
         capture_output=True, text=True, cwd=ROOT)
     if run.returncode != 0 or run.stderr.strip():
         raise SystemExit(f"esbuild could not bundle the page's modules:\n{run.stderr[-4000:]}")
@@ -269,10 +272,19 @@ def core_size() -> int:
     return sum((PYODIDE_DIR / name).stat().st_size for name in CORE_FILES)
 
 
+def pyodide_version() -> str:
+    return str(json.loads((PYODIDE_DIR / "package.json").read_text())["version"])
+
+
+def esbuild_license() -> str:
+    """esbuild's MIT licence: the bundle holds the few helper lines esbuild writes (module namespaces)."""
+    return (ROOT / "node_modules" / "esbuild" / "LICENSE.md").read_text().strip()
+
+
 def write_notices(folders: list[Path]) -> None:
-    """THIRD-PARTY-NOTICES.txt (Pyodide's MPL-2.0, CPython's PSF licence) beside each built page."""
-    pyodide_version = json.loads((PYODIDE_DIR / "package.json").read_text())["version"]
-    text = (WEB / "THIRD-PARTY-NOTICES.txt").read_text().replace("@PYODIDE_VERSION@", pyodide_version)
+    """THIRD-PARTY-NOTICES.txt (Pyodide's MPL-2.0, CPython's PSF licence, esbuild's MIT) beside each built page."""
+    text = ((WEB / "THIRD-PARTY-NOTICES.txt").read_text().replace("@PYODIDE_VERSION@", pyodide_version())
+            .replace("@ESBUILD_LICENSE@", esbuild_license()))
     for folder in folders:
         (folder / "THIRD-PARTY-NOTICES.txt").write_text(text)
 
