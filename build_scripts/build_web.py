@@ -20,6 +20,7 @@ import gzip
 import hashlib
 import io
 import json
+import os
 import shutil
 import struct
 import subprocess
@@ -27,6 +28,7 @@ import sys
 import tempfile
 import zipfile
 import zlib
+from collections.abc import Callable
 from pathlib import Path
 
 ROOT = Path(__file__).resolve().parent.parent
@@ -69,7 +71,34 @@ def page_script() -> str:
 
 def package_zip(package_dir: Path) -> bytes:
     """Every .py file of the package (as ``nmrcalc/...``) plus the worker bridge module, with bytecode."""
-    return with_bytecode(source_zip(package_dir))
+    source = source_zip(package_dir)
+    return cached("bytecode", [source, (ROOT / "build_scripts" / "bytecode.mjs").read_bytes(), *pyodide_inputs()],
+                  lambda: with_bytecode(source))
+
+
+CACHE = ROOT / "build" / "cache"
+
+
+def pyodide_inputs() -> list[bytes]:
+    """The Pyodide files that bytecode and snapshot depend on (its Python, its wasm build)."""
+    return [(PYODIDE_DIR / name).read_bytes() for name in ("pyodide.asm.wasm", "pyodide.asm.mjs", "python_stdlib.zip")]
+
+
+def cached(kind: str, inputs: list[bytes], make: Callable[[], bytes]) -> bytes:
+    """make()'s bytes, kept in build/cache/ under the sha256 of everything they are made from, so a build
+    whose package and Pyodide are unchanged (a page-only change) skips the minute of Pyodide in Node."""
+    digest = hashlib.sha256(b"".join(hashlib.sha256(data).digest() for data in inputs)).hexdigest()[:32]
+    path = CACHE / f"{kind}-{digest}"
+    if path.exists():
+        return path.read_bytes()
+    data = make()
+    CACHE.mkdir(parents=True, exist_ok=True)
+    for old in CACHE.glob(f"{kind}-*"):
+        old.unlink()
+    with tempfile.NamedTemporaryFile(dir=CACHE, delete=False) as handle:
+        handle.write(data)
+    os.replace(handle.name, path)
+    return data
 
 
 def with_bytecode(zip_bytes: bytes) -> bytes:
@@ -102,6 +131,12 @@ SNAPSHOT = "python-snapshot.bin"  # Pyodide's memory after the package import an
 def memory_snapshot(package_bytes: bytes) -> bytes:
     """Pyodide's memory snapshot (build_scripts/snapshot.mjs, in Node) with nmrcalc imported and WARM_UP
     answered, gzip-compressed: the worker restores it instead of starting Python (web/worker.js)."""
+    script = (ROOT / "build_scripts" / "snapshot.mjs").read_bytes()
+    inputs = [package_bytes, script, json.dumps(WARM_UP).encode(), APP_ZIP.encode(), *pyodide_inputs()]
+    return cached("snapshot", inputs, lambda: make_snapshot(package_bytes))
+
+
+def make_snapshot(package_bytes: bytes) -> bytes:
     with tempfile.TemporaryDirectory() as tmp:
         package, snapshot, requests = Path(tmp) / "nmrcalc.zip", Path(tmp) / "snapshot.bin", Path(tmp) / "requests.json"
         package.write_bytes(package_bytes)

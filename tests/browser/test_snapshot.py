@@ -12,7 +12,6 @@ import gzip
 import re
 
 import pytest
-
 from conftest import BOOT_TIMEOUT_MS
 
 SNAPSHOT = "python-snapshot.bin"
