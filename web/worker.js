@@ -124,6 +124,19 @@ function snapshotSource(listed, load) {
   return { bytes };
 }
 
+// A promise's value handed over once, as a thenable that then lets go of it: Pyodide keeps
+// its options for the worker's whole life, and the snapshot's 30 MiB need not stay with them.
+function handOver(promise) {
+  let held = promise;
+  return {
+    then(resolve, reject) {
+      const value = held;
+      held = null;
+      return value.then(resolve, reject);
+    },
+  };
+}
+
 // Start Python from the snapshot ({bytes} or {missing}, from snapshotSource); if that
 // fails, say so and start it the normal way. The package zip is written and
 // put on sys.path by boot() only after a normal start: the snapshot already has both on
@@ -132,7 +145,7 @@ function snapshotSource(listed, load) {
 async function startPython(loadPyodide, options, snapshot) {
   if (snapshot.bytes) {
     try {
-      return { pyodide: await loadPyodide({ ...options, _loadSnapshot: snapshot.bytes }), start: "snapshot", note: "" };
+      return { pyodide: await loadPyodide({ ...options, _loadSnapshot: handOver(snapshot.bytes) }), start: "snapshot", note: "" };
     } catch (err) {
       const note = `the start-up snapshot could not be used (${String((err && err.message) || err).split("\n")[0]}); Python starts the normal way`;
       console.warn(`nmrcalc: ${note}`);
