@@ -107,8 +107,8 @@ class Bench:
             self._playwright.stop()
 
 
-def _time_until(bench: Bench, url: str, expression: str, timeout_s: float = 120) -> float:
-    """Milliseconds from navigation start until ``expression`` (evaluated in the page) is a number."""
+def _in_fresh_page(bench: Bench, url: str, expression: str, timeout_s: float = 120):
+    """The first value of ``expression`` (polled in url, opened in a fresh browser context) that is not null."""
     context = bench.browser().new_context()
     try:
         page = context.new_page()
@@ -116,12 +116,17 @@ def _time_until(bench: Bench, url: str, expression: str, timeout_s: float = 120)
         deadline = time.monotonic() + timeout_s
         while time.monotonic() < deadline:
             value = page.evaluate(expression)
-            if isinstance(value, (int, float)):
-                return float(value)
+            if value is not None:
+                return value
             time.sleep(0.05)
         raise TimeoutError(f"{url}: {expression} not set within {timeout_s} s")
     finally:
         context.close()
+
+
+def _time_until(bench: Bench, url: str, expression: str) -> float:
+    """Milliseconds from navigation start until ``expression`` (evaluated in the page) is a number."""
+    return float(_in_fresh_page(bench, url, f"(() => {{ const v = {expression}; return typeof v === 'number' ? v : null; }})()"))
 
 
 BOOT_RUNS = 9
@@ -143,27 +148,11 @@ def bare_and_site(dist: Path):
             yield bare_url, site_url
 
 
+# one boot of the page: navigation start to the first result shown (first) and to the worker's
+# ready message (ready), and how Python started ("snapshot" or "fresh")
 PAGE_BOOT = """(() => { const s = window.nmrcalcStatus;
   if (!s || typeof s.timings.firstResult !== "number") return null;
   return { first: s.timings.firstResult, ready: s.timings.ready, start: s.start ? s.start.how : "unknown" }; })()"""
-
-
-def _page_boot(bench: Bench, url: str, timeout_s: float = 120) -> dict:
-    """One boot of the page in a fresh context: navigation start to the first result shown (first),
-    to the worker's ready message (ready), and how Python started ("snapshot" or "fresh")."""
-    context = bench.browser().new_context()
-    try:
-        page = context.new_page()
-        page.goto(url)
-        deadline = time.monotonic() + timeout_s
-        while time.monotonic() < deadline:
-            value = page.evaluate(PAGE_BOOT)
-            if value:
-                return value
-            time.sleep(0.05)
-        raise TimeoutError(f"{url}: no first result within {timeout_s} s")
-    finally:
-        context.close()
 
 
 def _spread(values: list[float], unit: str = "s", scale: float = 1000) -> str:
@@ -183,8 +172,8 @@ def page_section(bench: Bench) -> list:
         # BOOT_RUNS boots each, since one boot varies by about a tenth on a 2-core machine
         for _ in range(max(bench.runs, BOOT_RUNS)):
             bare.append(_time_until(bench, bare_url + "index.html", "window.bareBootMs"))
-            boots["single"].append(_page_boot(bench, single.resolve().as_uri()))
-            boots["site"].append(_page_boot(bench, site_url + "index.html"))
+            boots["single"].append(_in_fresh_page(bench, single.resolve().as_uri(), PAGE_BOOT))
+            boots["site"].append(_in_fresh_page(bench, site_url + "index.html", PAGE_BOOT))
     bare_ms = statistics.median(bare)
     core = build_web.core_size()
     size = single.stat().st_size
