@@ -295,8 +295,8 @@ DECLARED = {
               example="19.3 Hz", cli="J"),
         Param("from", "nuclide", required=True, label="Measured with isotope", help="e.g. 2H", example="2H"),
         Param("to", "nuclide", required=True, label="Predict for isotope", help="e.g. 1H", example="1H"),
-        Param("partner", "nuclide", label="Coupling partner", help="the other nucleus, for the reduced coupling K",
-              example="13C"))),
+        Param("partner", "nuclide", label="Coupling partner", example="13C",
+              help="the other nucleus of the pair: gives the reduced coupling K"))),
     "energy": Op("energy", "transition energy and populations at a magnet, and a photon beside it",
                  one_of=(("spectrometer", "field"), ("wavelength", "wavenumber")), params=(
         Param("nucleus", "nuclide", label="Nucleus", help="nuclide (needs the magnet)", example="1H"),
@@ -320,7 +320,8 @@ DECLARED = {
               example="230 ppm"),
         Param("points", "integer", required=True, bounds=(2, MAX_POINTS), label="Complex points",
               help="number of complex points recorded", example=32768),
-        Param("pulse_90", "quantity", unit="time", label="90° pulse", help="90° pulse length, e.g. '10 us'",
+        Param("pulse_90", "quantity", unit="time", label="90° pulse",
+              help="its length (a bare number is in µs, or e.g. '12.5 us', '0.01 ms'): what it excites",
               example="10 µs"))),
 }
 

@@ -118,8 +118,8 @@ def op_deuteration(req: dict, warnings: list[str]) -> dict:
 DECLARED = {"deuteration": Op(
     "deuteration", "D level of one site from its isotopologue integrals (binomial test) or its residual 1H signal",
     limits=f"{MAX_POSITIONS} positions", params=(
-        Param("positions", "integer", required=True, bounds=(1, MAX_POSITIONS), label="H/D positions", example=3,
-              help="the H/D positions of the site (3 for a methyl)"),
+        Param("positions", "integer", required=True, bounds=(1, MAX_POSITIONS), label="H/D positions at the site",
+              example=3, help="the H/D positions of the site (3 for a methyl)"),
         Param("integrals", "quantities", unit="percent", max_items=MAX_POSITIONS + 1, label="Isotopologue integrals",
               example=[1, 6, 27, 66], help="integrals of the isotopologue signals, index = number of D atoms"),
         Param("integral_error", "number", bounds=(0, None), label="Error of each integral", example=0.5,

@@ -165,6 +165,7 @@ function onWorkerMessage(event) {
     if (timings.ready === null) timings.ready = performance.now();
     window.nmrcalcStatus.state = "ready";
     window.nmrcalcStatus.python = message.python;
+    window.nmrcalcStatus.start = { how: message.start, note: message.note };  // "snapshot" or "fresh" (web/worker.js)
     readyText = restarts > 0
       ? `Python stopped unexpectedly and was restarted (${restarts}×); your inputs and results are kept. Ready again.`
       : `Ready — Python in this browser (${(message.ms / 1000).toFixed(1)} s)`;
@@ -284,13 +285,16 @@ function param(path) {
   }
   return found;
 }
-/** A field's label (with the unit) and default from its declaration, and its hint with hint: true (field.param, e.g. 'frequency.min_MHz'); the field's own win. */
+/** A field named by its declaration (field.param, e.g. 'frequency.min_MHz'): its label with the unit
+ * (", optional" added with optional: true), its default, the request key whose errors it shows, and
+ * its hint with hint: true; the field's own entries win. */
 function declaredField(field) {
   const decl = field.param ? param(field.param) : null;
   if (!decl) return field;
-  const unit = decl.unit && decl.unit !== "%" ? ` (${decl.unit})` : decl.unit === "%" ? " (%)" : "";
+  const notes = [decl.unit, field.optional ? "optional" : null].filter(Boolean).join(", ");
   const value = decl.default === null || decl.default === undefined || typeof decl.default === "object" ? undefined : decl.default;
-  return { label: `${decl.label}${unit}`, value, ...field, hint: field.hint === true ? decl.help : field.hint };
+  const keys = [field.param.split(".").slice(1).join(".")];
+  return { label: notes ? `${decl.label} (${notes})` : decl.label, value, keys, ...field, hint: field.hint === true ? decl.help : field.hint };
 }
 
 // ---------- forms ----------

@@ -24,9 +24,9 @@ export default {
       intro: "The frequency of its 0 ppm reference (from Ξ) at this magnet — where a spectrometer is set — and the Larmor frequency of the bare nucleus.",
       shared: [magnet],
       fields: [
-        { id: "nucleus", label: "Nucleus", value: "13C", list: "nuclide-list", placeholder: "e.g. 13C, 15N, 31P" },
+        { id: "nucleus", param: "frequency.nucleus", value: "13C", list: "nuclide-list", placeholder: "e.g. 13C, 15N, 31P" },
         {
-          id: "scale", label: "Reference scale", kind: "select",
+          id: "scale", param: "frequency.scale", kind: "select",
           options: [["unified", "Unified (TMS-based)"], ["biomolecular", "Biomolecular (DSS)"]],
         },
       ],
@@ -50,10 +50,10 @@ export default {
       intro: "Convert a chemical shift to an offset from 0 ppm, or back. Give a carrier to get the offset from it too.",
       shared: [magnet],
       fields: [
-        { id: "nucleus", label: "Nucleus", value: "1H", list: "nuclide-list" },
+        { id: "nucleus", param: "ppm_hz.nucleus", value: "1H", list: "nuclide-list" },
         { id: "direction", label: "Convert", kind: "select", options: [["ppm", "ppm → Hz"], ["Hz", "Hz → ppm"]] },
         { id: "amount", label: "Value", value: "7.26", keys: ["ppm", "Hz"] },
-        { id: "carrier", label: "Carrier (ppm, optional)", value: "", keys: ["carrier_ppm"] },
+        { id: "carrier", param: "ppm_hz.carrier_ppm", optional: true, value: "" },
       ],
       request(v) {
         const req = { op: "ppm_hz", nucleus: v.nucleus.value, ...NMR.magnetRequest(v.magnet) };
@@ -79,11 +79,11 @@ export default {
       intro: "From the shift range to record: carrier, spectral width, dwell and acquisition time, digital resolution; with a 90° pulse length, the nutation frequency and the range that pulse excites well.",
       shared: [magnet],
       fields: [
-        { id: "nucleus", label: "Nucleus", value: "13C", list: "nuclide-list" },
-        { id: "low", label: "From (ppm)", value: "-10", keys: ["low_ppm"] },
-        { id: "high", label: "To (ppm)", value: "230", keys: ["high_ppm"] },
-        { id: "points", param: "acquisition_window.points", value: "32768", inputmode: "numeric", keys: ["points"] },
-        { id: "pulse", label: "90° pulse (µs, optional)", value: "10", keys: ["pulse_90"], hint: "A bare number is in µs; or type e.g. 12.5 us, 0.01 ms." },
+        { id: "nucleus", param: "acquisition_window.nucleus", value: "13C", list: "nuclide-list" },
+        { id: "low", param: "acquisition_window.low_ppm", value: "-10" },
+        { id: "high", param: "acquisition_window.high_ppm", value: "230" },
+        { id: "points", param: "acquisition_window.points", value: "32768", inputmode: "numeric" },
+        { id: "pulse", param: "acquisition_window.pulse_90", optional: true, value: "10", hint: true },
       ],
       request(v) {
         const req = { op: "acquisition_window", nucleus: v.nucleus.value, low_ppm: v.low.value, high_ppm: v.high.value, ...NMR.magnetRequest(v.magnet) };
@@ -121,10 +121,10 @@ export default {
       shared: [magnet],
       submitLabel: "Show table",
       fields: [
-        { id: "spinhalf", label: "Spin ½ only", kind: "checkbox", value: false, keys: ["spin_half_only"] },
-        { id: "minab", param: "frequency.min_abundance_percent", value: "", keys: ["min_abundance_percent"] },
-        { id: "minmhz", param: "frequency.min_MHz", value: "", keys: ["min_MHz"] },
-        { id: "maxmhz", param: "frequency.max_MHz", value: "", keys: ["max_MHz"] },
+        { id: "spinhalf", param: "frequency.spin_half_only", kind: "checkbox" },
+        { id: "minab", param: "frequency.min_abundance_percent", value: "" },
+        { id: "minmhz", param: "frequency.min_MHz", value: "" },
+        { id: "maxmhz", param: "frequency.max_MHz", value: "" },
       ],
       request(v) {
         const req = { op: "frequency", spin_half_only: v.spinhalf.value, ...NMR.magnetRequest(v.magnet) };

@@ -15,7 +15,7 @@ export default {
         { id: "J", param: "scale_coupling.J", value: "32" },
         { id: "from", param: "scale_coupling.from", value: "2H", list: "nuclide-list" },
         { id: "to", param: "scale_coupling.to", value: "1H", list: "nuclide-list" },
-        { id: "partner", param: "scale_coupling.partner", label: "Coupling partner (optional, for K)", value: "13C", list: "nuclide-list" },
+        { id: "partner", param: "scale_coupling.partner", optional: true, value: "13C", list: "nuclide-list", hint: true },
       ],
       request(v) {
         const req = { op: "scale_coupling", J: v.J.value, from: v.from.value, to: v.to.value };

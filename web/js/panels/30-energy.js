@@ -16,7 +16,7 @@ export default {
       title: "Spin energy gap and populations",
       intro: "The energy of one NMR transition at this magnet and temperature, next to an optical photon if you give one.",
       fields: [
-        { id: "nucleus", label: "Nucleus", value: "1H", list: "nuclide-list" },
+        { id: "nucleus", param: "energy.nucleus", value: "1H", list: "nuclide-list" },
         { id: "magnet", label: "Magnet", value: "500", units: NMR.MAGNET_UNITS, keys: ["spectrometer", "field"] },
         { id: "temperature", param: "energy.temperature", value: "298" },
         {
@@ -61,9 +61,9 @@ export default {
       title: "Receptivity",
       intro: "Signal per molecule of one nuclide relative to another at natural abundance (or at an enrichment you give), and how much longer averaging takes for the same signal-to-noise.",
       fields: [
-        { id: "nucleus", label: "Nucleus", value: "15N", list: "nuclide-list" },
-        { id: "relative_to", label: "Relative to", value: "13C", list: "nuclide-list" },
-        { id: "enrichment", param: "sensitivity.enrichment_percent", label: "Enrichment (%, optional)", value: "", keys: ["enrichment_percent"] },
+        { id: "nucleus", param: "sensitivity.nucleus", value: "15N", list: "nuclide-list" },
+        { id: "relative_to", param: "sensitivity.relative_to", list: "nuclide-list" },
+        { id: "enrichment", param: "sensitivity.enrichment_percent", optional: true, value: "" },
       ],
       request(v) {
         const req = { op: "sensitivity", nucleus: v.nucleus.value, relative_to: v.relative_to.value };

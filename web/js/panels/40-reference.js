@@ -47,7 +47,7 @@ export default {
       title: "Find a nuclide",
       intro: "Search by nuclide (13C, N-15, ¹⁵N, D), element symbol or name, or mass number.",
       submitLabel: "Search",
-      fields: [{ id: "search", label: "Search", value: "", placeholder: "e.g. nitrogen, 19F, Sn" }],
+      fields: [{ id: "search", param: "nuclides.search", value: "", placeholder: "e.g. nitrogen, 19F, Sn" }],
       request: (v) => ({ op: "nuclides", search: v.search.value }),
       render(r, out) {
         const list = el("ul", { class: "pick-list" }, ...r.nuclides.map((n) => el("li", {},

@@ -25,8 +25,8 @@ export default {
       intro: "Residual solvent and water signals of common deuterated solvents. Type a shift (is the peak at 2.50 ppm my solvent?) or a name; leave empty for the whole table.",
       submitLabel: "Search",
       fields: [
-        { id: "query", label: "Shift (ppm) or solvent name", value: "", placeholder: "e.g. 2.50 or DMSO", keys: ["query", "tolerance"] },
-        { id: "nucleus", label: "Nucleus", kind: "select", options: [["", "1H and 13C"], ["1H", "1H"], ["13C", "13C"]], keys: ["nucleus"] },
+        { id: "query", param: "solvents.query", value: "", placeholder: "e.g. 2.50 or DMSO", keys: ["query", "tolerance"] },
+        { id: "nucleus", param: "solvents.nucleus", kind: "select", options: [["", "1H and 13C"], ["1H", "1H"], ["13C", "13C"]] },
       ],
       request: (v) => {
         const req = { op: "solvents" };
@@ -64,10 +64,10 @@ export default {
       intro: "Route 1: the integrals of the site's isotopologue signals (k = number of D), compared with a random (binomial) distribution. Route 2: the residual 1H signal of the site against an internal standard. Fill either or both.",
       submitLabel: "Calculate",
       fields: [
-        { id: "positions", label: "H/D positions at the site", value: "3", inputmode: "numeric", keys: ["positions"] },
+        { id: "positions", param: "deuteration.positions", value: "3", inputmode: "numeric" },
         { id: "integrals", label: "Isotopologue integrals, k = 0, 1, 2 …", value: "0.2, 3.8, 27.9, 68.1", placeholder: "comma separated", wide: true, keys: ["integrals"] },
-        { id: "observed", label: "Integrals measured on", kind: "select", options: [["once_per_molecule", "once per molecule (13C)"], ["site_1H", "the site's own 1H"]], keys: ["observed_on"] },
-        { id: "error", label: "Error of each integral", value: "", placeholder: "1 % of the largest", inputmode: "decimal", keys: ["integral_error"] },
+        { id: "observed", param: "deuteration.observed_on", kind: "select", options: [["once_per_molecule", "once per molecule (13C)"], ["site_1H", "the site's own 1H"]] },
+        { id: "error", param: "deuteration.integral_error", value: "", placeholder: "1 % of the largest", inputmode: "decimal" },
         { id: "residual", label: "Residual 1H integral of the site", value: "", inputmode: "decimal", keys: ["residual.integral", "residual"] },
         { id: "standard", label: "Standard's integral", value: "1", inputmode: "decimal", keys: ["residual.standard_integral"] },
         { id: "nuclei", label: "Nuclei behind the standard's signal", value: "3", inputmode: "numeric", keys: ["residual.standard_nuclei"] },

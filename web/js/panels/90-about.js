@@ -27,6 +27,17 @@ export default {
           "Receptivities compare ideal signals; relaxation, line width, NOE and probe tuning change what you measure.",
         ),
         el("p", { class: "hint" }, "Inputs and pins are kept in this browser's local storage so they survive a reload. Opened as a file (file://), the page shares that storage with every other local file this browser opens: another file can read or change it. Export the bench notebook as JSON: the export is your backup."),
-        el("p", { class: "hint", id: "offline-status", "aria-live": "polite" }, location.protocol.startsWith("http") ? "" : "This single file works offline as it is."))));
+        el("p", { class: "hint", id: "offline-status", "aria-live": "polite" }, location.protocol.startsWith("http") ? "" : "This single file works offline as it is.")),
+      // PYODIDE_VERSION and ESBUILD_LICENSE are constants the build writes in (build_scripts/build_web.py page_script)
+      el("section", { class: "card", id: "about-licences", "aria-labelledby": "licences-title" },
+        el("h2", { id: "licences-title" }, "Licences of the software in this page"),
+        list(
+          "nmrcalc: MIT License.",
+          `Pyodide ${PYODIDE_VERSION} (the Python runtime this page runs, embedded unmodified): Mozilla Public License 2.0 (MPL-2.0). Its source code is available from the Pyodide project and in the npm package “pyodide” at this version; the licence text is at https://mozilla.org/MPL/2.0/.`,
+          "The CPython interpreter and standard library, as compiled by Pyodide: Python Software Foundation License Version 2 (PSF-2.0), with the earlier licences CPython carries (see the LICENSE file of the CPython source of the same version). Copyright (c) 2001 Python Software Foundation; All Rights Reserved.",
+          "esbuild bundles this page's scripts when the page is built; of its code, only the few helper lines it writes for module namespaces are in the page. MIT License:",
+        ),
+        el("pre", { class: "licence-text", tabindex: "0" }, ESBUILD_LICENSE),
+        el("p", { class: "hint" }, "The same notices are in THIRD-PARTY-NOTICES.txt beside the built page."))));
   },
 };
