@@ -751,7 +751,7 @@ const NMR = (() => {
 
   return {
     api, ready, el, fmt, fixed, calculation, nuclideLabel, numberNode, form, sharedField, resultList, sortableTable,
-    registerPanel, whenShown, start, timings, magnetRequest, MAGNET_UNITS, remember, recall, cancel, param, storageTrouble,
+    registerPanel, whenShown, start, timings, magnetRequest, MAGNET_UNITS, remember, recall, cancel, param, declaredField, storageTrouble,
     forms, selectTab: (id) => selectTab(id, false), panelIds: () => panels.map((p) => p.id), panelOf, notice,
     // test hook: the live worker, so a browser test can send it a message it fails on
     debugWorker: () => worker,
