@@ -94,8 +94,12 @@ def test_find_pick_errors_and_hand_over(dist, open_page):
     bad = handle({**{k: v for k, v in BASE.items() if k != "peaklist"}, "partners": ["2H"],
                   "lines": [{"position": "2000", "intensity": "x"}]})["error"]
     assert bad["field"] == "lines.0.intensity"
-    # beside its own cell the page leaves out the message's leading "lines.N.key:" path
-    expect(page.locator("#ident-l1-intensity-error")).to_have_text(re.sub(r"^lines\.\d+\.\w+:\s*", "", bad["message"]))
+    # beside its own cell the message's leading "lines.0.intensity" path names the row as shown (line 2)
+    assert bad["message"].startswith("lines.0.intensity: ")
+    expect(page.locator("#ident-l1-intensity-error")).to_have_text(re.sub(r"^lines\.0\.intensity", "Line 2, intensity", bad["message"]))
+    expect(page.locator("#ident-l1-intensity")).to_have_attribute("aria-invalid", "true")
+    assert page.get_attribute("#ident-l1-position", "inputmode") is None  # positions take typed units
+    assert page.get_attribute("#ident-tolerance", "inputmode") is None
     expect(page.locator("#ident-l0-position-error")).to_be_hidden()
 
     # back to the pasted list; the chosen candidate opens in the multiplet builder
