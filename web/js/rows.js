@@ -5,10 +5,13 @@
 // belongs to, the submit / busy / cancel bar, and a line table (high to low ppm,
 // Hz beside) with Copy and a CSV export that opens with the header block of the
 // inputs. No physics here: every number shown comes from an API result.
-"use strict";
+// An ES module (default export NMRRows); NMR is read only when a function runs.
+import * as NMR from "./nmr.js";
+import NMRPlot from "./plot.js";
+import NMRNotebook from "./notebook.js";
 
 const NMRRows = (() => {
-  const { el } = NMR;
+  const el = (...args) => NMR.el(...args);
 
   /** A wide card: its title, intro and a bar of example buttons; pick(example) loads one
    * (undoably, under NMR.withUndo(undo, …), when `undo` names the panel's form). */
@@ -180,3 +183,5 @@ const NMRRows = (() => {
 
   return { card, actionBar, kit, lineTable, declaredDefault };
 })();
+
+export default NMRRows;

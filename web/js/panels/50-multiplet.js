@@ -2,9 +2,11 @@
 // (nuclides, elements with their isotope mixture, or bare spins). Everything
 // shown (label, ratio, lines, tree, spectrum, isotopologue traces) comes from
 // the API op "multiplet"; this file only collects inputs and draws results.
-"use strict";
+import * as NMR from "../nmr.js";
+import NMRPlot from "../plot.js";
+import NMRRows from "../rows.js";
 
-NMR.registerPanel({
+export default {
   id: "multiplet",
   title: "Multiplet builder",
   build(container) {
@@ -394,4 +396,4 @@ NMR.registerPanel({
     drawRows();
     NMR.whenShown(card, run);
   },
-});
+};

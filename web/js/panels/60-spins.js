@@ -4,9 +4,11 @@
 // and the same system at several magnets on one ppm axis. Spins carry labels as
 // chemists write them (A, B, X or "H-3"). No physics here: spectra, lines,
 // transitions and checks all come from the API result.
-"use strict";
+import * as NMR from "../nmr.js";
+import NMRPlot from "../plot.js";
+import NMRRows from "../rows.js";
 
-NMR.registerPanel({
+export default {
   id: "spins",
   title: "Spin systems",
   build(container) {
@@ -434,4 +436,4 @@ NMR.registerPanel({
     drawRows();
     NMR.whenShown(card, run);
   },
-});
+};
