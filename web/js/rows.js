@@ -145,6 +145,28 @@ const NMRRows = (() => {
     return { input, select, remove, errors };
   }
 
+  /**
+   * A panel's error display: a fixed field owns its request keys (field.ownsKey), a row target is
+   * found by locate(field) (errors.find…), anything else is the form-level error.
+   * errorReport(errors, fields, formError, locate) -> {clear(), show(field, message)}
+   */
+  function errorReport(errors, fields, formError, locate) {
+    return {
+      clear() {
+        for (const f of fields) f.setError("");
+        errors.clear();
+        formError.textContent = "";
+      },
+      show(field, message) {
+        const owner = field ? fields.find((f) => f.ownsKey(field)) : null;
+        if (owner) return owner.setError(message);
+        const target = locate(field || "");
+        if (target) errors.show(target, field, message);
+        else formError.textContent = message;
+      },
+    };
+  }
+
   const placesOf = (value, places) => (typeof value === "number" ? NMR.fixed(value, places) : "—");
   /**
    * A line table with Copy (tab-separated) and Export CSV (NMRNotebook.linesCSV: the commented
@@ -181,7 +203,7 @@ const NMRRows = (() => {
     ];
   }
 
-  return { card, actionBar, kit, lineTable, declaredDefault };
+  return { card, actionBar, kit, errorReport, lineTable, declaredDefault };
 })();
 
 export default NMRRows;

@@ -248,24 +248,12 @@ export default {
       return req;
     }
 
-    function clearErrors() {
-      for (const f of Object.values(fixed)) f.setError("");
-      errors.clear();
-      formError.textContent = "";
-    }
-    function showError(field, message) {
-      const owner = field ? Object.values(fixed).find((f) => f.ownsKey(field)) : null;
-      if (owner) return owner.setError(message);
+    const report = NMRRows.errorReport(errors, Object.values(fixed), formError, (field) => {
       // request-level abundance is a map by isotope: "abundance.2H" belongs to that isotope's row
-      const abundance = /^abundance\.(.+)$/.exec(field || "");
+      const abundance = /^abundance\.(.+)$/.exec(field);
       const row = abundance ? rows.abundance.findIndex((a) => a.isotope.trim() === abundance[1]) : -1;
-      const target = (row >= 0 ? errors.find(`abundance.${row}.percent`) : null) || errors.find(field, [".partner", ".spin"]);
-      if (!target) {
-        formError.textContent = message;
-        return;
-      }
-      errors.show(target, field, message);
-    }
+      return (row >= 0 ? errors.find(`abundance.${row}.percent`) : null) || errors.find(field, [".partner", ".spin"]);
+    });
 
     // Minor isotopologues around a main species without a magnetic partner are
     // called satellites (e.g. 195Pt or 117/119Sn satellites); otherwise just minor.
@@ -379,10 +367,10 @@ export default {
         return { sent, response: await NMR.api(sent) };
       },
       show: ({ sent, response }) => {
-        clearErrors();
+        report.clear();
         card.classList.toggle("is-error", !response.ok);
         if (!response.ok) {
-          showError(response.error.field, response.error.message);
+          report.show(response.error.field, response.error.message);
           pin.update(null);
           out.classList.add("stale");
           return;

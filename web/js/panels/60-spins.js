@@ -269,22 +269,8 @@ export default {
       return req;
     }
 
-    function clearErrors() {
-      for (const f of Object.values(fixed)) f.setError("");
-      errors.clear();
-      formError.textContent = "";
-      stackError.textContent = "";
-    }
-    function showError(field, message) {
-      const owner = field ? Object.values(fixed).find((f) => f.ownsKey(field)) : null;
-      if (owner) return owner.setError(message);
-      const target = errors.find(field, [".J", ".nucleus"]) || (field && field.startsWith("couplings") ? errors.find("couplings") : null);
-      if (!target) {
-        formError.textContent = message;
-        return;
-      }
-      errors.show(target, field, message);
-    }
+    const report = NMRRows.errorReport(errors, Object.values(fixed), formError,
+      (field) => errors.find(field, [".J", ".nucleus"]) || (field.startsWith("couplings") ? errors.find("couplings") : null));
 
     // ---------- expanded views: one window per multiplet ----------
     // A window spans the transitions that mostly belong to one spin (those of at least 1 % of its
@@ -296,11 +282,11 @@ export default {
       const y = r.spectrum.y;
       const bySpin = new Map();
       for (const t of r.transitions) {
-        if (!bySpin.has(t.label)) bySpin.set(t.label, []);
-        bySpin.get(t.label).push(t);
+        if (!bySpin.has(t.spin)) bySpin.set(t.spin, []);
+        bySpin.get(t.spin).push(t);
       }
       const windows = [];
-      for (const [label, lines] of bySpin) {
+      for (const lines of bySpin.values()) {
         const top = Math.max(...lines.map((t) => t.intensity));
         const kept = lines.filter((t) => t.intensity >= 0.01 * top);
         let lo = Math.min(...kept.map((t) => t.ppm));
@@ -316,7 +302,7 @@ export default {
         lo = x[a];
         hi = x[b];
         const pad = 0.1 * (hi - lo);
-        windows.push({ lo: lo - pad, hi: hi + pad, labels: [label] });
+        windows.push({ lo: lo - pad, hi: hi + pad, spins: [lines[0].spin] });
       }
       windows.sort((p, q) => p.lo - q.lo);
       const merged = [];
@@ -324,11 +310,14 @@ export default {
         const last = merged[merged.length - 1];
         if (last && w.lo <= last.hi) {
           last.hi = Math.max(last.hi, w.hi);
-          last.labels.push(...w.labels);
+          last.spins.push(...w.spins);
         } else {
-          merged.push({ ...w, labels: [...w.labels] });
+          merged.push({ ...w, spins: [...w.spins] });
         }
       }
+      // labels in input order, so a merged window reads "A, A′", not "A′, A"
+      const labelOf = new Map(r.transitions.map((t) => [t.spin, t.label]));
+      for (const w of merged) w.labels = w.spins.sort((p, q) => p - q).map((k) => labelOf.get(k));
       const full = x[x.length - 1] - x[0];
       // one window showing most of the spectrum is the spectrum itself
       return merged.length === 1 && merged[0].hi - merged[0].lo > 0.6 * full ? [] : merged.reverse();
@@ -411,10 +400,11 @@ export default {
         return { overlay, single, one, many };
       },
       show: ({ overlay, single, one, many }) => {
-        clearErrors();
+        report.clear();
+        stackError.textContent = "";
         card.classList.toggle("is-error", !one.ok);
         if (!one.ok) {
-          showError(one.error.field, one.error.message);
+          report.show(one.error.field, one.error.message);
           pin.update(null);
           out.classList.add("stale");
           return;

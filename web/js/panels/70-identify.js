@@ -246,28 +246,13 @@ export default {
       return req;
     }
 
-    function clearErrors() {
-      for (const f of Object.values(fixed)) f.setError("");
-      errors.clear();
-      formError.textContent = "";
-    }
-    function showError(field, message) {
-      const key = field || "";
-      const owner = Object.values(fixed).find((f) => f.ownsKey(key));
-      if (owner) return owner.setError(message);
-      let target = null;
-      if (key === "peaklist" || (key === "lines" && mode === "paste")) target = errors.find("peaklist");
-      else if (key.startsWith("lines")) {
-        // a request index of "lines" is the sentRows[index]-th typed row (empty rows are not sent)
-        const [, k, ...rest] = key.split(".");
-        target = errors.find(k === undefined ? "lines" : ["lines", sentRows[Number(k)], ...rest].join("."), [".position"]);
-      }
-      if (!target) {
-        formError.textContent = message;
-        return;
-      }
-      errors.show(target, field, message);
-    }
+    const report = NMRRows.errorReport(errors, Object.values(fixed), formError, (key) => {
+      if (key === "peaklist" || (key === "lines" && mode === "paste")) return errors.find("peaklist");
+      if (!key.startsWith("lines")) return null;
+      // a request index of "lines" is the sentRows[index]-th typed row (empty rows are not sent)
+      const [, k, ...rest] = key.split(".");
+      return errors.find(k === undefined ? "lines" : ["lines", sentRows[Number(k)], ...rest].join("."), [".position"]);
+    });
 
     function groupText(g, spins) {
       const J = `J ${short(g.J_Hz, 5)} Hz`;
@@ -374,10 +359,10 @@ export default {
         return { sent, response: await NMR.api(sent) };
       },
       show: async ({ sent, response }) => {
-        clearErrors();
+        report.clear();
         card.classList.toggle("is-error", !response.ok);
         if (!response.ok) {
-          showError(response.error.field, response.error.message);
+          report.show(response.error.field, response.error.message);
           out.classList.add("stale");
           pin.update(null);
           return;
