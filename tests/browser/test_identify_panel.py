@@ -9,8 +9,10 @@ the search is tested in tests/test_identify*.py)."""
 
 from __future__ import annotations
 
+import csv
 import re
 
+import pytest
 from playwright.sync_api import expect
 
 from nmrcalc.api import handle
@@ -52,6 +54,21 @@ def test_find_pick_errors_and_hand_over(dist, open_page):
     expect(rows).to_have_count(len(want["candidates"]))
     expect(rows.first).to_contain_text("3 × spin (I=1), J 19.5 Hz")
     expect(page.locator("#ident-notes li")).to_have_count(len(want["notes"]))
+
+    # the chosen candidate's lines: a table high to low ppm with Hz beside, and a CSV with the header block
+    lines = sorted(want["candidates"][0]["lines"], key=lambda line: -line["ppm"])
+    expect(page.locator("#ident-lines tbody tr")).to_have_count(len(lines))
+    expect(page.locator("#ident-lines tbody tr").first).to_contain_text(f"{lines[0]['Hz']:.3f}")
+    with page.expect_download() as info:
+        page.click("#ident-lines-csv")
+    text = open(info.value.path(), encoding="utf-8").read()
+    head = [line for line in text.splitlines() if line.startswith("# ")]
+    assert head[0].startswith("# nmrcalc ") and "# calculation: identify" in head
+    assert any(line.startswith("# Observed nucleus: 13C") for line in head), head
+    table = list(csv.reader(line for line in text.splitlines() if not line.startswith("# ")))
+    assert table[0] == ["ppm", "Hz", "intensity"] and len(table) == 1 + len(lines)
+    for row, line in zip(table[1:], lines):
+        assert [float(v) for v in row] == pytest.approx([line["ppm"], line["Hz"], line["intensity"]], rel=1e-6, abs=1e-9)
 
     # keyboard: arrow down moves the choice and the plot follows
     page.focus("#ident-pick-0")

@@ -189,7 +189,8 @@ export default {
     openBox.append(openButton, openNote);
     const notes = el("ul", { class: "notes", id: "ident-notes" });
     const warn = el("ul", { class: "warnings", id: "ident-warnings" });
-    out.append(headline, centre, warn, candidatesBox, plotTitle, plotBox, stackLabel, openBox, el("h3", { class: "sub-title" }, "Notes"), notes);
+    const linesBox = el("div", { id: "ident-lines" });
+    out.append(headline, centre, warn, candidatesBox, plotTitle, plotBox, stackLabel, openBox, linesBox, el("h3", { class: "sub-title" }, "Notes"), notes);
     card.append(out);
     const pin = NMR.pinSource({
       id: "ident", node: card, fields: Object.values(fixed), run: () => run(),
@@ -262,6 +263,7 @@ export default {
     }
 
     let result = null;
+    let sentRequest = null;
     let chosen = 0;
     let pickButtons = [];
     function drawPlot() {
@@ -286,6 +288,11 @@ export default {
       });
       if (focus) pickButtons[i].focus();
       drawPlot();
+      linesBox.replaceChildren(...NMRRows.lineTable({
+        id: "ident-lines", title: `Lines of candidate ${i + 1}`, request: sentRequest, lines: result.candidates[i].lines,
+        fileName: "pattern-finder-lines", hzLabel: "Position (Hz)", note: "position on the measured list's scale",
+        caption: `Predicted lines of candidate ${i + 1} (${result.candidates[i].label}), high to low ppm`,
+      }));
     }
 
     async function render(r, warnings) {
@@ -369,6 +376,7 @@ export default {
         }
         out.classList.remove("stale");
         out.hidden = false;
+        sentRequest = sent;
         await render(response.result, response.warnings || []);
         pin.update({ request: sent, result: response.result });
       },
