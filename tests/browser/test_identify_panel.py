@@ -9,8 +9,10 @@ the search is tested in tests/test_identify*.py)."""
 
 from __future__ import annotations
 
+import csv
 import re
 
+import pytest
 from playwright.sync_api import expect
 
 from nmrcalc.api import handle
@@ -53,6 +55,21 @@ def test_find_pick_errors_and_hand_over(dist, open_page):
     expect(rows.first).to_contain_text("3 × spin (I=1), J 19.5 Hz")
     expect(page.locator("#ident-notes li")).to_have_count(len(want["notes"]))
 
+    # the chosen candidate's lines: a table high to low ppm with Hz beside, and a CSV with the header block
+    lines = sorted(want["candidates"][0]["lines"], key=lambda line: -line["ppm"])
+    expect(page.locator("#ident-lines tbody tr")).to_have_count(len(lines))
+    expect(page.locator("#ident-lines tbody tr").first).to_contain_text(f"{lines[0]['Hz']:.3f}")
+    with page.expect_download() as info:
+        page.click("#ident-lines-csv")
+    text = open(info.value.path(), encoding="utf-8").read()
+    head = [line for line in text.splitlines() if line.startswith("# ")]
+    assert head[0].startswith("# nmrcalc ") and "# calculation: identify" in head
+    assert any(line.startswith("# Observed nucleus: 13C") for line in head), head
+    table = list(csv.reader(line for line in text.splitlines() if not line.startswith("# ")))
+    assert table[0] == ["ppm", "Hz", "intensity"] and len(table) == 1 + len(lines)
+    for row, line in zip(table[1:], lines):
+        assert [float(v) for v in row] == pytest.approx([line["ppm"], line["Hz"], line["intensity"]], rel=1e-6, abs=1e-9)
+
     # keyboard: arrow down moves the choice and the plot follows
     page.focus("#ident-pick-0")
     page.keyboard.press("ArrowDown")
@@ -94,8 +111,12 @@ def test_find_pick_errors_and_hand_over(dist, open_page):
     bad = handle({**{k: v for k, v in BASE.items() if k != "peaklist"}, "partners": ["2H"],
                   "lines": [{"position": "2000", "intensity": "x"}]})["error"]
     assert bad["field"] == "lines.0.intensity"
-    # beside its own cell the page leaves out the message's leading "lines.N.key:" path
-    expect(page.locator("#ident-l1-intensity-error")).to_have_text(re.sub(r"^lines\.\d+\.\w+:\s*", "", bad["message"]))
+    # beside its own cell the message's leading "lines.0.intensity" path names the row as shown (line 2)
+    assert bad["message"].startswith("lines.0.intensity: ")
+    expect(page.locator("#ident-l1-intensity-error")).to_have_text(re.sub(r"^lines\.0\.intensity", "Line 2, intensity", bad["message"]))
+    expect(page.locator("#ident-l1-intensity")).to_have_attribute("aria-invalid", "true")
+    assert page.get_attribute("#ident-l1-position", "inputmode") is None  # positions take typed units
+    assert page.get_attribute("#ident-tolerance", "inputmode") is None
     expect(page.locator("#ident-l0-position-error")).to_be_hidden()
 
     # back to the pasted list; the chosen candidate opens in the multiplet builder

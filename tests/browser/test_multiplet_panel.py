@@ -49,7 +49,9 @@ def test_build_export_zoom_and_errors(dist, open_page):
     expect(page.locator("#mult-ratio")).to_contain_text(want["ratio"])
     rows = page.locator("#mult-lines tbody tr")
     expect(rows).to_have_count(len(want["lines"]))
-    expect(rows.first).to_contain_text(f"{want['lines'][0]['ppm']:.5f}")
+    top = max(want["lines"], key=lambda line: line["ppm"])  # the table runs high to low ppm, Hz beside
+    expect(rows.first).to_contain_text(f"{top['ppm']:.5f}")
+    expect(rows.first).to_contain_text(f"{top['Hz']:.3f}")
     expect(page.locator("#mult-tree svg line").first).to_be_attached()
 
     with page.expect_download() as info:
@@ -79,8 +81,9 @@ def test_build_export_zoom_and_errors(dist, open_page):
     page.fill("#mult-g0-J", "abc")
     page.click("#form-mult button[type=submit]")
     bad = handle({**REQUEST, "groups": [{"partner": "2H", "count": 3, "J": "abc"}]})["error"]  # the text as typed
-    assert bad["field"] == "groups.0.J"
-    expect(page.locator("#mult-g0-J-error")).to_have_text(bad["message"])
+    assert bad["field"] == "groups.0.J" and bad["message"].startswith("groups.0.J: ")
+    # beside the field the request path becomes the row's name
+    expect(page.locator("#mult-g0-J-error")).to_have_text(bad["message"].replace("groups.0.J", "Group 1, J"))
     expect(page.locator("#mult-g0-J")).to_have_attribute("aria-invalid", "true")
 
     # the partner groups and the fixed inputs survive a reload
@@ -92,4 +95,40 @@ def test_build_export_zoom_and_errors(dist, open_page):
     expect(page.locator("#mult-center")).to_have_value("77")
 
     assert set(rec.requests) == {url}, f"unexpected requests: {sorted(set(rec.requests) - {url})}"
+    assert not rec.errors
+
+
+def test_rows_helper_in_the_multiplet_builder(dist, open_page):
+    """Rows drawn by the shared helper: declared labels, add and remove, errors by row name, no decimal keypad on typed units."""
+    url, rec = _open_single(dist, open_page)
+    page = rec.page
+    page.click("#tab-multiplet")
+    page.get_by_role("button", name="Made-up platinum hydride complex").click()
+    expect(page.locator("#mult-g1-partner")).to_have_value("31P")
+    expect(page.locator("label[for=mult-g0-J]")).to_have_text("J (Hz)")  # from the op's declaration
+    expect(page.locator("label[for=mult-g0-quad]")).to_have_text("Quadrupolar splitting")
+    for field in ("mult-magnet", "mult-center", "mult-linewidth", "mult-g0-J", "mult-g0-t1", "mult-g0-spct", "mult-g0-shppm"):
+        assert page.get_attribute(f"#{field}", "inputmode") is None, field  # "19.3 Hz" needs letters
+    page.click("#mult-add-group")
+    expect(page.locator("#mult-groups fieldset")).to_have_count(3)
+    page.fill("#mult-g2-count", "0")
+    page.click("#form-mult button[type=submit]")
+    expect(page.locator("#mult-g2-count-error")).to_contain_text("Group 3, How many:")
+    page.get_by_role("button", name="Remove group 3").click()
+    expect(page.locator("#mult-groups fieldset")).to_have_count(2)
+    # a T1 typed with its own unit is sent as typed, a bare one in the field's ms
+    page.get_by_role("button", name="Made-up ammonium salt: 14N splitting partly collapsed").click()
+    page.fill("#mult-g0-t1", "0.5 s")
+    page.click("#form-mult button[type=submit]")
+    expect(page.locator("#mult-collapse")).to_contain_text("T1 = 500 ms")
+    page.fill("#mult-g0-t1", "2")
+    page.click("#form-mult button[type=submit]")
+    expect(page.locator("#mult-collapse")).to_contain_text("T1 = 2 ms")
+    expect(page.locator("#mult-g0-t1-error")).to_be_empty()
+    page.click("#mult-add-abundance")
+    page.fill("#mult-a0-iso", "15N")
+    page.fill("#mult-a0-pct", "abc")
+    page.click("#form-mult button[type=submit]")
+    expect(page.locator("#mult-a0-pct-error")).not_to_be_empty()
+    expect(page.locator("#mult-a0-pct")).to_have_attribute("aria-invalid", "true")
     assert not rec.errors

@@ -771,6 +771,6 @@ function debugWorker() {
 
 export {
   api, ready, el, fmt, fixed, calculation, nuclideLabel, numberNode, form, sharedField, resultList, sortableTable,
-  registerPanel, whenShown, start, timings, magnetRequest, MAGNET_UNITS, remember, recall, cancel, param, storageTrouble,
+  registerPanel, whenShown, start, timings, magnetRequest, MAGNET_UNITS, remember, recall, cancel, param, declaredField, storageTrouble,
   forms, selectTab, panelIds, panelOf, notice, debugWorker,
 };

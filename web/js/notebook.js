@@ -303,13 +303,17 @@ const NMRNotebook = (() => {
   }
 
   /** A line table as CSV: the header block (every input of `request`, labelled), then one line per row,
-   * high to low ppm as spectra are read (Hz when there is no ppm), the Hz offset beside. */
-  function linesCSV(request, lines) {
+   * high to low ppm as spectra are read (Hz when there is no ppm), the Hz offset beside.
+   * more: {columns: [[header, line -> value]] after intensity, note: what Hz is (default: offset from the centre)}. */
+  function linesCSV(request, lines, more = {}) {
     const inputs = Object.entries(request).filter(([k]) => k !== "op" && k !== "spectrum").map(([k, v]) => labelled(request.op, k, v));
+    const extra = more.columns || [];
     const key = (l) => (typeof l.ppm === "number" ? l.ppm : l.Hz);
     const ordered = lines.slice().sort((a, b) => key(b) - key(a));
-    const body = ordered.map((l) => [l.ppm, l.Hz, l.intensity].map((v) => csvCell(typeof v === "number" ? cleanNumber(v) : "")).join(","));
-    return `${[...csvHeader([`calculation: ${request.op}`, ...inputs.map(([label, value]) => `${label}: ${value}`), "lines from high to low ppm; Hz = offset from the centre"]), "ppm,Hz,intensity", ...body].join("\r\n")}\r\n`;
+    const body = ordered.map((l) => [l.ppm, l.Hz, l.intensity, ...extra.map(([, get]) => get(l))]
+      .map((v) => csvCell(typeof v === "number" ? cleanNumber(v) : (v ?? ""))).join(","));
+    const head = ["ppm", "Hz", "intensity", ...extra.map(([name]) => name)].join(",");
+    return `${[...csvHeader([`calculation: ${request.op}`, ...inputs.map(([label, value]) => `${label}: ${value}`), `lines from high to low ppm; Hz = ${more.note || "offset from the centre"}`]), head, ...body].join("\r\n")}\r\n`;
   }
 
   function toCSV() {

@@ -4,7 +4,7 @@
 // the API op "multiplet"; this file only collects inputs and draws results.
 import * as NMR from "../nmr.js";
 import NMRPlot from "../plot.js";
-import NMRNotebook from "../notebook.js";
+import NMRRows from "../rows.js";
 
 export default {
   id: "multiplet",
@@ -50,19 +50,33 @@ export default {
       },
     ];
 
-    const card = el("section", { class: "card card-wide", id: "card-mult", "aria-labelledby": "mult-title" });
-    card.append(
-      el("h2", { id: "mult-title" }, "Multiplet builder"),
-      el("p", { class: "intro" }, "Split one line by groups of equivalent partners, first order. An element partner brings its isotope mixture: each isotopologue is its own pattern."),
-    );
-    const presetBar = el("div", { class: "presets", role: "group", "aria-label": "Example scenarios (invented)" });
-    card.append(el("p", { class: "hint" }, "Examples (invented scenarios), one tap to load:"), presetBar);
+    const card = NMRRows.card({
+      id: "card-mult", prefix: "mult", title: "Multiplet builder",
+      intro: "Split one line by groups of equivalent partners, first order. An element partner brings its isotope mixture: each isotopologue is its own pattern.",
+      examplesLabel: "Example scenarios (invented)", examplesHint: "Examples (invented scenarios), one tap to load:", examples: PRESETS, undo: "mult",
+      pick: (preset) => {
+        for (const [id, value] of Object.entries(preset.fixed)) {
+          const f = fixed[id];
+          if (Array.isArray(value)) {
+            f.input.value = value[0];
+            f.unitSelect.value = value[1];
+          } else {
+            f.input.value = value;
+          }
+          f.save();
+        }
+        rows = JSON.parse(JSON.stringify({ groups: preset.groups, abundance: preset.abundance }));
+        save();
+        drawRows();
+        run();
+      },
+    });
 
     const fixed = {
       observe: NMR.sharedField("mult", { id: "observe", label: "Observed nucleus", value: "13C", list: "nuclide-list", keys: ["observe"] }),
-      magnet: NMR.sharedField("mult", { id: "magnet", label: "Magnet", value: "400", inputmode: "decimal", units: NMR.MAGNET_UNITS, keys: ["spectrometer", "field"] }),
-      center: NMR.sharedField("mult", { id: "center", label: "Centre (ppm)", value: "77.0", inputmode: "decimal", keys: ["center"] }),
-      linewidth: NMR.sharedField("mult", { id: "linewidth", label: "Line width (Hz)", value: "0.5", inputmode: "decimal", keys: ["linewidth"] }),
+      magnet: NMR.sharedField("mult", { id: "magnet", label: "Magnet", value: "400", units: NMR.MAGNET_UNITS, keys: ["spectrometer", "field"] }),
+      center: NMR.sharedField("mult", { id: "center", param: "multiplet.center", value: "77.0", keys: ["center"] }),
+      linewidth: NMR.sharedField("mult", { id: "linewidth", param: "multiplet.linewidth", value: "0.5", keys: ["linewidth"] }),
       shape: NMR.sharedField("mult", { id: "shape", label: "Line shape", kind: "select", options: [["lorentzian", "Lorentzian"], ["gaussian", "Gaussian"]], keys: ["shape"] }),
     };
     const formNode = el("form", { class: "calc-form", id: "form-mult", novalidate: true });
@@ -76,37 +90,17 @@ export default {
     };
     const groupBox = el("div", { class: "rows", id: "mult-groups" });
     const abundanceBox = el("div", { class: "rows", id: "mult-abundance" });
-    const rowErrors = new Map();
     const save = () => NMR.remember(ROWS_KEY, rows);
-
-    function rowInput(id, label, value, key, onInput, extra) {
-      const input = el("input", { type: "text", id, autocomplete: "off", spellcheck: "false", "data-key": key, "aria-describedby": `${id}-error`, ...extra });
-      input.value = value;
-      input.addEventListener("input", () => {
-        onInput(input.value);
-        save();
-      });
-      const error = el("p", { class: "field-error", id: `${id}-error`, "aria-live": "polite" });
-      const wrap = el("div", { class: "field" }, el("label", { for: id }, label), input, error);
-      rowErrors.set(key, { wrap, input, error });
-      return wrap;
-    }
-    function rowSelect(id, label, value, options, key, onChange) {
-      const select = el("select", { id, "data-key": key, "aria-describedby": `${id}-error` });
-      for (const [v, text] of options) select.append(el("option", { value: v }, text));
-      select.value = value;
-      select.addEventListener("change", () => {
-        onChange(select.value);
-        save();
-      });
-      const error = el("p", { class: "field-error", id: `${id}-error`, "aria-live": "polite" });
-      rowErrors.set(key, { wrap: null, input: select, error });
-      return el("div", { class: "field" }, el("label", { for: id }, label), select, error);
-    }
+    const rowKit = NMRRows.kit({ onEdit: save, onRemove: () => { save(); drawRows(); schedule(); } });
+    const { errors } = rowKit;
+    // one row field: {id, key, label | param, value, onInput, attrs}; its messages start with "Group n, …"
+    const named = (spec, where) => ({ ...spec, name: `${where}, ${(spec.label || (NMR.param(spec.param) || { label: "" }).label).split(" (")[0]}` });
+    const rowInput = (spec, where) => rowKit.input(named(spec, where));
+    const rowSelect = (spec, where) => rowKit.select(named(spec, where));
 
     // T1 of a quadrupolar partner: a text field in ms and a logarithmic slider (0.01 ms … 1000 ms) driving it.
-    function t1Field(g, base, key) {
-      const wrap = rowInput(`${base}-t1`, "Partner T1 (ms), quadrupolar only", g.T1 || "", `${key}.T1`, (v) => { g.T1 = v; }, { inputmode: "decimal", placeholder: "not set" });
+    function t1Field(g, base, key, where) {
+      const wrap = rowInput({ id: `${base}-t1`, label: "Partner T1 (ms), quadrupolar only", value: g.T1 || "", key: `${key}.T1`, onInput: (v) => { g.T1 = v; }, attrs: { placeholder: "not set" } }, where);
       const slider = el("input", { type: "range", id: `${base}-t1-slider`, min: "-2", max: "3", step: "0.05", "aria-label": "Partner T1, logarithmic from 0.01 ms to 1000 ms" });
       slider.value = g.T1 && Number(g.T1) > 0 ? String(Math.log10(Number(g.T1))) : "3";
       const text = wrap.querySelector("input");
@@ -121,63 +115,48 @@ export default {
     }
 
     function drawRows() {
-      rowErrors.clear();
+      errors.reset();
       groupBox.replaceChildren(...rows.groups.map((g, i) => {
         const base = `mult-g${i}`;
         const key = `groups.${i}`;
+        const where = `Group ${i + 1}`;
         const box = el("fieldset", { class: "row-card", id: `${base}-box` });
-        const remove = el("button", { type: "button", class: "small-button", "aria-label": `Remove group ${i + 1}` }, "Remove");
-        remove.addEventListener("click", () => {
-          rows.groups.splice(i, 1);
-          save();
-          drawRows();
-          schedule();
-        });
-        box.append(el("legend", { class: "row-title" }, `Group ${i + 1}`));
-        box.append(rowSelect(`${base}-kind`, "Partner kind", g.kind, [["partner", "Named"], ["spin", "Spin only"]], `${key}.kind`, (v) => {
+        box.append(el("legend", { class: "row-title" }, where));
+        box.append(rowSelect({ id: `${base}-kind`, label: "Partner kind", value: g.kind, options: [["partner", "Named"], ["spin", "Spin only"]], key: `${key}.kind`, onChange: (v) => {
           g.kind = v;
           drawRows();
-        }));
+        } }, where));
         if (g.kind === "spin") {
-          box.append(rowInput(`${base}-spin`, "Spin I", g.spin || "1/2", `${key}.spin`, (v) => { g.spin = v; }, { inputmode: "text" }));
+          box.append(rowInput({ id: `${base}-spin`, label: "Spin I", value: g.spin || "1/2", key: `${key}.spin`, onInput: (v) => { g.spin = v; } }, where));
         } else {
-          box.append(rowInput(`${base}-partner`, "Partner (e.g. 2H, Pt)", g.partner || "", `${key}.partner`, (v) => { g.partner = v; }, { list: "nuclide-list" }));
+          box.append(rowInput({ id: `${base}-partner`, label: "Partner (e.g. 2H, Pt)", value: g.partner || "", key: `${key}.partner`, onInput: (v) => { g.partner = v; }, attrs: { list: "nuclide-list" } }, where));
         }
         box.append(
-          rowInput(`${base}-count`, "How many", g.count, `${key}.count`, (v) => { g.count = v; }, { inputmode: "numeric" }),
-          rowInput(`${base}-J`, "J (Hz)", g.J, `${key}.J`, (v) => { g.J = v; }, { inputmode: "decimal" }),
+          rowInput({ id: `${base}-count`, label: "How many", value: g.count, key: `${key}.count`, onInput: (v) => { g.count = v; }, attrs: { inputmode: "numeric" } }, where),
+          rowInput({ id: `${base}-J`, param: "multiplet.groups.J", value: g.J, key: `${key}.J`, onInput: (v) => { g.J = v; } }, where),
         );
         if (g.kind !== "spin") {
           box.append(
-            rowInput(`${base}-jiso`, "J belongs to isotope (elements)", g.J_isotope || "", `${key}.J_isotope`, (v) => { g.J_isotope = v; }, { list: "nuclide-list", placeholder: "default" }),
-            rowSelect(`${base}-quad`, "Quadrupolar splitting", g.quadrupolar || "", [["", "Usual choice"], ["resolved", "Resolved"], ["collapsed", "Collapsed"]], `${key}.quadrupolar`, (v) => { g.quadrupolar = v; }),
-            rowSelect(`${base}-equiv`, "Same site as the observed nucleus?", g.equivalent || "", [["", "Automatic (yes for its own element)"], ["yes", "Yes: equivalent, no splitting by its isotope"], ["no", "No: a neighbouring group"]], `${key}.equivalent`, (v) => { g.equivalent = v; }),
-            rowInput(`${base}-siso`, "Enrichment here: isotope", g.site_isotope || "", `${key}.abundance`, (v) => { g.site_isotope = v; }, { list: "nuclide-list", placeholder: "e.g. 2H" }),
-            rowInput(`${base}-spct`, "Enrichment here (%)", g.site_percent || "", `${key}.abundance.pct`, (v) => { g.site_percent = v; }, { inputmode: "decimal", placeholder: "request default" }),
-            rowInput(`${base}-shiso`, "Isotope shift: isotope", g.shift_isotope || "", `${key}.isotope_shift`, (v) => { g.shift_isotope = v; }, { list: "nuclide-list", placeholder: "e.g. 2H" }),
-            rowInput(`${base}-shppm`, "Shift per atom (ppm)", g.shift_ppm || "", `${key}.isotope_shift.ppm`, (v) => { g.shift_ppm = v; }, { inputmode: "decimal", placeholder: "none" }),
-            t1Field(g, base, key),
+            rowInput({ id: `${base}-jiso`, label: "J belongs to isotope (elements)", value: g.J_isotope || "", key: `${key}.J_isotope`, onInput: (v) => { g.J_isotope = v; }, attrs: { list: "nuclide-list", placeholder: "default" } }, where),
+            rowSelect({ id: `${base}-quad`, param: "multiplet.groups.quadrupolar", value: g.quadrupolar || "", options: [["", "Usual choice"], ["resolved", "Resolved"], ["collapsed", "Collapsed"]], key: `${key}.quadrupolar`, onChange: (v) => { g.quadrupolar = v; } }, where),
+            rowSelect({ id: `${base}-equiv`, label: "Same site as the observed nucleus?", value: g.equivalent || "", options: [["", "Automatic (yes for its own element)"], ["yes", "Yes: equivalent, no splitting by its isotope"], ["no", "No: a neighbouring group"]], key: `${key}.equivalent`, onChange: (v) => { g.equivalent = v; } }, where),
+            rowInput({ id: `${base}-siso`, label: "Enrichment here: isotope", value: g.site_isotope || "", key: `${key}.abundance`, onInput: (v) => { g.site_isotope = v; }, attrs: { list: "nuclide-list", placeholder: "e.g. 2H" } }, where),
+            rowInput({ id: `${base}-spct`, label: "Enrichment here (%)", value: g.site_percent || "", key: `${key}.abundance.pct`, onInput: (v) => { g.site_percent = v; }, attrs: { placeholder: "request default" } }, where),
+            rowInput({ id: `${base}-shiso`, label: "Isotope shift: isotope", value: g.shift_isotope || "", key: `${key}.isotope_shift`, onInput: (v) => { g.shift_isotope = v; }, attrs: { list: "nuclide-list", placeholder: "e.g. 2H" } }, where),
+            rowInput({ id: `${base}-shppm`, label: "Shift per atom (ppm)", value: g.shift_ppm || "", key: `${key}.isotope_shift.ppm`, onInput: (v) => { g.shift_ppm = v; }, attrs: { placeholder: "none" } }, where),
+            t1Field(g, base, key, where),
           );
         }
-        box.append(el("div", { class: "field" }, remove));
+        box.append(rowKit.remove(`Remove group ${i + 1}`, () => rows.groups.splice(i, 1)));
         return box;
       }));
       abundanceBox.replaceChildren(...rows.abundance.map((a, i) => {
         const base = `mult-a${i}`;
-        const box = el("fieldset", { class: "row-card" }, el("legend", { class: "row-title" }, `Abundance override ${i + 1}`));
-        const remove = el("button", { type: "button", class: "small-button", "aria-label": `Remove abundance override ${i + 1}` }, "Remove");
-        remove.addEventListener("click", () => {
-          rows.abundance.splice(i, 1);
-          save();
-          drawRows();
-          schedule();
-        });
-        box.append(
-          rowInput(`${base}-iso`, "Isotope", a.isotope, `abundance.${i}.isotope`, (v) => { a.isotope = v; }, { list: "nuclide-list" }),
-          rowInput(`${base}-pct`, "Abundance (%)", a.percent, `abundance.${i}.percent`, (v) => { a.percent = v; }, { inputmode: "decimal" }),
-          el("div", { class: "field" }, remove),
-        );
-        return box;
+        const where = `Abundance override ${i + 1}`;
+        return el("fieldset", { class: "row-card" }, el("legend", { class: "row-title" }, where),
+          rowInput({ id: `${base}-iso`, label: "Isotope", value: a.isotope, key: `abundance.${i}.isotope`, onInput: (v) => { a.isotope = v; }, attrs: { list: "nuclide-list" } }, where),
+          rowInput({ id: `${base}-pct`, label: "Abundance (%)", value: a.percent, key: `abundance.${i}.percent`, onInput: (v) => { a.percent = v; } }, where),
+          rowKit.remove(`Remove abundance override ${i + 1}`, () => rows.abundance.splice(i, 1)));
       }));
     }
 
@@ -201,11 +180,9 @@ export default {
       el("p", { class: "hint" }, "Natural abundances are used unless you set one here, e.g. 2H at 99.8 % for a labelled site."),
       abundanceBox, el("div", { class: "actions" }, addAbundance),
     );
-    const submit = el("button", { type: "submit", class: "primary" }, "Build multiplet");
-    const formError = el("p", { class: "form-error", id: "mult-form-error", "aria-live": "polite" });
-    const cancel = el("button", { type: "button", class: "small-button", id: "mult-cancel" }, "Cancel");
-    const busy = el("div", { class: "busy", id: "mult-busy", hidden: true, role: "status" }, el("span", {}, "Calculating…"), cancel);
-    formNode.append(el("div", { class: "actions" }, submit, busy, formError));
+    const bar = NMRRows.actionBar("mult", "Build multiplet");
+    const { busy, cancel, formError } = bar;
+    formNode.append(bar.node);
     card.append(formNode);
 
     // ---------- results ----------
@@ -249,7 +226,8 @@ export default {
       else req.partner = (g.partner || "").trim();
       if (g.kind !== "spin" && (g.J_isotope || "").trim()) req.J_isotope = g.J_isotope.trim();
       if (g.kind !== "spin" && g.quadrupolar) req.quadrupolar = g.quadrupolar;
-      if (g.kind !== "spin" && (g.T1 || "").trim()) req.T1 = `${g.T1.trim()} ms`;
+      // T1 typed as a bare number is in the field's ms; with a unit ("2 ms", "0.5 s") as typed
+      if (g.kind !== "spin" && (g.T1 || "").trim()) req.T1 = /^[\s\d.eE+\-\u2212]*$/.test(g.T1) ? `${g.T1.trim()} ms` : g.T1.trim();
       if (g.kind !== "spin" && g.equivalent) req.equivalent = g.equivalent === "yes";
       if (g.kind !== "spin" && (g.site_isotope || "").trim()) req.abundance = { [g.site_isotope.trim()]: (g.site_percent || "").trim() };
       if (g.kind !== "spin" && (g.shift_isotope || "").trim()) req.isotope_shift = { [g.shift_isotope.trim()]: (g.shift_ppm || "").trim() };
@@ -270,37 +248,12 @@ export default {
       return req;
     }
 
-    function clearErrors() {
-      for (const f of Object.values(fixed)) f.setError("");
-      for (const { input, error } of rowErrors.values()) {
-        error.textContent = "";
-        input.removeAttribute("aria-invalid");
-        input.closest(".field").classList.remove("has-error");
-      }
-      formError.textContent = "";
-    }
-    function showError(field, message) {
-      const owner = field ? Object.values(fixed).find((f) => f.ownsKey(field)) : null;
-      if (owner) return owner.setError(message);
-      let target = null;
-      const abundance = /^abundance\.(.+)$/.exec(field || "");
-      if (abundance) {
-        const i = rows.abundance.findIndex((a) => a.isotope.trim() === abundance[1]);
-        if (i >= 0) target = rowErrors.get(`abundance.${i}.percent`);
-      }
-      let key = field || "";
-      while (!target && key) {
-        target = rowErrors.get(key) || rowErrors.get(`${key}.partner`) || rowErrors.get(`${key}.spin`);
-        key = key.includes(".") ? key.slice(0, key.lastIndexOf(".")) : "";
-      }
-      if (!target) {
-        formError.textContent = message;
-        return;
-      }
-      target.error.textContent = message;
-      target.input.setAttribute("aria-invalid", "true");
-      target.input.closest(".field").classList.add("has-error");
-    }
+    const report = NMRRows.errorReport(errors, Object.values(fixed), formError, (field) => {
+      // request-level abundance is a map by isotope: "abundance.2H" belongs to that isotope's row
+      const abundance = /^abundance\.(.+)$/.exec(field);
+      const row = abundance ? rows.abundance.findIndex((a) => a.isotope.trim() === abundance[1]) : -1;
+      return (row >= 0 ? errors.find(`abundance.${row}.percent`) : null) || errors.find(field, [".partner", ".spin"]);
+    });
 
     // Minor isotopologues around a main species without a magnetic partner are
     // called satellites (e.g. 195Pt or 117/119Sn satellites); otherwise just minor.
@@ -400,25 +353,10 @@ export default {
         isoBox.replaceChildren();
       }
 
-      const lineColumns = [
-        { key: "ppm", label: "δ (ppm)", numeric: true, value: (l) => l.ppm, show: (l) => (l.ppm === undefined ? "—" : NMR.fixed(l.ppm, 5)) },
-        { key: "Hz", label: "Offset (Hz)", numeric: true, value: (l) => l.Hz, show: (l) => NMR.fixed(l.Hz, 3) },
-        { key: "intensity", label: "Relative intensity", numeric: true, value: (l) => l.intensity, show: (l) => short(l.intensity, 5) },
-      ];
-      const csv = NMRNotebook.linesCSV(sent, r.lines);
-      const tsv = ["ppm\tHz\tintensity", ...r.lines.map((l) => `${l.ppm === undefined ? "" : l.ppm}\t${l.Hz}\t${l.intensity}`)].join("\n");
-      const copy = el("button", { type: "button", class: "small-button", id: "mult-copy" }, "Copy table");
-      const note = el("span", { class: "hint", "aria-live": "polite" });
-      copy.addEventListener("click", () => {
-        navigator.clipboard.writeText(tsv).then(() => { note.textContent = "Copied."; }, () => { note.textContent = "Copy is blocked here; use Export CSV."; });
-      });
-      const exportCsv = el("button", { type: "button", class: "small-button", id: "mult-csv" }, "Export CSV");
-      exportCsv.addEventListener("click", () => NMRPlot.downloadText("multiplet-lines.csv", "text/csv", csv));
-      linesBox.replaceChildren(
-        el("h3", { class: "sub-title" }, `Lines (${r.lines.length})`),
-        el("div", { class: "actions" }, copy, exportCsv, note),
-        NMR.sortableTable(lineColumns, r.lines, "Lines: position and relative intensity (sum 1)"),
-      );
+      linesBox.replaceChildren(...NMRRows.lineTable({
+        id: "mult", title: "Lines", request: sent, lines: r.lines, fileName: "multiplet-lines",
+        caption: "Lines, high to low ppm: position, offset from the centre and relative intensity (sum 1)",
+      }));
     }
 
     const { run, schedule } = NMR.calculation({
@@ -429,10 +367,10 @@ export default {
         return { sent, response: await NMR.api(sent) };
       },
       show: ({ sent, response }) => {
-        clearErrors();
+        report.clear();
         card.classList.toggle("is-error", !response.ok);
         if (!response.ok) {
-          showError(response.error.field, response.error.message);
+          report.show(response.error.field, response.error.message);
           pin.update(null);
           out.classList.add("stale");
           return;
@@ -443,26 +381,6 @@ export default {
       },
     });
 
-    for (const preset of PRESETS) {
-      const button = el("button", { type: "button", class: "preset" }, preset.name);
-      button.addEventListener("click", () => NMR.withUndo("mult", `The example “${preset.name}”`, () => {
-        for (const [id, value] of Object.entries(preset.fixed)) {
-          const f = fixed[id];
-          if (Array.isArray(value)) {
-            f.input.value = value[0];
-            f.unitSelect.value = value[1];
-          } else {
-            f.input.value = value;
-          }
-          f.save();
-        }
-        rows = JSON.parse(JSON.stringify({ groups: preset.groups, abundance: preset.abundance }));
-        save();
-        drawRows();
-        run();
-      }));
-      presetBar.append(button);
-    }
     drawRows();
     NMR.whenShown(card, run);
   },

@@ -1,9 +1,12 @@
-// Panel: spin-system simulator — a small coupled system solved exactly (API op
+// Panel: spin-system simulator — a coupled system solved exactly (API op
 // "spin_system"), the first-order pattern for comparison, the pair-by-pair
-// first-order check, and the same system at several magnets on one ppm axis.
-// No physics here: spectra, lines and checks all come from the API result.
+// first-order check, the transitions by spin, expanded views of each multiplet,
+// and the same system at several magnets on one ppm axis. Spins carry labels as
+// chemists write them (A, B, X or "H-3"). No physics here: spectra, lines,
+// transitions and checks all come from the API result.
 import * as NMR from "../nmr.js";
 import NMRPlot from "../plot.js";
+import NMRRows from "../rows.js";
 
 export default {
   id: "spins",
@@ -12,82 +15,98 @@ export default {
     const { el, fmt } = NMR;
     const ROWS_KEY = "spins.rows";
     const short = (value) => String(Number(value.toPrecision(6))); // display only: drop trailing zeros
-    const spin = (nucleus, shift, count) => ({ nucleus, shift, count });
+    const spin = (label, nucleus, shift, count) => ({ nucleus, shift, count, label });
     const J = (i, j, value) => ({ i, j, J: value });
     const PRESETS = [
-      { name: "AB pair (made-up CH₂ next to a stereocentre)", magnet: "400", spins: [spin("1H", "4.10", "1"), spin("1H", "4.22", "1")], couplings: [J(0, 1, "-12.5")] },
-      { name: "ABX-type vinyl group", magnet: "300", spins: [spin("1H", "5.30", "1"), spin("1H", "5.42", "1"), spin("1H", "6.05", "1")], couplings: [J(0, 1, "1.5"), J(0, 2, "10.8"), J(1, 2, "17.4")] },
+      { name: "AB pair (made-up CH₂ next to a stereocentre)", magnet: "400", spins: [spin("A", "1H", "4.10", "1"), spin("B", "1H", "4.22", "1")], couplings: [J(0, 1, "-12.5")] },
+      { name: "ABX-type vinyl group", magnet: "300", spins: [spin("A", "1H", "5.30", "1"), spin("B", "1H", "5.42", "1"), spin("X", "1H", "6.05", "1")], couplings: [J(0, 1, "1.5"), J(0, 2, "10.8"), J(1, 2, "17.4")] },
       {
         name: "AA′BB′ ring (made-up para-disubstituted arene)", magnet: "400",
-        spins: [spin("1H", "7.10", "1"), spin("1H", "7.10", "1"), spin("1H", "7.32", "1"), spin("1H", "7.32", "1")],
+        spins: [spin("A", "1H", "7.10", "1"), spin("A′", "1H", "7.10", "1"), spin("B", "1H", "7.32", "1"), spin("B′", "1H", "7.32", "1")],
         couplings: [J(0, 2, "8.4"), J(1, 3, "8.4"), J(0, 3, "0.4"), J(1, 2, "0.4"), J(0, 1, "2.3"), J(2, 3, "2.3")],
       },
-      { name: "Ethyl group", magnet: "60", spins: [spin("1H", "1.22", "3"), spin("1H", "3.65", "2")], couplings: [J(0, 1, "7.1")] },
-      { name: "¹H–¹⁹F pair (made-up fluoromethyl group)", magnet: "400", spins: [spin("1H", "4.48", "2"), spin("19F", "-215", "1")], couplings: [J(0, 1, "47.5")] },
+      { name: "Ethyl group", magnet: "60", spins: [spin("CH₃", "1H", "1.22", "3"), spin("CH₂", "1H", "3.65", "2")], couplings: [J(0, 1, "7.1")] },
+      { name: "¹H–¹⁹F pair (made-up fluoromethyl group)", magnet: "400", spins: [spin("H", "1H", "4.48", "2"), spin("F", "19F", "-215", "1")], couplings: [J(0, 1, "47.5")] },
     ];
 
-    const card = el("section", { class: "card card-wide", id: "card-spins", "aria-labelledby": "spins-title" });
-    card.append(
-      el("h2", { id: "spins-title" }, "Spin-system simulator"),
-      el("p", { class: "intro" }, "Exact spectrum of a few coupled spins, compared with the first-order pattern, and checked pair by pair: where Δν/J is small, first-order rules fail."),
-    );
-    const presetBar = el("div", { class: "presets", role: "group", "aria-label": "Example spin systems (invented)" });
-    card.append(el("p", { class: "hint" }, "Examples (invented), one tap to load:"), presetBar);
+    const card = NMRRows.card({
+      id: "card-spins", prefix: "spins", title: "Spin-system simulator",
+      intro: "Exact spectrum of coupled spins, compared with the first-order pattern, and checked pair by pair: where Δν/J is small, first-order rules fail.",
+      examplesLabel: "Example spin systems (invented)", examplesHint: "Examples (invented), one tap to load:", examples: PRESETS, undo: "spins",
+      pick: (preset) => {
+        fixed.magnet.input.value = preset.magnet;
+        fixed.magnet.unitSelect.value = "MHz";
+        fixed.magnet.save();
+        fixed.observe.input.value = "1H";
+        fixed.observe.save();
+        rows = normalise({ spins: preset.spins, couplings: preset.couplings });
+        save();
+        drawRows();
+        run();
+      },
+    });
 
     const fixed = {
-      observe: NMR.sharedField("spins", { id: "observe", label: "Observed nucleus", value: "1H", list: "nuclide-list", keys: ["observe"] }),
-      magnet: NMR.sharedField("spins", { id: "magnet", label: "Magnet", value: "400", inputmode: "decimal", units: NMR.MAGNET_UNITS, keys: ["spectrometer", "field"] }),
-      linewidth: NMR.sharedField("spins", { id: "linewidth", label: "Line width (Hz)", value: "0.8", inputmode: "decimal", keys: ["linewidth"] }),
+      observe: NMR.sharedField("spins", { id: "observe", param: "spin_system.observe", value: "1H", list: "nuclide-list", keys: ["observe"] }),
+      magnet: NMR.sharedField("spins", { id: "magnet", label: "Magnet", value: "400", units: NMR.MAGNET_UNITS, keys: ["spectrometer", "field"] }),
+      linewidth: NMR.sharedField("spins", { id: "linewidth", param: "spin_system.linewidth", value: "0.8", keys: ["linewidth"] }),
       fields: NMR.sharedField("spins", { id: "fields", label: "Several fields (MHz ¹H, comma-separated)", value: "60, 300, 400, 600, 800, 1200", keys: ["fields"], wide: true }),
       overlay: NMR.sharedField("spins", { id: "overlay", label: "Overlay the first-order pattern", kind: "checkbox", value: true, keys: ["first_order"] }),
     };
     const formNode = el("form", { class: "calc-form", id: "form-spins", novalidate: true });
     formNode.append(el("div", { class: "fields" }, ...Object.values(fixed).map((f) => f.wrap)));
 
+    // ---------- spins and couplings (dynamic rows) ----------
+    // Every spin row keeps the same keys (pins and share links are checked against this shape).
+    function normalise(value) {
+      const copy = JSON.parse(JSON.stringify(value));
+      return {
+        spins: copy.spins.map((s) => ({ nucleus: String(s.nucleus ?? ""), shift: String(s.shift ?? ""), count: String(s.count ?? "1"), label: String(s.label ?? "") })),
+        couplings: (copy.couplings || []).map((c) => ({ i: Number(c.i), j: Number(c.j), J: String(c.J ?? "") })),
+      };
+    }
     const saved = NMR.recall(ROWS_KEY);
-    let rows = saved && Array.isArray(saved.spins) ? saved : JSON.parse(JSON.stringify(PRESETS[3]));
+    let rows = normalise(saved && Array.isArray(saved.spins) ? saved : PRESETS[3]);
     let matrixView = false;
-    const errorTargets = new Map();
     const save = () => NMR.remember(ROWS_KEY, { spins: rows.spins, couplings: rows.couplings });
+    const rowKit = NMRRows.kit({ onEdit: save, onRemove: () => { save(); drawRows(); schedule(); } });
+    const { errors } = rowKit;
 
-    function input(id, label, value, key, onInput, extra) {
-      const node = el("input", { type: "text", id, autocomplete: "off", spellcheck: "false", "aria-describedby": `${id}-error`, ...extra });
-      node.value = value;
-      node.addEventListener("input", () => {
-        onInput(node.value);
-        save();
+    // A spin's name: its typed label, else the first letter A, B, C… (then A1, B1…) no other spin uses.
+    const letter = (n) => `${String.fromCharCode(65 + (n % 26))}${n >= 26 ? Math.floor(n / 26) : ""}`;
+    function names() {
+      const typed = rows.spins.map((s) => s.label.trim());
+      const used = new Set(typed.filter(Boolean));
+      let next = 0;
+      return typed.map((t) => {
+        if (t) return t;
+        while (used.has(letter(next))) next += 1;
+        used.add(letter(next));
+        return letter(next);
       });
-      const error = el("p", { class: "field-error", id: `${id}-error`, "aria-live": "polite" });
-      errorTargets.set(key, { input: node, error });
-      return el("div", { class: "field" }, el("label", { for: id }, label), node, error);
     }
-    const spinSelects = [];
-    const spinName = (k) => `spin ${k} · ${rows.spins[k].shift} ppm`;
-    function renameSpin(k) {
-      for (const select of spinSelects) select.options[k].textContent = spinName(k);
-    }
-    function spinSelect(id, label, value, key, onChange) {
-      const node = el("select", { id, "aria-describedby": `${id}-error` });
-      rows.spins.forEach((s, k) => node.append(el("option", { value: String(k) }, spinName(k))));
-      spinSelects.push(node);
-      node.value = String(value);
-      node.addEventListener("change", () => {
-        onChange(Number(node.value));
-        save();
+    const nameOf = (k) => names()[k];
+    // nodes whose text follows the labels as they are typed (legends, options, matrix headers)
+    let namers = [];
+    const follow = (fn) => {
+      namers.push(fn);
+      fn();
+    };
+    const named = (node, text) => {
+      follow(() => { node.textContent = text(); });
+      return node;
+    };
+    const renameAll = () => namers.forEach((fn) => fn());
+    const spinOption = (k) => `${nameOf(k)} · ${rows.spins[k].shift} ppm`;
+    const pairName = (c) => `J(${nameOf(c.i)},${nameOf(c.j)})`;
+
+    function spinSelect(c, end, id, label, where) {
+      const node = rowKit.select({
+        id, key: where, label, value: c[end], options: rows.spins.map((_, k) => [String(k), ""]),
+        onChange: (v) => { c[end] = Number(v); renameAll(); }, name: () => `${pairName(c)}, ${label.toLowerCase()}`,
       });
-      const error = el("p", { class: "field-error", id: `${id}-error`, "aria-live": "polite" });
-      errorTargets.set(key, { input: node, error });
-      return el("div", { class: "field" }, el("label", { for: id }, label), node, error);
-    }
-    function removeButton(label, onClick) {
-      const button = el("button", { type: "button", class: "small-button", "aria-label": label }, "Remove");
-      button.addEventListener("click", () => {
-        onClick();
-        save();
-        drawRows();
-        schedule();
-      });
-      return el("div", { class: "field" }, button);
+      node.querySelectorAll("option").forEach((option, k) => named(option, () => spinOption(k)));
+      return node;
     }
 
     const spinBox = el("div", { class: "rows", id: "spins-list" });
@@ -103,11 +122,11 @@ export default {
         const base = `spins-c${k}`;
         const where = `couplings.${k}`;
         box.append(el("fieldset", { class: "row-card" },
-          el("legend", { class: "row-title" }, `Coupling ${k}`),
-          spinSelect(`${base}-i`, "Between", c.i, `${where}.between`, (v) => { c.i = v; }),
-          spinSelect(`${base}-j`, "and", c.j, `${where}.between.1`, (v) => { c.j = v; }),
-          input(`${base}-J`, "J (Hz)", c.J, `${where}.J`, (v) => { c.J = v; }, { inputmode: "decimal" }),
-          removeButton(`Remove coupling ${k}`, () => rows.couplings.splice(k, 1)),
+          named(el("legend", { class: "row-title" }), () => `Coupling ${pairName(c)}`),
+          spinSelect(c, "i", `${base}-i`, "Between", `${where}.between`),
+          spinSelect(c, "j", `${base}-j`, "and", `${where}.between.1`),
+          rowKit.input({ id: `${base}-J`, key: `${where}.J`, param: "spin_system.couplings.J", value: c.J, onInput: (v) => { c.J = v; }, name: () => pairName(c) }),
+          rowKit.remove(`Remove coupling ${pairName(c)}`, () => rows.couplings.splice(k, 1)),
         ));
       });
       const add = el("button", { type: "button", class: "small-button", id: "spins-add-coupling" }, "+ Add coupling");
@@ -122,10 +141,11 @@ export default {
 
     function drawCouplingMatrix() {
       const n = rows.spins.length;
-      const head = el("tr", {}, el("th", { scope: "col" }, "J (Hz)"), ...rows.spins.map((_, k) => el("th", { scope: "col" }, `spin ${k}`)));
+      const head = el("tr", {}, el("th", { scope: "col" }, "J (Hz)"), ...rows.spins.map((_, k) => named(el("th", { scope: "col" }), () => nameOf(k))));
       const body = el("tbody");
+      const error = el("p", { class: "field-error", id: "spins-matrix-error", "aria-live": "polite" });
       for (let i = 0; i < n; i += 1) {
-        const tr = el("tr", {}, el("th", { scope: "row" }, `spin ${i}`));
+        const tr = el("tr", {}, named(el("th", { scope: "row" }), () => nameOf(i)));
         for (let j = 0; j < n; j += 1) {
           const k = rows.couplings.findIndex((c) => (c.i === i && c.j === j) || (c.i === j && c.j === i));
           if (i === j) {
@@ -134,7 +154,8 @@ export default {
             tr.append(el("td", { class: "muted" }, k >= 0 ? rows.couplings[k].J : ""));
           } else {
             const id = `spins-m${i}-${j}`;
-            const cell = el("input", { type: "text", id, inputmode: "decimal", autocomplete: "off", "aria-label": `J between spin ${i} and spin ${j} (Hz)` });
+            const cell = el("input", { type: "text", id, autocomplete: "off", "aria-describedby": "spins-matrix-error" });
+            follow(() => cell.setAttribute("aria-label", `J between ${nameOf(i)} and ${nameOf(j)} (Hz)`));
             cell.value = k >= 0 ? rows.couplings[k].J : "";
             cell.addEventListener("input", () => {
               const at = rows.couplings.findIndex((c) => (c.i === i && c.j === j) || (c.i === j && c.j === i));
@@ -148,33 +169,36 @@ export default {
               save();
             });
             cell.addEventListener("change", () => drawRows());
-            if (k >= 0) errorTargets.set(`couplings.${k}.J`, { input: cell, error: null });
+            if (k >= 0) errors.add(`couplings.${k}.J`, cell, error, () => `J(${nameOf(i)},${nameOf(j)})`);
             tr.append(el("td", {}, cell));
           }
         }
         body.append(tr);
       }
       const table = el("table", { class: "data matrix" }, el("caption", {}, "Couplings: upper triangle, empty = no coupling"), el("thead", {}, head), body);
-      const error = el("p", { class: "field-error", id: "spins-matrix-error", "aria-live": "polite" });
-      errorTargets.set("matrix", { input: null, error });
+      errors.add("couplings", null, error, "Couplings");
       return [el("div", { class: "table-wrap", role: "region", "aria-label": "coupling matrix", tabindex: "0" }, table), error];
     }
 
     function drawRows() {
-      errorTargets.clear();
-      spinSelects.length = 0;
+      errors.reset();
+      namers = [];
       spinBox.replaceChildren(...rows.spins.map((s, k) => {
         const base = `spins-s${k}`;
         const where = `spins.${k}`;
+        const what = (field) => () => `Spin ${nameOf(k)}, ${field}`;
+        const label = rowKit.input({
+          id: `${base}-label`, key: `${where}.label`, param: "spin_system.spins.label", value: s.label, name: what("label"),
+          onInput: (v) => { s.label = v; renameAll(); }, attrs: { maxlength: "24" },
+        });
+        follow(() => { label.querySelector("input").placeholder = s.label.trim() ? "" : `${nameOf(k)} (automatic)`; });
         return el("fieldset", { class: "row-card" },
-          el("legend", { class: "row-title" }, `Spin ${k}`),
-          input(`${base}-nucleus`, "Nucleus", s.nucleus, `${where}.nucleus`, (v) => { s.nucleus = v; }, { list: "nuclide-list" }),
-          input(`${base}-shift`, "Shift (ppm)", s.shift, `${where}.shift`, (v) => {
-            s.shift = v;
-            renameSpin(k);
-          }, { inputmode: "decimal" }),
-          input(`${base}-count`, "Equivalent nuclei", s.count, `${where}.count`, (v) => { s.count = v; }, { inputmode: "numeric" }),
-          removeButton(`Remove spin ${k}`, () => {
+          named(el("legend", { class: "row-title" }), () => `Spin ${nameOf(k)}`),
+          label,
+          rowKit.input({ id: `${base}-nucleus`, key: `${where}.nucleus`, param: "spin_system.spins.nucleus", value: s.nucleus, onInput: (v) => { s.nucleus = v; }, name: what("nucleus"), attrs: { list: "nuclide-list" } }),
+          rowKit.input({ id: `${base}-shift`, key: `${where}.shift`, param: "spin_system.spins.shift", value: s.shift, onInput: (v) => { s.shift = v; renameAll(); }, name: what("shift") }),
+          rowKit.input({ id: `${base}-count`, key: `${where}.count`, label: "Equivalent nuclei", value: s.count, onInput: (v) => { s.count = v; }, name: what("equivalent nuclei"), attrs: { inputmode: "numeric" } }),
+          rowKit.remove(`Remove spin ${nameOf(k)}`, () => {
             rows.spins.splice(k, 1);
             rows.couplings = rows.couplings.filter((c) => c.i !== k && c.j !== k)
               .map((c) => ({ i: c.i > k ? c.i - 1 : c.i, j: c.j > k ? c.j - 1 : c.j, J: c.J }));
@@ -188,23 +212,24 @@ export default {
 
     const addSpin = el("button", { type: "button", class: "small-button", id: "spins-add-spin" }, "+ Add spin");
     addSpin.addEventListener("click", () => {
-      rows.spins.push({ nucleus: "1H", shift: "2.0", count: "1" });
+      const taken = new Set(names());
+      let n = 0;
+      while (taken.has(letter(n))) n += 1;
+      rows.spins.push({ nucleus: "1H", shift: "2.0", count: NMRRows.declaredDefault("spin_system.spins.count", "1"), label: letter(n) });
       save();
       drawRows();
       schedule();
     });
+    const bar = NMRRows.actionBar("spins", "Simulate");
+    const { busy, cancel, formError } = bar;
     formNode.append(
       el("h3", { class: "sub-title" }, "Spins"),
-      el("p", { class: "hint" }, "Spins are numbered from 0, as in the messages below the spectrum."), spinBox, el("div", { class: "actions" }, addSpin),
+      el("p", { class: "hint" }, "Each spin has a label (A, B, X… or your own, e.g. H-3): couplings, tables and messages name spins by it."), spinBox, el("div", { class: "actions" }, addSpin),
       el("h3", { class: "sub-title" }, "Couplings"),
       el("div", { class: "actions", role: "group", "aria-label": "Coupling editor view" }, listButton, matrixButton),
       couplingBox,
+      bar.node,
     );
-    const submit = el("button", { type: "submit", class: "primary" }, "Simulate");
-    const formError = el("p", { class: "form-error", id: "spins-form-error", "aria-live": "polite" });
-    const cancel = el("button", { type: "button", class: "small-button", id: "spins-cancel" }, "Cancel");
-    const busy = el("div", { class: "busy", id: "spins-busy", hidden: true, role: "status" }, el("span", {}, "Calculating…"), cancel);
-    formNode.append(el("div", { class: "actions" }, submit, busy, formError));
     card.append(formNode);
 
     // ---------- results ----------
@@ -214,79 +239,127 @@ export default {
     const spectrumBox = el("div");
     const spectrum = NMRPlot.create(spectrumBox, { label: "Exact spectrum", height: 300, fileName: "spin-system" });
     spectrum.node.id = "spins-spectrum";
+    const insetBox = el("div", { id: "spins-insets" });
     const checkBox = el("div", { id: "spins-checks" });
     const transitionBox = el("div", { id: "spins-transitions" });
     const stackBox = el("div");
     const stack = NMRPlot.create(stackBox, { label: "The system at several fields", height: 460, fileName: "spin-system-fields" });
     stack.node.id = "spins-stack";
     const stackError = el("p", { class: "form-error", id: "spins-stack-error", "aria-live": "polite" });
-    out.append(warn, spectrumTitle, spectrumBox, checkBox, transitionBox, el("h3", { class: "sub-title" }, "Several fields on one ppm axis"), stackError, stackBox);
+    out.append(warn, spectrumTitle, spectrumBox, insetBox, checkBox, transitionBox, el("h3", { class: "sub-title" }, "Several fields on one ppm axis"), stackError, stackBox);
     card.append(out);
     // bench notebook: pin / share this result (web/js/notebook.js)
     const pin = NMR.pinSource({
       id: "spins", node: card, fields: Object.values(fixed), run: () => run(),
-      rows: { [ROWS_KEY]: { get: () => rows, set: (value) => { rows = value; save(); drawRows(); } } },
+      rows: { [ROWS_KEY]: { get: () => rows, set: (value) => { rows = normalise(value); save(); drawRows(); } } },
     });
     card.append(pin.node);
     container.append(el("div", { class: "cards" }, card));
 
     function baseRequest() {
       const req = { op: "spin_system", observe: fixed.observe.read().value, spectrum: true };
-      const width = fixed.linewidth.read().value;
-      req.linewidth = width;
-      req.spins = rows.spins.map((s) => {
+      req.linewidth = fixed.linewidth.read().value;
+      const labels = names();
+      req.spins = rows.spins.map((s, k) => {
         const count = Number(s.count);
-        return { nucleus: s.nucleus.trim(), shift: s.shift.trim(), count: s.count.trim() === "" || Number.isNaN(count) ? s.count : count };
+        return { label: labels[k], nucleus: s.nucleus.trim(), shift: s.shift.trim(), count: s.count.trim() === "" || Number.isNaN(count) ? s.count : count };
       });
-      req.couplings = rows.couplings.map((c) => ({ between: [c.i, c.j], J: String(c.J).trim() }));
+      // spins named by label: a pin, a CSV header or the command line reads "A, B", never an index
+      req.couplings = rows.couplings.map((c) => ({ between: [labels[c.i], labels[c.j]], J: String(c.J).trim() }));
       return req;
     }
-    function fieldList() {
-      return fixed.fields.read().value;
-    }
 
-    function clearErrors() {
-      for (const f of Object.values(fixed)) f.setError("");
-      for (const t of errorTargets.values()) {
-        if (t.error) t.error.textContent = "";
-        if (t.input) {
-          t.input.removeAttribute("aria-invalid");
-          const field = t.input.closest(".field");
-          if (field) field.classList.remove("has-error");
+    const report = NMRRows.errorReport(errors, Object.values(fixed), formError,
+      (field) => errors.find(field, [".J", ".nucleus"]) || (field.startsWith("couplings") ? errors.find("couplings") : null));
+
+    // ---------- expanded views: one window per multiplet ----------
+    // A window spans the transitions that mostly belong to one spin (those of at least 1 % of its
+    // strongest), widened along the sampled trace until it falls below 2 % of the window's top,
+    // plus 10 % each side; overlapping windows are merged. Only positions are chosen here: the
+    // trace drawn is the API's, cut to the window.
+    function multipletWindows(r) {
+      const x = r.spectrum.x_ppm;
+      const y = r.spectrum.y;
+      const bySpin = new Map();
+      for (const t of r.transitions) {
+        if (!bySpin.has(t.spin)) bySpin.set(t.spin, []);
+        bySpin.get(t.spin).push(t);
+      }
+      const windows = [];
+      for (const lines of bySpin.values()) {
+        const top = Math.max(...lines.map((t) => t.intensity));
+        const kept = lines.filter((t) => t.intensity >= 0.01 * top);
+        let lo = Math.min(...kept.map((t) => t.ppm));
+        let hi = Math.max(...kept.map((t) => t.ppm));
+        let a = x.findIndex((v) => v >= lo);
+        let b = x.length - 1 - [...x].reverse().findIndex((v) => v <= hi);
+        if (a < 0 || b < 0) continue;
+        if (b < a) [a, b] = [b, a];
+        let peak = 0;
+        for (let i = a; i <= b; i += 1) peak = Math.max(peak, y[i]);
+        while (a > 0 && y[a - 1] > 0.02 * peak) a -= 1;
+        while (b < x.length - 1 && y[b + 1] > 0.02 * peak) b += 1;
+        lo = x[a];
+        hi = x[b];
+        const pad = 0.1 * (hi - lo);
+        windows.push({ lo: lo - pad, hi: hi + pad, spins: [lines[0].spin] });
+      }
+      windows.sort((p, q) => p.lo - q.lo);
+      const merged = [];
+      for (const w of windows) {
+        const last = merged[merged.length - 1];
+        if (last && w.lo <= last.hi) {
+          last.hi = Math.max(last.hi, w.hi);
+          last.spins.push(...w.spins);
+        } else {
+          merged.push({ ...w, spins: [...w.spins] });
         }
       }
-      formError.textContent = "";
-      stackError.textContent = "";
+      // labels in input order, so a merged window reads "A, A′", not "A′, A"
+      const labelOf = new Map(r.transitions.map((t) => [t.spin, t.label]));
+      for (const w of merged) w.labels = w.spins.sort((p, q) => p - q).map((k) => labelOf.get(k));
+      const full = x[x.length - 1] - x[0];
+      // one window showing most of the spectrum is the spectrum itself
+      return merged.length === 1 && merged[0].hi - merged[0].lo > 0.6 * full ? [] : merged.reverse();
     }
-    function showError(field, message) {
-      const owner = field ? Object.values(fixed).find((f) => f.ownsKey(field)) : null;
-      if (owner) return owner.setError(message);
-      let key = field || "";
-      let target = null;
-      while (!target && key) {
-        target = errorTargets.get(key) || errorTargets.get(`${key}.J`) || errorTargets.get(`${key}.nucleus`);
-        key = key.includes(".") ? key.slice(0, key.lastIndexOf(".")) : "";
-      }
-      if (target && !target.error) target = { ...target, error: errorTargets.get("matrix").error };
-      if (!target) {
-        formError.textContent = message;
-        return;
-      }
-      target.error.textContent = message;
-      if (target.input) {
-        target.input.setAttribute("aria-invalid", "true");
-        const wrap = target.input.closest(".field");
-        if (wrap) wrap.classList.add("has-error");
-      }
+    function renderInsets(r) {
+      const windows = multipletWindows(r);
+      const cut = (xs, ys, w) => {
+        const keep = xs.map((v, i) => i).filter((i) => xs[i] >= w.lo && xs[i] <= w.hi);
+        return { x: keep.map((i) => xs[i]), y: keep.map((i) => ys[i]) };
+      };
+      insetBox.replaceChildren();
+      if (!windows.length) return;
+      insetBox.append(
+        el("h3", { class: "sub-title" }, "Each multiplet expanded"),
+        el("p", { class: "hint" }, "Below each trace, the transitions as lines: a splitting narrower than the line width shows there."),
+      );
+      windows.forEach((w, k) => {
+        const box = el("div", { class: "inset", id: `spins-inset-${k}` });
+        const lines = r.transitions.filter((t) => t.ppm >= w.lo && t.ppm <= w.hi);
+        box.append(el("h4", { class: "inset-title" }, `${w.labels.join(", ")}: δ ${NMR.fixed(w.hi, 3)} to ${NMR.fixed(w.lo, 3)} ppm, ${lines.length} transitions`));
+        insetBox.append(box);
+        const plot = NMRPlot.create(box, { label: `Expanded multiplet ${w.labels.join(", ")}`, height: 220, fileName: `spin-system-${k + 1}`, caption: null });
+        plot.update({
+          traces: [
+            { label: "spectrum", ...cut(r.spectrum.x_ppm, r.spectrum.y, w), color: 0, legend: false },
+            { label: "transitions", kind: "sticks", x: lines.map((t) => t.ppm), y: lines.map((t) => t.intensity), color: 2, legend: false },
+          ],
+          stacked: true,
+          stackLabels: ["spectrum", "lines"],
+        }, false);
+        plot.setXLabel(`δ(${r.observe}) / ppm`);
+      });
     }
 
-    function renderSingle(r, warnings, overlay) {
+    function renderSingle(r, warnings, overlay, sent) {
       warn.replaceChildren(...warnings.map((text) => el("li", {}, text)));
       spectrumTitle.textContent = `Exact spectrum at ${short(r.spectrometer_MHz)} MHz (${fmt(r.field_T, 4)} T)`;
       const traces = [{ label: "exact (second order)", x: r.spectrum.x_ppm, y: r.spectrum.y, color: 0 }];
       if (overlay && r.spectrum.first_order_y) traces.push({ label: "first-order pattern", x: r.spectrum.x_ppm, y: r.spectrum.first_order_y, color: 1, dashed: true });
       spectrum.update({ traces }, true);
       spectrum.setXLabel(`δ(${r.observe}) / ppm`);
+      renderInsets(r);
       const columns = [
         { key: "pair", label: "Pair", value: (c) => c.pair[0] * 100 + c.pair[1], show: (c) => `${c.labels[0]}–${c.labels[1]} (${c.nucleus})` },
         { key: "dnu", label: "Δν (Hz)", numeric: true, value: (c) => c.delta_nu_Hz, show: (c) => NMR.fixed(c.delta_nu_Hz, 1) },
@@ -302,13 +375,12 @@ export default {
       transitionBox.replaceChildren(
         el("h3", { class: "sub-title" }, "Clusters"),
         el("ul", { id: "spins-clusters" }, ...r.clusters.map((c) => el("li", {}, `${c.labels.join(", ")}: ${c.method === "exact" ? "exact" : `weak links to first order, positions within about ${fmt(c.error_Hz, 2)} Hz`}`))),
-        el("h3", { class: "sub-title" }, "Transitions"),
-        NMR.sortableTable([
-          { key: "ppm", label: "δ (ppm)", numeric: true, value: (t) => t.ppm, show: (t) => NMR.fixed(t.ppm, 4) },
-          { key: "Hz", label: "ν (Hz)", numeric: true, value: (t) => t.Hz, show: (t) => NMR.fixed(t.Hz, 2) },
-          { key: "intensity", label: "Intensity", numeric: true, value: (t) => t.intensity, show: (t) => fmt(t.intensity, 4) },
-          { key: "spin", label: "Mostly spin", value: (t) => t.spin, show: (t) => t.label },
-        ], r.transitions, "Every observed transition: position, intensity and the spin it mostly belongs to"),
+        ...NMRRows.lineTable({
+          id: "spins-lines", title: "Transitions", request: sent, lines: r.transitions, fileName: "spin-system-transitions",
+          caption: "Every observed transition, high to low ppm: position, intensity and the spin it mostly belongs to",
+          places: { ppm: 4, Hz: 3 }, hzLabel: "ν from 0 ppm (Hz)", note: "offset from 0 ppm of the observed nucleus",
+          columns: [{ key: "spin", label: "Mostly spin", value: (t) => t.label, show: (t) => t.label }],
+        }),
       );
     }
     function renderFields(r) {
@@ -323,21 +395,22 @@ export default {
       call: async () => {
         const overlay = fixed.overlay.read().value;
         const single = { ...baseRequest(), ...NMR.magnetRequest(fixed.magnet.read()), first_order: true };
-        const several = { ...baseRequest(), fields: fieldList() };
+        const several = { ...baseRequest(), fields: fixed.fields.read().value };
         const [one, many] = await Promise.all([NMR.api(single), NMR.api(several)]);
         return { overlay, single, one, many };
       },
       show: ({ overlay, single, one, many }) => {
-        clearErrors();
+        report.clear();
+        stackError.textContent = "";
         card.classList.toggle("is-error", !one.ok);
         if (!one.ok) {
-          showError(one.error.field, one.error.message);
+          report.show(one.error.field, one.error.message);
           pin.update(null);
           out.classList.add("stale");
           return;
         }
         out.classList.remove("stale");
-        renderSingle(one.result, one.warnings || [], overlay);
+        renderSingle(one.result, one.warnings || [], overlay, single);
         pin.update({ request: single, result: one.result });
         if (many.ok) {
           renderFields(many.result);
@@ -350,21 +423,6 @@ export default {
       },
     });
 
-    for (const preset of PRESETS) {
-      const button = el("button", { type: "button", class: "preset" }, preset.name);
-      button.addEventListener("click", () => NMR.withUndo("spins", `The example “${preset.name}”`, () => {
-        fixed.magnet.input.value = preset.magnet;
-        fixed.magnet.unitSelect.value = "MHz";
-        fixed.magnet.save();
-        fixed.observe.input.value = "1H";
-        fixed.observe.save();
-        rows = JSON.parse(JSON.stringify({ spins: preset.spins, couplings: preset.couplings }));
-        save();
-        drawRows();
-        run();
-      }));
-      presetBar.append(button);
-    }
     drawRows();
     NMR.whenShown(card, run);
   },

@@ -4,6 +4,7 @@
 // op "identify"; this file only collects inputs and draws the answer.
 import * as NMR from "../nmr.js";
 import NMRPlot from "../plot.js";
+import NMRRows from "../rows.js";
 
 export default {
   id: "identify",
@@ -28,18 +29,28 @@ export default {
       },
     ];
 
-    const card = el("section", { class: "card card-wide", id: "card-ident", "aria-labelledby": "ident-title" });
-    card.append(
-      el("h2", { id: "ident-title" }, "Pattern finder"),
-      el("p", { class: "intro" }, "Give the measured lines of one multiplet. The finder ranks first-order explanations: groups of equivalent partners, how many of each, and their J."),
-    );
-    const demoBar = el("div", { class: "presets", role: "group", "aria-label": "Example peak lists (invented)" });
-    card.append(el("p", { class: "hint" }, "Examples (invented samples), one tap to load:"), demoBar);
+    const card = NMRRows.card({
+      id: "card-ident", prefix: "ident", title: "Pattern finder",
+      intro: "Give the measured lines of one multiplet. The finder ranks first-order explanations: groups of equivalent partners, how many of each, and their J.",
+      examplesLabel: "Example peak lists (invented)", examplesHint: "Examples (invented samples), one tap to load:", examples: DEMOS,
+      pick: (demo) => {
+        fixed.observe.input.value = demo.observe;
+        fixed.magnet.input.value = demo.magnet;
+        fixed.magnet.unitSelect.value = "MHz";
+        fixed.partners.input.value = demo.partners;
+        fixed.unit.input.value = "";
+        for (const f of [fixed.observe, fixed.magnet, fixed.partners, fixed.unit]) f.save();
+        peaklist.value = demo.peaklist;
+        NMR.remember(LIST_KEY, peaklist.value);
+        setMode("paste");
+        run();
+      },
+    });
 
     const fixed = {
       observe: NMR.sharedField("ident", { id: "observe", label: "Observed nucleus", value: "1H", list: "nuclide-list", keys: ["observe"] }),
       magnet: NMR.sharedField("ident", {
-        id: "magnet", label: "Magnet", value: "400", inputmode: "decimal", units: NMR.MAGNET_UNITS, keys: ["spectrometer", "field"],
+        id: "magnet", label: "Magnet", value: "400", units: NMR.MAGNET_UNITS, keys: ["spectrometer", "field"],
         hint: "Needed for ppm positions; blank for Hz offsets only.",
       }),
       unit: NMR.sharedField("ident", {
@@ -51,13 +62,13 @@ export default {
         hint: "Nuclides, elements or spins (1/2, spin=3/2), comma-separated. Blank: spin 1/2 first on 1H, 13C, 19F and 31P (higher spins only when the intensities need them), and natural-abundance satellites for a weak symmetric pair.",
       }),
       tolerance: NMR.sharedField("ident", {
-        id: "tolerance", label: "Position tolerance (Hz)", value: "", inputmode: "decimal", placeholder: "from the data", keys: ["tolerance"],
+        id: "tolerance", param: "identify.tolerance", value: "", placeholder: "from the data", keys: ["tolerance"],
       }),
       linewidth: NMR.sharedField("ident", {
-        id: "linewidth", label: "Line width (Hz), if known", value: "", inputmode: "decimal", placeholder: "not known", keys: ["linewidth"],
+        id: "linewidth", label: "Line width (Hz), if known", value: "", placeholder: "not known", keys: ["linewidth"],
       }),
       resolution: NMR.sharedField("ident", {
-        id: "resolution", label: "Digital resolution (Hz per point), if known", value: "", inputmode: "decimal", placeholder: "not known", keys: ["digital_resolution"],
+        id: "resolution", label: "Digital resolution (Hz per point), if known", value: "", placeholder: "not known", keys: ["digital_resolution"],
       }),
       maxGroups: NMR.sharedField("ident", {
         id: "max_groups", label: "Most groups of partners", kind: "select", keys: ["max_groups"],
@@ -105,37 +116,31 @@ export default {
     const tableBox = el("div", { id: "ident-table-box" });
     const rowsBody = el("tbody", { id: "ident-rows" });
     const linesError = el("p", { class: "field-error", id: "ident-lines-error", "aria-live": "polite" });
-    const rowErrors = new Map();
     const saveRows = () => NMR.remember(ROWS_KEY, rows);
+    const rowKit = NMRRows.kit({ onEdit: saveRows, onRemove: () => { saveRows(); drawRows(); } });
+    const { errors } = rowKit;
 
-    function cellInput(i, key, label) {
-      const id = `ident-l${i}-${key}`;
-      const input = el("input", {
-        type: "text", id, autocomplete: "off", spellcheck: "false", inputmode: "decimal",
-        "aria-label": `Line ${i + 1} ${label}`, "aria-describedby": `${id}-error`,
-      });
-      input.value = rows[i][key];
-      input.addEventListener("input", () => {
-        rows[i][key] = input.value;
-        saveRows();
-      });
-      const error = el("p", { class: "field-error", id: `${id}-error`, "aria-live": "polite" });
-      const wrap = el("div", { class: "field" }, input, error);
-      rowErrors.set(`lines.${i}.${key}`, { wrap, input, error });
-      return el("td", {}, wrap);
+    // a table cell: the input named by its aria-label (the column head labels it on screen);
+    // a bare position is in the unit chosen above, or carries its own ("2412.5 Hz"), so no decimal keypad
+    function cellInput(i, key, attrs) {
+      const label = NMR.param(`identify.lines.${key}`)?.label || key;
+      return el("td", {}, rowKit.input({
+        id: `ident-l${i}-${key}`, key: `lines.${i}.${key}`, label: null, value: rows[i][key], name: `Line ${i + 1}, ${label.toLowerCase()}`,
+        onInput: (v) => { rows[i][key] = v; }, attrs: { "aria-label": `Line ${i + 1} ${label.toLowerCase()}`, ...attrs },
+      }));
     }
     function drawRows() {
-      rowErrors.clear();
-      rowsBody.replaceChildren(...rows.map((_, i) => {
-        const remove = el("button", { type: "button", class: "small-button", "aria-label": `Remove line ${i + 1}` }, "Remove");
-        remove.addEventListener("click", () => {
+      errors.reset();
+      errors.add("peaklist", peaklist, peaklistError, null);
+      errors.add("lines", null, linesError, null);
+      rowsBody.replaceChildren(...rows.map((_, i) => el("tr", {},
+        el("th", { scope: "row", class: "num" }, String(i + 1)),
+        cellInput(i, "position", {}),
+        cellInput(i, "intensity", { inputmode: "decimal" }),
+        el("td", {}, rowKit.remove(`Remove line ${i + 1}`, () => {
           rows.splice(i, 1);
           if (!rows.length) rows.push({ position: "", intensity: "1" });
-          saveRows();
-          drawRows();
-        });
-        return el("tr", {}, el("th", { scope: "row", class: "num" }, String(i + 1)), cellInput(i, "position", "position"), cellInput(i, "intensity", "intensity"), el("td", {}, remove));
-      }));
+        })))));
     }
     const addRow = el("button", { type: "button", class: "small-button", id: "ident-add-line" }, "+ Add line");
     addRow.addEventListener("click", () => {
@@ -156,11 +161,9 @@ export default {
       for (const [value, button] of Object.entries(modeButtons)) button.setAttribute("aria-pressed", String(value === mode));
     }
 
-    const submit = el("button", { type: "submit", class: "primary", id: "ident-find" }, "Find patterns");
-    const formError = el("p", { class: "form-error", id: "ident-form-error", "aria-live": "polite" });
-    const cancel = el("button", { type: "button", class: "small-button", id: "ident-cancel" }, "Cancel");
-    const busy = el("div", { class: "busy", id: "ident-busy", hidden: true, role: "status" }, el("span", {}, "Searching…"), cancel);
-    formNode.append(modeBox, pasteBox, tableBox, el("div", { class: "actions" }, submit, busy, formError));
+    const bar = NMRRows.actionBar("ident", "Find patterns", "Searching…", "ident-find");
+    const { busy, cancel, formError } = bar;
+    formNode.append(modeBox, pasteBox, tableBox, bar.node);
     card.append(formNode);
 
     // ---------- results ----------
@@ -186,7 +189,8 @@ export default {
     openBox.append(openButton, openNote);
     const notes = el("ul", { class: "notes", id: "ident-notes" });
     const warn = el("ul", { class: "warnings", id: "ident-warnings" });
-    out.append(headline, centre, warn, candidatesBox, plotTitle, plotBox, stackLabel, openBox, el("h3", { class: "sub-title" }, "Notes"), notes);
+    const linesBox = el("div", { id: "ident-lines" });
+    out.append(headline, centre, warn, candidatesBox, plotTitle, plotBox, stackLabel, openBox, linesBox, el("h3", { class: "sub-title" }, "Notes"), notes);
     card.append(out);
     const pin = NMR.pinSource({
       id: "ident", node: card, fields: Object.values(fixed), run: () => run(),
@@ -243,36 +247,13 @@ export default {
       return req;
     }
 
-    function clearErrors() {
-      for (const f of Object.values(fixed)) f.setError("");
-      for (const target of [{ input: peaklist, error: peaklistError, wrap: pasteBox }, { input: null, error: linesError, wrap: null }, ...rowErrors.values()]) {
-        target.error.textContent = "";
-        if (target.input) target.input.removeAttribute("aria-invalid");
-        if (target.wrap) target.wrap.classList.remove("has-error");
-      }
-      formError.textContent = "";
-    }
-    function showError(field, message) {
-      const key = field || "";
-      const owner = Object.values(fixed).find((f) => f.ownsKey(key));
-      if (owner) return owner.setError(message);
-      let target = null;
-      if (key === "peaklist" || (key === "lines" && mode === "paste")) target = { input: peaklist, error: peaklistError, wrap: pasteBox };
-      else if (key === "lines") target = { input: null, error: linesError, wrap: null };
-      else if (key.startsWith("lines.")) {
-        const [, k, ...rest] = key.split(".");
-        const i = sentRows[Number(k)];
-        target = rowErrors.get(`lines.${i}.${rest.join(".")}`) || rowErrors.get(`lines.${i}.position`) || { input: null, error: linesError, wrap: null };
-      }
-      if (!target) {
-        formError.textContent = message;
-        return;
-      }
-      // beside its own cell, an API message's leading "lines.N.key:" path says nothing more
-      target.error.textContent = target.input && key.startsWith("lines.") ? message.replace(/^lines\.\d+\.\w+:\s*/, "") : message;
-      if (target.input) target.input.setAttribute("aria-invalid", "true");
-      if (target.wrap) target.wrap.classList.add("has-error");
-    }
+    const report = NMRRows.errorReport(errors, Object.values(fixed), formError, (key) => {
+      if (key === "peaklist" || (key === "lines" && mode === "paste")) return errors.find("peaklist");
+      if (!key.startsWith("lines")) return null;
+      // a request index of "lines" is the sentRows[index]-th typed row (empty rows are not sent)
+      const [, k, ...rest] = key.split(".");
+      return errors.find(k === undefined ? "lines" : ["lines", sentRows[Number(k)], ...rest].join("."), [".position"]);
+    });
 
     function groupText(g, spins) {
       const J = `J ${short(g.J_Hz, 5)} Hz`;
@@ -282,6 +263,7 @@ export default {
     }
 
     let result = null;
+    let sentRequest = null;
     let chosen = 0;
     let pickButtons = [];
     function drawPlot() {
@@ -306,6 +288,11 @@ export default {
       });
       if (focus) pickButtons[i].focus();
       drawPlot();
+      linesBox.replaceChildren(...NMRRows.lineTable({
+        id: "ident-lines", title: `Lines of candidate ${i + 1}`, request: sentRequest, lines: result.candidates[i].lines,
+        fileName: "pattern-finder-lines", hzLabel: "Position (Hz)", note: "position on the measured list's scale",
+        caption: `Predicted lines of candidate ${i + 1} (${result.candidates[i].label}), high to low ppm`,
+      }));
     }
 
     async function render(r, warnings) {
@@ -379,38 +366,23 @@ export default {
         return { sent, response: await NMR.api(sent) };
       },
       show: async ({ sent, response }) => {
-        clearErrors();
+        report.clear();
         card.classList.toggle("is-error", !response.ok);
         if (!response.ok) {
-          showError(response.error.field, response.error.message);
+          report.show(response.error.field, response.error.message);
           out.classList.add("stale");
           pin.update(null);
           return;
         }
         out.classList.remove("stale");
         out.hidden = false;
+        sentRequest = sent;
         await render(response.result, response.warnings || []);
         pin.update({ request: sent, result: response.result });
       },
     });
     formNode.addEventListener("input", () => out.classList.add("stale"));
 
-    for (const demo of DEMOS) {
-      const button = el("button", { type: "button", class: "preset" }, demo.name);
-      button.addEventListener("click", () => {
-        fixed.observe.input.value = demo.observe;
-        fixed.magnet.input.value = demo.magnet;
-        fixed.magnet.unitSelect.value = "MHz";
-        fixed.partners.input.value = demo.partners;
-        fixed.unit.input.value = "";
-        for (const f of [fixed.observe, fixed.magnet, fixed.partners, fixed.unit]) f.save();
-        peaklist.value = demo.peaklist;
-        NMR.remember(LIST_KEY, peaklist.value);
-        setMode("paste");
-        run();
-      });
-      demoBar.append(button);
-    }
     drawRows();
     showMode();
     NMR.whenShown(card, () => {
