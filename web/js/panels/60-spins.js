@@ -146,7 +146,8 @@ NMR.registerPanel({
               }
               save();
             });
-            cell.addEventListener("change", () => drawRows());
+            // mirror the lower triangle once focus leaves the matrix, redrawing only the matrix: a redraw of every row replaced the input just tapped (what was typed there was lost)
+            cell.addEventListener("focusout", (event) => { if (!event.relatedTarget || !event.relatedTarget.closest(".matrix")) couplingBox.replaceChildren(...drawCouplingMatrix()); });
             if (k >= 0) errorTargets.set(`couplings.${k}.J`, { input: cell, error: null });
             tr.append(el("td", {}, cell));
           }
