@@ -291,7 +291,7 @@ const NMR = (() => {
   }
 
   // ---------- forms ----------
-  // A field: {id, label, kind: "text"|"select"|"checkbox", value, keys, hint,
+  // A field: {id, label, kind: "text"|"select"|"checkbox", value, keys, hint, required,
   //           options: [[value, label]], units: [{unit, label, key}], list, inputmode}
   // keys: the request keys whose errors belong beside this field.
   function buildField(form, spec) {
@@ -423,7 +423,11 @@ const NMR = (() => {
       const request = override || spec.request(values);
       const mine = ++sequence;
       const busyTimer = setTimeout(() => { busy.hidden = false; }, 250);
-      const response = await api(request);
+      // a field this card cannot do without (spec field `required: true`), left empty: said beside it, no call
+      const empty = override ? null : own.find((f) => f.field.required && values[f.field.id].value === "");
+      const response = empty
+        ? { ok: false, error: { field: empty.field.id, message: `${empty.field.label}: required${empty.field.placeholder ? ` (${empty.field.placeholder})` : ""}.` } }
+        : await api(request);
       clearTimeout(busyTimer);
       if (mine !== sequence) return;
       busy.hidden = true;

@@ -24,7 +24,7 @@ NMR.registerPanel({
       intro: "The frequency of its 0 ppm reference (from Ξ) at this magnet — where a spectrometer is set — and the Larmor frequency of the bare nucleus.",
       shared: [magnet],
       fields: [
-        { id: "nucleus", label: "Nucleus", value: "13C", list: "nuclide-list", placeholder: "e.g. 13C, 15N, 31P" },
+        { id: "nucleus", label: "Nucleus", value: "13C", list: "nuclide-list", placeholder: "e.g. 13C, 15N, 31P", required: true },
         {
           id: "scale", label: "Reference scale", kind: "select",
           options: [["unified", "Unified (TMS-based)"], ["biomolecular", "Biomolecular (DSS)"]],

@@ -324,7 +324,8 @@ NMR.registerPanel({
         const overlay = fixed.overlay.read().value;
         const single = { ...baseRequest(), ...NMR.magnetRequest(fixed.magnet.read()), first_order: true };
         const several = { ...baseRequest(), fields: fieldList() };
-        const [one, many] = await Promise.all([NMR.api(single), NMR.api(several)]);
+        // an empty list of several fields: no several-fields view (not an error about the magnet)
+        const [one, many] = await Promise.all([NMR.api(single), several.fields === "" ? null : NMR.api(several)]);
         return { overlay, single, one, many };
       },
       show: ({ overlay, single, one, many }) => {
@@ -339,7 +340,9 @@ NMR.registerPanel({
         out.classList.remove("stale");
         renderSingle(one.result, one.warnings || [], overlay);
         pin.update({ request: single, result: one.result });
-        if (many.ok) {
+        if (!many) {
+          stack.node.hidden = true;
+        } else if (many.ok) {
           renderFields(many.result);
           stack.node.hidden = false;
         } else {
