@@ -77,6 +77,7 @@ class Param:
     items: tuple[Param, ...] = ()
     example: Any = None              # a valid value, for docs and the fuzz
     cli: str | None = None           # flag or positional name; "-" keeps it off the CLI
+    cli_aliases: tuple[str, ...] = ()  # further flags for the same key (e.g. --magnet)
     cli_order: tuple[str, ...] = ()  # objects: the item keys a CLI text fills, in order
     cli_sep: str = ","               # objects: separates an item's parts; another one lets "," separate items
     file: bool = False               # text: the CLI reads it from a file ('-' = standard input)
@@ -139,7 +140,8 @@ def _unit_name(kind: str | None) -> str | None:
 # The magnet, shared by every op that needs one.
 MAGNET = (
     Param("spectrometer", "quantity", unit="magnet_MHz", label="Spectrometer (¹H frequency)",
-          help="the magnet named by its 1H frequency, e.g. '400.13 MHz'", example="400.13 MHz"),
+          help="the magnet named by its 1H frequency, e.g. '400.13 MHz' (or its field, '9.4 T')",
+          example="400.13 MHz", cli_aliases=("--magnet",)),
     Param("field", "quantity", unit="magnet_T", label="Field B₀",
           help="the magnet as a flux density, e.g. '9.4 T' or '94000 G' (instead of spectrometer)"),
 )
@@ -167,7 +169,7 @@ def check(op: Op, request: dict) -> dict:
     return _with_defaults(op.params, request)
 
 
-def _with_defaults(params, obj: dict) -> dict:
+def _with_defaults(params: tuple[Param, ...], obj: dict) -> dict:
     out = dict(obj)
     for p in params:
         if p.default is not None and out.get(p.key) in (None, ""):
@@ -181,7 +183,7 @@ def _given(obj: dict, key: str) -> bool:
     return obj.get(key) not in (None, "")
 
 
-def _all_keys(params, where: str = "") -> dict[str, str]:
+def _all_keys(params: tuple[Param, ...], where: str = "") -> dict[str, str]:
     """Every declared key of a request, anywhere in it → the level it belongs to ('' = top level)."""
     out: dict[str, str] = {}
     for p in params:
@@ -192,7 +194,9 @@ def _all_keys(params, where: str = "") -> dict[str, str]:
     return out
 
 
-def _check_object(params, obj: dict, prefix: str, extra: set[str], everywhere: dict[str, str]) -> None:
+def _check_object(
+    params: tuple[Param, ...], obj: dict, prefix: str, extra: set[str], everywhere: dict[str, str]
+) -> None:
     declared = {p.key: p for p in params}
     for key in obj:
         if key in declared or key in extra:
@@ -209,7 +213,7 @@ def _check_object(params, obj: dict, prefix: str, extra: set[str], everywhere: d
         _check_value(p, value, prefix + p.key, everywhere)
 
 
-def _safe_key(key) -> str:
+def _safe_key(key: object) -> str:
     text = str(key)
     return text if len(text) <= 60 else text[:57] + "…"
 
@@ -236,7 +240,7 @@ def _unknown_message(key: str, declared: dict, everywhere: dict[str, str], prefi
     return f"{prefix}{shown}: unknown key for {'this item' if level else 'this op'}; the keys are: {known}."
 
 
-def _check_value(p: Param, value, where: str, everywhere: dict[str, str]) -> None:
+def _check_value(p: Param, value: Any, where: str, everywhere: dict[str, str]) -> None:
     kind = p.kind
     if kind == "quantity":
         from nmrcalc.api.fields import bounded
@@ -299,7 +303,7 @@ def _check_value(p: Param, value, where: str, everywhere: dict[str, str]) -> Non
             raise InputError(f"{where}: give two spins, e.g. [0, 1] or [\"A\", \"B\"].", where)
 
 
-def _split(value, where: str, p: Param) -> list:
+def _split(value: Any, where: str, p: Param) -> list:
     if isinstance(value, str):
         from nmrcalc.units import split_list
         value = split_list(value, where)
@@ -310,7 +314,7 @@ def _split(value, where: str, p: Param) -> list:
     return value
 
 
-def _in_bounds(p: Param, value, where: str) -> None:
+def _in_bounds(p: Param, value: Any, where: str) -> None:
     lo, hi = p.bounds
     if (lo is not None and value < lo) or (hi is not None and value > hi):
         if lo is not None and hi is not None:
@@ -341,7 +345,7 @@ _TYPICAL = {"field": "11.74 T", "frequency": "500 MHz", "coupling": "7 Hz", "shi
             "temperature": "298 K", "wavelength": "254 nm", "wavenumber": "1700 cm-1", "percent": 1}
 
 
-def example_value(p: Param):
+def example_value(p: Param) -> Any:
     """A valid value of ``p``: its declared example, else one that follows from its kind (or None)."""
     if p.example is not None:
         return p.example

@@ -4,9 +4,10 @@
 // row to leave a peak out), and send a region's peaks to the pattern finder.
 // Every number comes from the ops read_spectrum and pick_peaks; this file only
 // maps points to the plot (a linear axis between the first and last x given).
-"use strict";
+import * as NMR from "../nmr.js";
+import NMRPlot from "../plot.js";
 
-NMR.registerPanel({
+export default {
   id: "spectrum",
   title: "Measured spectrum",
   build(container) {
@@ -215,4 +216,4 @@ NMR.registerPanel({
       if (!NMR.openInputs("identify", "ident", inputs)) sendNote.textContent = "The pattern finder is not part of this page.";
     });
   },
-});
+};
