@@ -157,6 +157,7 @@ let readyText = "Ready";
 
 function onWorkerMessage(event) {
   const message = event.data;
+  heard();
   if (message.type === "progress") {
     const [fraction, text] = STAGES[message.stage] || [0.5, message.detail];
     setBoot(fraction, text, "loading");
@@ -217,10 +218,40 @@ function onWorkerCrash(detail) {
   startWorker();
 }
 
+// ---------- heartbeat ----------
+// A worker that stops without an error event (terminated from outside, killed) would leave every
+// call waiting forever. It is pinged whenever it should be idle: every HEARTBEAT_MS with no call
+// pending, and just before a call sent to an idle worker (a live worker answers that ping before it
+// starts the call). No message within PONG_MS means it is gone: pending calls fail with a message
+// and a fresh worker starts (onWorkerCrash). A worker busy in Python answers no ping, so none is sent
+// while a call runs; the page being busy itself (the answer waiting behind it) only asks again.
+const HEARTBEAT_MS = 5000;
+const PONG_MS = 4000;
+let pongTimer = null;
+function ping() {
+  if (!workerReady || pongTimer !== null) return;
+  const target = worker;
+  const sent = performance.now();
+  pongTimer = setTimeout(() => {
+    pongTimer = null;
+    if (target !== worker || !workerReady) return;
+    if (performance.now() - sent > PONG_MS + 1000) ping();  // this page was busy: the answer may be queued
+    else onWorkerCrash("no answer to the heartbeat: the worker stopped without an error");
+  }, PONG_MS);
+  worker.postMessage({ type: "ping" });
+}
+/** Any message from the worker shows it is alive. */
+function heard() {
+  clearTimeout(pongTimer);
+  pongTimer = null;
+}
+setInterval(() => { if (waiting.size === 0) ping(); }, HEARTBEAT_MS);
+
 // The worker was started by boot.js (NMRBoot) before this script ran; it is
 // adopted on the first start and replaced by a fresh one on every later start.
 function startWorker() {
   workerReady = false;
+  heard();
   const listen = (event, from) => {
     if (from !== worker) return;  // a worker already replaced
     if (event.type === "message") {
@@ -247,6 +278,7 @@ function api(request) {
   return ready.then(() => new Promise((resolve) => {
     const id = nextId;
     nextId += 1;
+    if (waiting.size === 0) ping();  // answered before the call starts, if the worker is alive
     waiting.set(id, resolve);
     window.nmrcalcStatus.pending = waiting.size;
     worker.postMessage({ type: "call", id, text: JSON.stringify(request) });
