@@ -662,7 +662,11 @@ function registerServiceWorker() {
     if (node) node.textContent = text;
   };
   // a worker becomes "installed" only once every file is in the cache (cache.addAll is all or nothing)
+  let offered = null;
   const offerReload = (waitingWorker) => {
+    if (offered === waitingWorker) return;  // seen both as installing and as waiting
+    offered = waitingWorker;
+    offline("Ready for offline use (this version); a new version is stored too and waits for a reload.");
     const button = el("button", { type: "button", class: "small-button", id: "update-reload" }, "Reload now");
     button.addEventListener("click", () => {
       navigator.serviceWorker.addEventListener("controllerchange", () => location.reload());
@@ -675,6 +679,7 @@ function registerServiceWorker() {
     const check = () => {
       if (sw.state === "installed" && hadController) offerReload(sw);
       else if (sw.state === "activated") offline("Ready for offline use: every file of this page is stored in this browser.");
+      else if (sw.state === "redundant" && hadController) offline("Ready for offline use (this version); a newer version could not be stored (reload while online to try again).");
       else if (sw.state === "redundant") offline("Not ready for offline use: the files could not all be stored (reload while online to try again).");
     };
     sw.addEventListener("statechange", check);
