@@ -172,7 +172,8 @@ def _line_dicts(lines, ref_MHz):
     return [{"Hz": x, "ppm": x / ref_MHz, "intensity": y} for x, y in lines]
 
 
-def _blame_far_shift(spins, labels, found, ref_MHz: float, width_Hz: float, proton_MHz: float) -> None:
+def _blame_far_shift(spins: list[tuple[Nuclide, float, int]], labels: list[str], found: list[tuple[float, float, int]],
+                     ref_MHz: float, width_Hz: float, proton_MHz: float) -> None:
     """The sampled spectrum would need too many points: when one observed spin lies so far from the
     others that the rest would fit (typically a misplaced decimal point, 365 for 3.65), refuse on
     that spin's shift, so the message sits beside it; otherwise the caller blames the line width.
