@@ -7,8 +7,9 @@ Page section (needs `npm ci` and chromium):
 * bare Pyodide boot: a minimal page that only runs loadPyodide() from a localhost server;
 * the page's time to first result: navigation start to the first computed value shown,
   for the single file from file:// and for the folder build on localhost (fresh context each run;
-  at least BOOT_RUNS boots of each, interleaved);
-* single-file size against the Pyodide core files it embeds.
+  at least BOOT_RUNS boots of each, interleaved), with median, min and max, each round's ratio to
+  its bare boot, and how many boots started Python from the build's memory snapshot;
+* single-file size against the Pyodide core files it embeds, and the snapshot's size.
 * summary: each speed and size target with PASS or MISS (a report: the script exits 0 either way).
 
 Compute sections (one fresh folder build in bench_results/tmp/web, one page on localhost;
@@ -20,7 +21,8 @@ page figures are timed in the page with performance.now around nmrcalcTest.api, 
 * identify: the pattern finder on a 20-line multiplet, page and CPython.
 
 Engines section (chromium, firefox-esr, WebKitGTK's MiniBrowser under Xvfb; see tests/browser/conftest.py):
-* per engine, one run each: bare Pyodide boot, first result of both builds as ratios to it;
+* per engine, one run each: bare Pyodide boot, first result of both builds as ratios to it
+  (and whether Python started from the snapshot);
 * Python's wasm memory after each panel (reported by the worker with every reply).
 
 Usage: python build_scripts/benchmark.py [--runs N] [--only page|engines|latency|multiplets|spins|identify|summary]
@@ -105,8 +107,8 @@ class Bench:
             self._playwright.stop()
 
 
-def _time_until(bench: Bench, url: str, expression: str, timeout_s: float = 120) -> float:
-    """Milliseconds from navigation start until ``expression`` (evaluated in the page) is a number."""
+def _in_fresh_page(bench: Bench, url: str, expression: str, timeout_s: float = 120):
+    """The first value of ``expression`` (polled in url, opened in a fresh browser context) that is not null."""
     context = bench.browser().new_context()
     try:
         page = context.new_page()
@@ -114,12 +116,17 @@ def _time_until(bench: Bench, url: str, expression: str, timeout_s: float = 120)
         deadline = time.monotonic() + timeout_s
         while time.monotonic() < deadline:
             value = page.evaluate(expression)
-            if isinstance(value, (int, float)):
-                return float(value)
+            if value is not None:
+                return value
             time.sleep(0.05)
         raise TimeoutError(f"{url}: {expression} not set within {timeout_s} s")
     finally:
         context.close()
+
+
+def _time_until(bench: Bench, url: str, expression: str) -> float:
+    """Milliseconds from navigation start until ``expression`` (evaluated in the page) is a number."""
+    return float(_in_fresh_page(bench, url, f"(() => {{ const v = {expression}; return typeof v === 'number' ? v : null; }})()"))
 
 
 BOOT_RUNS = 9
@@ -141,35 +148,56 @@ def bare_and_site(dist: Path):
             yield bare_url, site_url
 
 
+# one boot of the page: navigation start to the first result shown (first) and to the worker's
+# ready message (ready), and how Python started ("snapshot" or "fresh")
+PAGE_BOOT = """(() => { const s = window.nmrcalcStatus;
+  if (!s || typeof s.timings.firstResult !== "number") return null;
+  return { first: s.timings.firstResult, ready: s.timings.ready, start: s.start ? s.start.how : "unknown" }; })()"""
+
+
+def _spread(values: list[float], unit: str = "s", scale: float = 1000) -> str:
+    return f"median {statistics.median(values) / scale:.3f} {unit}, min {min(values) / scale:.3f}, max {max(values) / scale:.3f}"
+
+
 def page_section(bench: Bench) -> list:
+    """Boot: the page's time to first result in both builds beside a bare Pyodide boot (Chromium), and sizes."""
     dist = ROOT / "dist"
     if build_web.main(["--out", str(dist)]) != 0:
         raise SystemExit("build failed")
     single = dist / "nmrcalc.html"
-    timings: dict[str, list[float]] = {"bare": [], "single": [], "site": []}
+    bare: list[float] = []
+    boots: dict[str, list[dict]] = {"single": [], "site": []}
     with bare_and_site(dist) as (bare_url, site_url):
         # interleaved, so a change in machine load affects all three alike; at least
         # BOOT_RUNS boots each, since one boot varies by about a tenth on a 2-core machine
         for _ in range(max(bench.runs, BOOT_RUNS)):
-            timings["bare"].append(_time_until(bench, bare_url + "index.html", "window.bareBootMs"))
-            timings["single"].append(_time_until(bench, single.resolve().as_uri(), FIRST_RESULT))
-            timings["site"].append(_time_until(bench, site_url + "index.html", FIRST_RESULT))
-    bare_ms, single_ms, site_ms = (statistics.median(timings[k]) for k in ("bare", "single", "site"))
+            bare.append(_time_until(bench, bare_url + "index.html", "window.bareBootMs"))
+            boots["single"].append(_in_fresh_page(bench, single.resolve().as_uri(), PAGE_BOOT))
+            boots["site"].append(_in_fresh_page(bench, site_url + "index.html", PAGE_BOOT))
+    bare_ms = statistics.median(bare)
     core = build_web.core_size()
     size = single.stat().st_size
-    _target(bench, "single file: time to first result / bare boot", single_ms / bare_ms, 1.15, "x", at_most=True)
-    _target(bench, "folder build: time to first result / bare boot", site_ms / bare_ms, 1.15, "x", at_most=True)
-    _target(bench, "single file size / Pyodide core files", size / core, 1.10, "x", at_most=True)
-    return [
-        f"  median of {len(timings['bare'])} boots each, interleaved",
-        ("bare Pyodide boot (localhost, main thread)", bare_ms / 1000, "s"),
-        ("single file, file://: time to first result", single_ms / 1000, "s"),
-        ("single file / bare boot", single_ms / bare_ms, "x"),
-        ("folder build, localhost: time to first result", site_ms / 1000, "s"),
-        ("folder build / bare boot", site_ms / bare_ms, "x"),
+    snapshot = (dist / "site" / build_web.SNAPSHOT).stat().st_size
+    rows: list = [f"  {len(bare)} boots each, interleaved (bare, single file, folder, bare, ...); fresh browser context each",
+                  f"  bare Pyodide boot (localhost, main thread: loadPyodide + one runPython): {_spread(bare)}"]
+    for key, text in (("single", "single file, file://"), ("site", "folder build, localhost")):
+        first = [b["first"] for b in boots[key]]
+        ratio = statistics.median(first) / bare_ms
+        per_round = [b["first"] / a for b, a in zip(boots[key], bare)]
+        starts = sum(b["start"] == "snapshot" for b in boots[key])
+        rows += [f"  {text}: time to first result: {_spread(first)}",
+                 f"  {text}: worker ready: {_spread([b['ready'] for b in boots[key]])}",
+                 (f"{text}: first result / bare boot (medians)", ratio, "x"),
+                 f"    each round's ratio: min {min(per_round):.3f}, max {max(per_round):.3f};"
+                 f" Python from the snapshot in {starts} of {len(first)} boots"]
+        _target(bench, f"{key}: time to first result / bare boot", ratio, 1.00, "x", at_most=True)
+    _target(bench, "single file size / Pyodide core files", size / core, 1.5, "x", at_most=True)
+    return rows + [
         ("Pyodide core files", core / 1e6, "MB"),
         ("single file size", size / 1e6, "MB"),
         ("single file / Pyodide core", size / core, "x"),
+        ("start-up snapshot (gzip; in the folder build)", snapshot / 1e6, "MB"),
+        ("start-up snapshot in the single file (base64)", 4 * -(-snapshot // 3) / 1e6, "MB"),
     ]
 
 
@@ -619,6 +647,7 @@ def _engine_time(driver: _EngineDriver, url: str, expression: str, timeout_s: fl
     raise TimeoutError(f"{driver.engine} {url}: {expression} not set within {timeout_s} s")
 
 
+START_JS = "return window.nmrcalcStatus.start ? 'from ' + window.nmrcalcStatus.start.how : 'start unknown'"
 IDLE_JS = "window.nmrcalcStatus.pending === 0 && [...document.querySelectorAll('.busy')].every(b => b.hidden)"
 
 
@@ -663,10 +692,14 @@ def engines_section(bench: Bench) -> list:
             try:
                 bare_ms = _engine_time(driver, bare_url + "index.html", "window.bareBootMs")
                 single_ms = _engine_time(driver, (dist / "nmrcalc.html").resolve().as_uri(), FIRST_RESULT)
+                single_start = driver.js(START_JS)
                 site_ms = _engine_time(driver, site_url + "index.html", FIRST_RESULT)
+                site_start = driver.js(START_JS)
                 rows += [(f"{engine}: bare Pyodide boot", bare_ms / 1000, "s"),
                          (f"{engine}: single file first result / bare boot", single_ms / bare_ms, "x"),
-                         (f"{engine}: folder build first result / bare boot", site_ms / bare_ms, "x")]
+                         (f"{engine}: folder build first result / bare boot", site_ms / bare_ms, "x"),
+                         f"    {engine}: first result {single_ms / 1000:.3f} s (single file, Python {single_start}),"
+                         f" {site_ms / 1000:.3f} s (folder build, Python {site_start})"]
                 if engine == "chromium":
                     memory = _memory_per_panel(driver, site_url + "index.html")
             except Exception as exc:  # one engine that fails must not hide the others
@@ -726,6 +759,7 @@ def main(argv: list[str] | None = None) -> int:
     try:
         for name in args.only or list(SECTIONS):
             lines.append(f"[{name}]")
+            began = time.monotonic()
             try:
                 rows = SECTIONS[name](bench)
             except Exception as exc:  # one broken section must not hide the others' figures
@@ -733,6 +767,8 @@ def main(argv: list[str] | None = None) -> int:
                 rows = [f"  FAILED: {type(exc).__name__}: {exc}"]
             for row in rows:  # (label, value, unit) or a preformatted line
                 lines.append(row if isinstance(row, str) else f"  {row[0]:<48} {row[1]:10.3f} {row[2]}")
+            load = "load average {:.2f} {:.2f} {:.2f}".format(*os.getloadavg()) if hasattr(os, "getloadavg") else "load unknown"
+            lines.append(f"  (section took {time.monotonic() - began:.0f} s; {load} at its end)")
             print(f"benchmark: {name} {'FAILED' if name in failed else 'done'}", file=sys.stderr, flush=True)
     finally:
         _STACK.close()

@@ -20,6 +20,7 @@ import gzip
 import hashlib
 import io
 import json
+import os
 import shutil
 import struct
 import subprocess
@@ -27,6 +28,7 @@ import sys
 import tempfile
 import zipfile
 import zlib
+from collections.abc import Callable
 from pathlib import Path
 
 ROOT = Path(__file__).resolve().parent.parent
@@ -75,7 +77,34 @@ def page_script() -> str:
 
 def package_zip(package_dir: Path) -> bytes:
     """Every .py file of the package (as ``nmrcalc/...``) plus the worker bridge module, with bytecode."""
-    return with_bytecode(source_zip(package_dir))
+    source = source_zip(package_dir)
+    return cached("bytecode", [source, (ROOT / "build_scripts" / "bytecode.mjs").read_bytes(), *pyodide_inputs()],
+                  lambda: with_bytecode(source))
+
+
+CACHE = ROOT / "build" / "cache"
+
+
+def pyodide_inputs() -> list[bytes]:
+    """The Pyodide files that bytecode and snapshot depend on (its Python, its wasm build)."""
+    return [(PYODIDE_DIR / name).read_bytes() for name in ("pyodide.asm.wasm", "pyodide.asm.mjs", "python_stdlib.zip")]
+
+
+def cached(kind: str, inputs: list[bytes], make: Callable[[], bytes]) -> bytes:
+    """make()'s bytes, kept in build/cache/ under the sha256 of everything they are made from, so a build
+    whose package and Pyodide are unchanged (a page-only change) skips the minute of Pyodide in Node."""
+    digest = hashlib.sha256(b"".join(hashlib.sha256(data).digest() for data in inputs)).hexdigest()[:32]
+    path = CACHE / f"{kind}-{digest}"
+    if path.exists():
+        return path.read_bytes()
+    data = make()
+    CACHE.mkdir(parents=True, exist_ok=True)
+    for old in CACHE.glob(f"{kind}-*"):
+        old.unlink()
+    with tempfile.NamedTemporaryFile(dir=CACHE, delete=False) as handle:
+        handle.write(data)
+    os.replace(handle.name, path)
+    return data
 
 
 def with_bytecode(zip_bytes: bytes) -> bytes:
@@ -90,6 +119,39 @@ def with_bytecode(zip_bytes: bytes) -> bytes:
         if run.returncode != 0:
             raise SystemExit(f"bytecode compilation in Pyodide failed:\n{run.stderr[-2000:]}")
         return compiled.read_bytes()
+
+
+# What the first panel asks at start-up (the magnet panel's forms and the nuclide list): answered
+# once while the snapshot is made, so the snapshot holds every module and parsed table they need.
+WARM_UP = [
+    {"op": "frequency", "nucleus": "13C", "scale": "unified", "spectrometer": "400 MHz"},
+    {"op": "ppm_hz", "nucleus": "13C", "spectrometer": "400 MHz", "ppm": 77.16},
+    {"op": "acquisition_window", "nucleus": "13C", "spectrometer": "400 MHz", "low_ppm": -10, "high_ppm": 220,
+     "points": 65536},
+    {"op": "frequency", "spectrometer": "400 MHz", "spin_half_only": True},
+    {"op": "nuclides"},
+]
+SNAPSHOT = "python-snapshot.bin"  # Pyodide's memory after the package import and WARM_UP, gzip-compressed
+
+
+def memory_snapshot(package_bytes: bytes) -> bytes:
+    """Pyodide's memory snapshot (build_scripts/snapshot.mjs, in Node) with nmrcalc imported and WARM_UP
+    answered, gzip-compressed: the worker restores it instead of starting Python (web/worker.js)."""
+    script = (ROOT / "build_scripts" / "snapshot.mjs").read_bytes()
+    inputs = [package_bytes, script, json.dumps(WARM_UP).encode(), APP_ZIP.encode(), *pyodide_inputs()]
+    return cached("snapshot", inputs, lambda: make_snapshot(package_bytes))
+
+
+def make_snapshot(package_bytes: bytes) -> bytes:
+    with tempfile.TemporaryDirectory() as tmp:
+        package, snapshot, requests = Path(tmp) / "nmrcalc.zip", Path(tmp) / "snapshot.bin", Path(tmp) / "requests.json"
+        package.write_bytes(package_bytes)
+        requests.write_text(json.dumps([json.dumps(r) for r in WARM_UP]))
+        run = subprocess.run(["node", str(ROOT / "build_scripts" / "snapshot.mjs"), str(package), str(snapshot), APP_ZIP,
+                              str(requests)], capture_output=True, text=True)
+        if run.returncode != 0:
+            raise SystemExit(f"the Pyodide memory snapshot failed:\n{run.stderr[-2000:]}")
+        return gzip.compress(snapshot.read_bytes(), 9, mtime=0)
 
 
 def source_zip(package_dir: Path) -> bytes:
@@ -200,13 +262,14 @@ def fill(template: str, head: str, body: str, csp: str, version: str, params_jso
             .replace("@PARAMS@", params_json).replace("@BODY@", body))
 
 
-def build_site(out: Path, package_bytes: bytes, version: str, params_json: str) -> None:
+def build_site(out: Path, package_bytes: bytes, snapshot: bytes, version: str, params_json: str) -> None:
     if out.exists():
         shutil.rmtree(out)
     (out / "icons").mkdir(parents=True)
     for name in CORE_FILES:
         shutil.copyfile(PYODIDE_DIR / name, out / name)
     (out / "nmrcalc.zip").write_bytes(package_bytes)
+    (out / SNAPSHOT).write_bytes(snapshot)  # gzip inside, no .gz name: a server must not undo it on the way
     shutil.copyfile(WEB / "worker.js", out / "worker.js")
     shutil.copyfile(WEB / "css" / "app.css", out / "app.css")
     boot = (WEB / "boot.js").read_text()
@@ -242,14 +305,18 @@ def data_block(name: str, payload: bytes, kind: str, gzip_it: bool) -> str:
             f'data-kind="{kind}" data-gzip="{1 if gzip_it else 0}">{text}</script>')
 
 
-def build_single(out_file: Path, package_bytes: bytes, version: str, params_json: str) -> None:
+def build_single(out_file: Path, package_bytes: bytes, snapshot: bytes, version: str, params_json: str) -> None:
     css = (WEB / "css" / "app.css").read_text()
     script = page_script()
     # in the order the worker needs them; each is posted to it as soon as it is parsed
+    # (the snapshot is needed before Python starts, the standard library only while it starts;
+    # the snapshot is gzip-compressed already and unpacked by the worker itself)
     files = [("pyodide-lock.json", "asset", True), ("pyodide.mjs", "module", False), ("pyodide.asm.mjs", "module", True),
-             ("pyodide.asm.wasm", "asset", True), ("python_stdlib.zip", "asset", True), ("nmrcalc.zip", "asset", False)]
-    payload = {name: (PYODIDE_DIR / name).read_bytes() for name, _, _ in files if name != "nmrcalc.zip"}
+             ("pyodide.asm.wasm", "asset", True), (SNAPSHOT, "asset", False), ("python_stdlib.zip", "asset", True),
+             ("nmrcalc.zip", "asset", False)]
+    payload = {name: (PYODIDE_DIR / name).read_bytes() for name, _, _ in files if name not in ("nmrcalc.zip", SNAPSHOT)}
     payload["nmrcalc.zip"] = package_bytes
+    payload[SNAPSHOT] = snapshot
     boot, send = (WEB / "boot.js").read_text(), "NMRBoot.sendPrevious()"
     blocks = [
         f'<script type="application/octet-stream" id="nmrcalc-worker" data-assets="{" ".join(n for n, _, _ in files)}">'
@@ -292,10 +359,11 @@ def main(argv: list[str] | None = None) -> int:
         print(f"missing {', '.join(missing)} in {PYODIDE_DIR}: run `npm ci` in {ROOT} first", file=sys.stderr)
         return 1
     package_bytes = package_zip(args.package_dir)
+    snapshot = memory_snapshot(package_bytes)
     params_json = declarations_json(args.package_dir)
     version = package_version(args.package_dir)
-    build_site(args.out / "site", package_bytes, version, params_json)
-    build_single(args.out / "nmrcalc.html", package_bytes, version, params_json)
+    build_site(args.out / "site", package_bytes, snapshot, version, params_json)
+    build_single(args.out / "nmrcalc.html", package_bytes, snapshot, version, params_json)
     write_notices([args.out, args.out / "site"])
     write_service_worker(args.out / "site")  # last: it lists (and caches) every other file of the folder
     single = (args.out / "nmrcalc.html").stat().st_size

@@ -10,6 +10,11 @@
 //             (gzip-compressed where marked), as soon as the page has parsed it.
 //             The two JS modules are imported as data: URLs; the other files are
 //             served to Pyodide from memory by a fetch shim that waits for them.
+// In both, Python starts from a memory snapshot made at build time (python-snapshot.bin:
+// Python with nmrcalc imported and the first panel's requests answered once, by
+// build_scripts/snapshot.mjs) instead of starting up and importing the package. A snapshot
+// that is missing, unreadable or refused by Pyodide is reported and Python starts the
+// normal way; the ready message says which start it was ("snapshot" or "fresh").
 // No Python source is ever built here: requests are passed as a string argument.
 
 const APP_ZIP = "/home/pyodide/nmrcalc.zip";  // imported from in place (zipimport), not unpacked
@@ -35,15 +40,19 @@ function base64ToBytes(text) {
   return bytes;
 }
 
-// The file's bytes as a stream (gzip undone on the way), so Pyodide can compile
-// the wasm while it is still being unpacked. The stream is made from the bytes
-// themselves, not from a Blob: WebKit cannot read a Blob's stream in a worker of
-// a file:// page (NotReadableError), while a plain ReadableStream works everywhere.
-function assetBody(asset) {
-  const raw = base64ToBytes(asset.data);
-  if (!asset.gzip) return raw;
+// Bytes with gzip undone, as a stream. The stream is made from the bytes themselves,
+// not from a Blob: WebKit cannot read a Blob's stream in a worker of a file:// page
+// (NotReadableError), while a plain ReadableStream works everywhere.
+function gunzipStream(raw) {
   const packed = new ReadableStream({ start(controller) { controller.enqueue(raw); controller.close(); } });
   return packed.pipeThrough(new DecompressionStream("gzip"));
+}
+
+// The file's bytes as a stream (gzip undone on the way), so Pyodide can compile
+// the wasm while it is still being unpacked.
+function assetBody(asset) {
+  const raw = base64ToBytes(asset.data);
+  return asset.gzip ? gunzipStream(raw) : raw;
 }
 
 async function assetBytes(asset) {
@@ -97,36 +106,91 @@ function installMemoryFetch(names) {
   };
 }
 
+const SNAPSHOT = "python-snapshot.bin";
+
+// The snapshot's bytes: stored gzip-compressed, unpacked here (a server that already
+// undid the gzip is fine too: Pyodide checks the snapshot's own header).
+async function snapshotBytes(bytes) {
+  if (bytes[0] !== 0x1f || bytes[1] !== 0x8b) return bytes;
+  return new Uint8Array(await new Response(gunzipStream(bytes)).arrayBuffer());
+}
+
+// Where the snapshot's bytes come from (load(), a promise of them), or why there is none.
+function snapshotSource(listed, load) {
+  if (!listed) return { missing: "no start-up snapshot in this build" };
+  if (typeof DecompressionStream !== "function") return { missing: "this browser cannot unpack the start-up snapshot" };
+  const bytes = load().then(snapshotBytes);
+  bytes.catch(() => {});  // reported by startPython
+  return { bytes };
+}
+
+// A promise's value handed over once, as a thenable that then lets go of it: Pyodide keeps
+// its options for the worker's whole life, and the snapshot's 30 MiB need not stay with them.
+function handOver(promise) {
+  let held = promise;
+  return {
+    then(resolve, reject) {
+      const value = held;
+      held = null;
+      return value.then(resolve, reject);
+    },
+  };
+}
+
+// Start Python from the snapshot ({bytes} or {missing}, from snapshotSource); if that
+// fails, say so and start it the normal way. The package zip is written and
+// put on sys.path by boot() only after a normal start: the snapshot already has both on
+// sys.path and its imports done, and reads the zip's files from APP_ZIP when an op's
+// module is first imported.
+async function startPython(loadPyodide, options, snapshot) {
+  if (snapshot.bytes) {
+    try {
+      return { pyodide: await loadPyodide({ ...options, _loadSnapshot: handOver(snapshot.bytes) }), start: "snapshot", note: "" };
+    } catch (err) {
+      const note = `the start-up snapshot could not be used (${String((err && err.message) || err).split("\n")[0]}); Python starts the normal way`;
+      console.warn(`nmrcalc: ${note}`);
+      progress("runtime", `Starting the Python runtime (${note})`);
+      return { pyodide: await loadPyodide(options), start: "fresh", note };
+    }
+  }
+  return { pyodide: await loadPyodide(options), start: "fresh", note: snapshot.missing };
+}
+
 async function bootInline(message) {
   progress("decode", "Unpacking embedded files");
   installMemoryFetch(new Set(message.names));
   const bytesOf = async (name) => assetBytes(await arrival(name).promise);
   const moduleOf = async (name) => import(await moduleUrl(await arrival(name).promise));
   const lock = bytesOf("pyodide-lock.json");
+  const snapshot = snapshotSource(message.names.includes(SNAPSHOT), () => bytesOf(SNAPSHOT));
   const [{ loadPyodide }, asm] = await Promise.all([moduleOf("pyodide.mjs"), moduleOf("pyodide.asm.mjs")]);
   const lockFileContents = new TextDecoder().decode(await lock);
   progress("runtime", "Starting the Python runtime");
-  const pyodide = await loadPyodide({
+  const started = await startPython(loadPyodide, {
     indexURL: message.indexURL,
     packageBaseUrl: message.indexURL,
     lockFileContents,
     createPyodideModule: asm.default || asm.createPyodideModule,
-  });
-  return { pyodide, packageZip: await bytesOf("nmrcalc.zip") };
+  }, snapshot);
+  return { ...started, packageZip: await bytesOf("nmrcalc.zip") };
+}
+
+async function fetchBytes(url) {
+  const response = await fetch(url);
+  if (!response.ok) throw new Error(`${url.slice(url.lastIndexOf("/") + 1)}: HTTP ${response.status}`);
+  return new Uint8Array(await response.arrayBuffer());
 }
 
 async function bootSite() {
   const base = new URL("./", self.location.href).href;
   progress("runtime", "Starting the Python runtime");
-  // the package is fetched while the runtime starts
-  const packageZip = fetch(new URL("nmrcalc.zip", base).href).then(async (response) => {
-    if (!response.ok) throw new Error(`nmrcalc.zip: HTTP ${response.status}`);
-    return new Uint8Array(await response.arrayBuffer());
-  });
+  // the package and the snapshot are fetched while the runtime starts
+  const packageZip = fetchBytes(new URL("nmrcalc.zip", base).href);
   packageZip.catch(() => {});  // reported when awaited below
+  const snapshot = snapshotSource(true, () => fetchBytes(new URL(SNAPSHOT, base).href));
   const { loadPyodide } = await import(new URL("pyodide.mjs", base).href);
-  const pyodide = await loadPyodide({ indexURL: base });
-  return { pyodide, packageZip: await packageZip };
+  const started = await startPython(loadPyodide, { indexURL: base }, snapshot);
+  return { ...started, packageZip: await packageZip };
 }
 
 // What this worker needs from the engine, checked before anything loads, so a browser
@@ -145,14 +209,14 @@ async function boot(message) {
   if (missing) {
     throw new Unsupported(`This browser lacks ${missing}, which the calculator needs: open the page in a current Chrome, Edge, Firefox or Safari.`);
   }
-  const { pyodide, packageZip } = message.mode === "inline" ? await bootInline(message) : await bootSite();
+  const { pyodide, packageZip, start, note } = message.mode === "inline" ? await bootInline(message) : await bootSite();
   progress("package", "Installing the nmrcalc package");
   pyodide.FS.writeFile(APP_ZIP, packageZip);
-  pyodide.pyimport("sys").path.insert(0, APP_ZIP);
+  if (start !== "snapshot") pyodide.pyimport("sys").path.insert(0, APP_ZIP);
   progress("import", "Importing nmrcalc");
   bridge = pyodide.pyimport("nmrcalc_bridge").bridge;
   wasmBytes = () => pyodide._module.HEAPU8.buffer.byteLength;
-  post({ type: "ready", ms: performance.now() - started, python: pyodide.version });
+  post({ type: "ready", ms: performance.now() - started, python: pyodide.version, start, note });
 }
 
 function call(message) {

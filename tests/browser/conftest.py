@@ -28,7 +28,8 @@ BOOT_TIMEOUT_MS = 90_000
 
 
 def _sources() -> list[Path]:
-    files = [ROOT / "build_scripts" / "build_web.py", ROOT / "build_scripts" / "bytecode.mjs", ROOT / "package-lock.json"]
+    files = [ROOT / "build_scripts" / name for name in ("build_web.py", "bytecode.mjs", "snapshot.mjs")]
+    files.append(ROOT / "package-lock.json")
     files += [p for p in (ROOT / "web").rglob("*") if p.is_file()]
     files += [p for p in (ROOT / "nmrcalc").rglob("*.py") if "__pycache__" not in p.parts]
     return files

@@ -2,7 +2,8 @@
 Gecko (Debian's firefox-esr, Playwright over WebDriver-BiDi) and WebKit (WebKitGTK's
 MiniBrowser through selenium). Boot, one calculation per panel with no error shown, a plot
 export (SVG and PNG file contents), a pin that survives a reload, no request beyond the
-page's own files, and no page error or CSP violation.
+page's own files, and no page error or CSP violation; Python starts from the build's memory
+snapshot in every engine (tests/browser/test_snapshot.py checks the fallback without it).
 
 The walk runs through the page's own DOM by script, so the three drivers do exactly the
 same thing. Requests: Playwright's request log where it has one, and in every engine the
@@ -90,6 +91,9 @@ def _wait_ready(page, engine):
                   "the worker to boot", BOOT_TIMEOUT_S)
     detail = page.js("return [document.getElementById('boot-text').textContent, window.nmrcalcStatus.error]")
     assert state == "ready", f"{engine}: boot failed: {detail}"
+    # Python came from the build's memory snapshot, not from a normal start (web/worker.js)
+    start = page.js("return window.nmrcalcStatus.start")
+    assert start == {"how": "snapshot", "note": ""}, f"{engine}: Python did not start from the snapshot: {start}"
 
 
 def _walk_every_panel(page, engine):

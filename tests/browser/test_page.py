@@ -125,7 +125,8 @@ def _tablet_touch_targets_and_labels(page):
 def _service_worker_has_cached_everything(page):
     page.evaluate("navigator.serviceWorker.ready.then(() => true)")
     cached = page.evaluate("caches.keys().then(k => caches.open(k[0])).then(c => c.keys()).then(r => r.map(x => x.url))")
-    for name in ("index.html", "pyodide.asm.wasm", "python_stdlib.zip", "nmrcalc.zip", "worker.js", "manifest.webmanifest"):
+    for name in ("index.html", "pyodide.asm.wasm", "python_stdlib.zip", "nmrcalc.zip", "python-snapshot.bin", "worker.js",
+                 "manifest.webmanifest"):
         assert any(u.endswith("/" + name) for u in cached), f"{name} not in the offline cache"
 
 

@@ -166,6 +166,7 @@ function onWorkerMessage(event) {
     if (timings.ready === null) timings.ready = performance.now();
     window.nmrcalcStatus.state = "ready";
     window.nmrcalcStatus.python = message.python;
+    window.nmrcalcStatus.start = { how: message.start, note: message.note };  // "snapshot" or "fresh" (web/worker.js)
     readyText = restarts > 0
       ? `Python stopped unexpectedly and was restarted (${restarts}×); your inputs and results are kept. Ready again.`
       : `Ready — Python in this browser (${(message.ms / 1000).toFixed(1)} s)`;
