@@ -291,7 +291,12 @@ def build_site(out: Path, package_bytes: bytes, snapshot: bytes, version: str, p
     body = '<script defer src="app.js"></script>'
     csp = SITE_CSP.replace("script-src 'self'", f"script-src 'self' {sha256_source(boot)}")
     (out / "index.html").write_text(fill((WEB / "index.html").read_text(), head, body, csp, version, params_json))
-    files = sorted(p.relative_to(out).as_posix() for p in out.rglob("*") if p.is_file())
+
+
+def write_service_worker(out: Path) -> None:
+    """out/sw.js listing every other file of the folder, its cache named by their content's hash (so any
+    changed file makes a new cache and a new service worker, which the page offers to reload into)."""
+    files = sorted(p.relative_to(out).as_posix() for p in out.rglob("*") if p.is_file() and p.name != "sw.js")
     content = hashlib.sha256(b"".join((out / f).read_bytes() for f in files)).hexdigest()[:12]
     (out / "sw.js").write_text(service_worker(files, content))
 
@@ -372,6 +377,7 @@ def main(argv: list[str] | None = None) -> int:
     build_site(args.out / "site", package_bytes, snapshot, version, params_json)
     build_single(args.out / "nmrcalc.html", package_bytes, snapshot, version, params_json)
     write_notices([args.out, args.out / "site"])
+    write_service_worker(args.out / "site")  # last: it lists (and caches) every other file of the folder
     single = (args.out / "nmrcalc.html").stat().st_size
     print(f"nmrcalc {version}: {args.out / 'site'} and {args.out / 'nmrcalc.html'}")
     print(f"single file {single / 1e6:.2f} MB = {single / core_size():.3f} x Pyodide core ({core_size() / 1e6:.2f} MB)")

@@ -258,6 +258,8 @@ self.onmessage = (event) => {
         });
       });
     }
+  } else if (message.type === "ping") {
+    post({ type: "pong" });  // the page's heartbeat (js/core.js): answered at once, even while booting
   } else if (message.type === "asset") {
     arrival(message.name).resolve(message);
   } else if (message.type === "call") {

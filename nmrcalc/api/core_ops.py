@@ -263,15 +263,18 @@ SCALE = Param("scale", "choice", choices=("unified", "biomolecular"), default="u
 NUCLEUS = Param("nucleus", "nuclide", required=True, label="Nucleus", help="observed nuclide, e.g. 13C", example="13C")
 
 DECLARED = {
-    "nuclide": Op("nuclide", "spin, magnetogyric ratio, abundance, Ξ and receptivity of one nuclide", params=(
+    "nuclide": Op("nuclide", "spin, magnetogyric ratio, abundance, Ξ and receptivity of one nuclide",
+                  limits="one table look-up", params=(
         Param("query", "nuclide", required=True, label="Nuclide", help="e.g. 13C, C-13, carbon-13, D",
               example="195Pt", cli="query"),)),
-    "nuclides": Op("nuclides", "the nuclide list, optionally filtered by a search text", params=(
+    "nuclides": Op("nuclides", "the nuclide list, optionally filtered by a search text",
+                   limits="one pass over the nuclide table", params=(
         Param("search", "text", label="Search", help="filter text: symbol, element or name", example="tin"),
         Param("include_spin_zero", "flag", default=False, label="Include spin-0 isotopes",
               help="list the isotopes without a magnetic moment too"))),
     "frequency": Op("frequency", "Larmor and 0 ppm reference frequencies at a magnet (all nuclides without "
-                    "'nucleus')", cli="freq", one_of=(("spectrometer", "field"),), params=(
+                    "'nucleus')", cli="freq", one_of=(("spectrometer", "field"),),
+                    limits="one pass over the nuclide table", params=(
         *MAGNET,
         Param("nucleus", "nuclide", label="Nucleus", help="nuclide; omit for the all-nuclide table", example="29Si"),
         SCALE,
@@ -283,14 +286,14 @@ DECLARED = {
         Param("sort", "choice", choices=_SORT_KEYS, default="larmor_MHz", label="Sort by", help="table order"),
         Param("descending", "flag", label="Descending", help="table: largest first (default except by symbol)"))),
     "ppm_hz": Op("ppm_hz", "convert a chemical shift to a frequency offset and back", cli="ppm",
-                 one_of=(("spectrometer", "field"), ("ppm", "Hz")), params=(
+                 one_of=(("spectrometer", "field"), ("ppm", "Hz")), limits="one conversion", params=(
         NUCLEUS, *MAGNET, SCALE,
         Param("ppm", "quantity", unit="shift", label="Shift", help="shift in ppm", example="77.16"),
         Param("Hz", "quantity", unit="coupling", label="Offset from 0 ppm", help="offset from 0 ppm in Hz",
               cli="--hz"),
         Param("carrier_ppm", "quantity", unit="shift", label="Carrier", help="carrier position in ppm"))),
     "scale_coupling": Op("scale_coupling", "scale a coupling to another isotope (J′ = J γ′/γ), with K", cli="scale",
-                         params=(
+                         limits="one coupling", params=(
         Param("J", "quantity", unit="coupling", required=True, label="Measured J", help="e.g. '19.3 Hz'",
               example="19.3 Hz", cli="J"),
         Param("from", "nuclide", required=True, label="Measured with isotope", help="e.g. 2H", example="2H"),
@@ -298,21 +301,24 @@ DECLARED = {
         Param("partner", "nuclide", label="Coupling partner", example="13C",
               help="the other nucleus of the pair: gives the reduced coupling K"))),
     "energy": Op("energy", "transition energy and populations at a magnet, and a photon beside it",
-                 one_of=(("spectrometer", "field"), ("wavelength", "wavenumber")), params=(
+                 one_of=(("spectrometer", "field"), ("wavelength", "wavenumber")), limits="one magnet, one photon",
+                 params=(
         Param("nucleus", "nuclide", label="Nucleus", help="nuclide (needs the magnet)", example="1H"),
         *MAGNET,
         Param("temperature", "quantity", unit="temperature", default=298.15, label="Temperature",
               help="e.g. '298 K' or '25 °C'"),
         Param("wavelength", "quantity", unit="wavelength", label="Photon wavelength", help="e.g. '254 nm'"),
         Param("wavenumber", "quantity", unit="wavenumber", label="Photon wavenumber", help="e.g. '1700 cm-1'"))),
-    "sensitivity": Op("sensitivity", "receptivity of a nuclide against another and the time factor", params=(
+    "sensitivity": Op("sensitivity", "receptivity of a nuclide against another and the time factor",
+                      limits="two nuclides", params=(
         Param("nucleus", "nuclide", required=True, label="Nucleus", help="nuclide", example="15N", cli="nucleus"),
         Param("relative_to", "nuclide", default="13C", label="Relative to", help="reference nuclide"),
         Param("enrichment_percent", "quantity", unit="percent", label="Enrichment", help="isotope enrichment",
               cli="--enrichment"))),
     "acquisition_window": Op("acquisition_window", "carrier, spectral width, dwell and acquisition time and digital "
                              "resolution for a ppm range; with a 90° pulse, what it excites", cli="window",
-                             one_of=(("spectrometer", "field"),), params=(
+                             one_of=(("spectrometer", "field"),),
+                             limits="formulas only: the points are counted, never sampled", params=(
         NUCLEUS, *MAGNET, SCALE,
         Param("low_ppm", "quantity", unit="shift", required=True, label="From", help="one end of the window, ppm",
               example="-10"),

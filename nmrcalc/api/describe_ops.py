@@ -5,7 +5,8 @@ from __future__ import annotations
 
 from nmrcalc.api.params import Op, describe
 
-DESCRIBE = Op("describe", "every op with its parameters (key, kind, unit, required, default, help)", cli="-")
+DESCRIBE = Op("describe", "every op with its parameters (key, kind, unit, required, default, help)", cli="-",
+              limits="the declarations only")
 
 
 def declarations() -> dict[str, Op]:

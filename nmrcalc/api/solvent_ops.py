@@ -94,7 +94,8 @@ def op_solvents(req: dict, warnings: list[str]) -> dict:
 
 
 DECLARED = {"solvents": Op(
-    "solvents", "residual solvent and water signals, with the multiplet the engine predicts", params=(
+    "solvents", "residual solvent and water signals, with the multiplet the engine predicts",
+    limits="one pass over the solvent table, one small multiplet a signal", params=(
         Param("query", "text", label="Shift (ppm) or solvent name", example="2.50 ppm", max_chars=60,
               help="a shift ('2.50', '2.50 ppm') finds the nearby signals; text finds solvents by name"),
         Param("nucleus", "nuclide", label="Nucleus", help="1H or 13C only", example="1H"),

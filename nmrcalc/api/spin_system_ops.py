@@ -28,6 +28,7 @@ scale, ``nmrcalc.physics.larmor``); couplings do not change with the field.
 
 from __future__ import annotations
 
+import math
 import reprlib
 
 from nmrcalc.api.fields import PROGRESS, flag, magnet, nucleus, quantity, zero_ppm_MHz
@@ -43,6 +44,7 @@ MAX_FIELDS = 12
 MAX_SPINS = 64  # spin entries in one request; each may stand for up to MAX_COUNT equivalent nuclei
 MAX_LABEL = 24
 WEAK_LINK_TOL_HZ = 0.01  # J²/|Δν| of a link treated to first order (Hz)
+MIN_USUAL_LINEWIDTH_HZ = 0.1  # narrower lines are rare in solution (common practice, no source)
 FIRST_ORDER_THRESHOLD = 10.0  # Δν/|J| at or above which a pair is called first order (rule of thumb)
 
 
@@ -172,6 +174,40 @@ def _line_dicts(lines, ref_MHz):
     return [{"Hz": x, "ppm": x / ref_MHz, "intensity": y} for x, y in lines]
 
 
+def _blame_far_shift(spins: list[tuple[Nuclide, float, int]], labels: list[str], found: list[tuple[float, float, int]],
+                     ref_MHz: float, width_Hz: float, proton_MHz: float) -> None:
+    """The sampled spectrum would need too many points: when one observed spin lies so far from the
+    others that the rest would fit (typically a misplaced decimal point, 365 for 3.65), refuse on
+    that spin's shift, so the message sits beside it; otherwise the caller blames the line width.
+    Lines narrower than ``MIN_USUAL_LINEWIDTH_HZ`` are blamed themselves."""
+    observed = sorted({k for _, _, k in found})
+    if len(observed) < 2 or width_Hz < MIN_USUAL_LINEWIDTH_HZ:
+        return
+    centre = {k: sum(x for x, _, s in found if s == k) / sum(1 for *_, s in found if s == k) for k in observed}
+    ordered = sorted(centre.values())
+    middle = (ordered[(len(ordered) - 1) // 2] + ordered[len(ordered) // 2]) / 2
+    # the spin farthest from the median; of two, the larger shift (365 typed for 3.65)
+    far = max(observed, key=lambda k: abs(spins[k][1]) if len(observed) == 2 else abs(centre[k] - middle))
+    rest = [x for x, _, k in found if k != far]
+    margin = 2 * lineshape.DEFAULT_MARGIN_FWHM * width_Hz
+    if (max(rest) - min(rest) + margin) / width_Hz * lineshape.MIN_POINTS_PER_FWHM + 1 > lineshape.MAX_POINTS:
+        return
+    xs = [x for x, _, _ in found]
+    extent = max(xs) - min(xs)
+    needed = math.ceil((extent + margin) / width_Hz * lineshape.MIN_POINTS_PER_FWHM) + 1
+    wide_enough = extent * lineshape.MIN_POINTS_PER_FWHM / (
+        lineshape.MAX_POINTS - 2 - 2 * lineshape.DEFAULT_MARGIN_FWHM * lineshape.MIN_POINTS_PER_FWHM)
+    step = 10 ** (math.floor(math.log10(wide_enough)) - 1)  # rounded up to two significant digits
+    wide_enough = math.ceil(wide_enough / step) * step
+    others = sorted(centre[k] / ref_MHz for k in observed if k != far)
+    where = f"at {others[0]:.4g} ppm" if len(others) == 1 else f"{others[0]:.4g} to {others[-1]:.4g} ppm"
+    raise InputError(
+        f"spins.{far}.shift: spin {labels[far]} at {spins[far][1]:g} ppm lies far from the other "
+        f"{spins[far][0].symbol} spins ({where}): with {width_Hz:g} Hz lines at "
+        f"{proton_MHz:g} MHz the spectrum would need {needed} points (limit {lineshape.MAX_POINTS}). "
+        f"Check this shift, or use a line width of at least {wide_enough:,.6g} Hz.", f"spins.{far}.shift", "too_large")
+
+
 def _block(spins, labels, couplings, observe, field_T, proton_MHz, req, warnings, progress=None) -> dict:
     sites = [Site(nuc.symbol, nuc.spin, shift * _ref_MHz(nuc, field_T, proton_MHz), count)
              for nuc, shift, count in spins]
@@ -214,7 +250,9 @@ def _block(spins, labels, couplings, observe, field_T, proton_MHz, req, warnings
                 fo = lineshape.sample_spectrum(first, width, shape, window_Hz=(exact.x_Hz[0], exact.x_Hz[-1]))
                 spectrum["first_order_y"] = fo.y
         except InputError as e:
-            raise InputError(e.message, "linewidth" if e.field == "fwhm_Hz" else e.field, e.code) from None
+            if e.field == "fwhm_Hz":
+                _blame_far_shift(spins, labels, found, ref, width, proton_MHz)
+            raise InputError(e.message, "linewidth" if e.field in ("fwhm_Hz", "sticks") else e.field, e.code) from None
         block["spectrum"] = spectrum
     return block
 

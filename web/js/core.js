@@ -157,6 +157,7 @@ let readyText = "Ready";
 
 function onWorkerMessage(event) {
   const message = event.data;
+  heard();
   if (message.type === "progress") {
     const [fraction, text] = STAGES[message.stage] || [0.5, message.detail];
     setBoot(fraction, text, "loading");
@@ -218,10 +219,40 @@ function onWorkerCrash(detail) {
   startWorker();
 }
 
+// ---------- heartbeat ----------
+// A worker that stops without an error event (terminated from outside, killed) would leave every
+// call waiting forever. It is pinged whenever it should be idle: every HEARTBEAT_MS with no call
+// pending, and just before a call sent to an idle worker (a live worker answers that ping before it
+// starts the call). No message within PONG_MS means it is gone: pending calls fail with a message
+// and a fresh worker starts (onWorkerCrash). A worker busy in Python answers no ping, so none is sent
+// while a call runs; the page being busy itself (the answer waiting behind it) only asks again.
+const HEARTBEAT_MS = 5000;
+const PONG_MS = 4000;
+let pongTimer = null;
+function ping() {
+  if (!workerReady || pongTimer !== null) return;
+  const target = worker;
+  const sent = performance.now();
+  pongTimer = setTimeout(() => {
+    pongTimer = null;
+    if (target !== worker || !workerReady) return;
+    if (performance.now() - sent > PONG_MS + 1000) ping();  // this page was busy: the answer may be queued
+    else onWorkerCrash("no answer to the heartbeat: the worker stopped without an error");
+  }, PONG_MS);
+  worker.postMessage({ type: "ping" });
+}
+/** Any message from the worker shows it is alive. */
+function heard() {
+  clearTimeout(pongTimer);
+  pongTimer = null;
+}
+setInterval(() => { if (waiting.size === 0) ping(); }, HEARTBEAT_MS);
+
 // The worker was started by boot.js (NMRBoot) before this script ran; it is
 // adopted on the first start and replaced by a fresh one on every later start.
 function startWorker() {
   workerReady = false;
+  heard();
   const listen = (event, from) => {
     if (from !== worker) return;  // a worker already replaced
     if (event.type === "message") {
@@ -248,6 +279,7 @@ function api(request) {
   return ready.then(() => new Promise((resolve) => {
     const id = nextId;
     nextId += 1;
+    if (waiting.size === 0) ping();  // answered before the call starts, if the worker is alive
     waiting.set(id, resolve);
     window.nmrcalcStatus.pending = waiting.size;
     worker.postMessage({ type: "call", id, text: JSON.stringify(request) });
@@ -298,7 +330,7 @@ function declaredField(field) {
 }
 
 // ---------- forms ----------
-// A field: {id, label, kind: "text"|"select"|"checkbox", value, keys, hint,
+// A field: {id, label, kind: "text"|"select"|"checkbox", value, keys, hint, required,
 //           options: [[value, label]], units: [{unit, label, key}], list, inputmode}
 // keys: the request keys whose errors belong beside this field.
 function buildField(form, spec) {
@@ -430,7 +462,11 @@ function form(spec) {
     const request = override || spec.request(values);
     const mine = ++sequence;
     const busyTimer = setTimeout(() => { busy.hidden = false; }, 250);
-    const response = await api(request);
+    // a field this card cannot do without (spec field `required: true`), left empty: said beside it, no call
+    const empty = override ? null : own.find((f) => f.field.required && values[f.field.id].value === "");
+    const response = empty
+      ? { ok: false, error: { field: empty.field.id, message: `${empty.field.label}: required${empty.field.placeholder ? ` (${empty.field.placeholder})` : ""}.` } }
+      : await api(request);
     clearTimeout(busyTimer);
     if (mine !== sequence) return;
     busy.hidden = true;
@@ -630,7 +666,11 @@ function registerServiceWorker() {
     if (node) node.textContent = text;
   };
   // a worker becomes "installed" only once every file is in the cache (cache.addAll is all or nothing)
+  let offered = null;
   const offerReload = (waitingWorker) => {
+    if (offered === waitingWorker) return;  // seen both as installing and as waiting
+    offered = waitingWorker;
+    offline("Ready for offline use (this version); a new version is stored too and waits for a reload.");
     const button = el("button", { type: "button", class: "small-button", id: "update-reload" }, "Reload now");
     button.addEventListener("click", () => {
       navigator.serviceWorker.addEventListener("controllerchange", () => location.reload());
@@ -643,6 +683,7 @@ function registerServiceWorker() {
     const check = () => {
       if (sw.state === "installed" && hadController) offerReload(sw);
       else if (sw.state === "activated") offline("Ready for offline use: every file of this page is stored in this browser.");
+      else if (sw.state === "redundant" && hadController) offline("Ready for offline use (this version); a newer version could not be stored (reload while online to try again).");
       else if (sw.state === "redundant") offline("Not ready for offline use: the files could not all be stored (reload while online to try again).");
     };
     sw.addEventListener("statechange", check);

@@ -24,7 +24,7 @@ export default {
       intro: "The frequency of its 0 ppm reference (from Ξ) at this magnet — where a spectrometer is set — and the Larmor frequency of the bare nucleus.",
       shared: [magnet],
       fields: [
-        { id: "nucleus", param: "frequency.nucleus", value: "13C", list: "nuclide-list", placeholder: "e.g. 13C, 15N, 31P" },
+        { id: "nucleus", param: "frequency.nucleus", value: "13C", list: "nuclide-list", placeholder: "e.g. 13C, 15N, 31P", required: true },
         {
           id: "scale", param: "frequency.scale", kind: "select",
           options: [["unified", "Unified (TMS-based)"], ["biomolecular", "Biomolecular (DSS)"]],

@@ -16,7 +16,7 @@ export default {
       title: "Spin energy gap and populations",
       intro: "The energy of one NMR transition at this magnet and temperature, next to an optical photon if you give one.",
       fields: [
-        { id: "nucleus", param: "energy.nucleus", value: "1H", list: "nuclide-list" },
+        { id: "nucleus", param: "energy.nucleus", value: "1H", list: "nuclide-list", placeholder: "e.g. 1H, 13C, 31P", required: true },
         { id: "magnet", label: "Magnet", value: "500", units: NMR.MAGNET_UNITS, keys: ["spectrometer", "field"] },
         { id: "temperature", param: "energy.temperature", value: "298" },
         {

@@ -168,7 +168,8 @@ export default {
               }
               save();
             });
-            cell.addEventListener("change", () => drawRows());
+            // mirror the lower triangle once focus leaves the matrix, redrawing only the matrix: a redraw of every row replaced the input just tapped (what was typed there was lost)
+            cell.addEventListener("focusout", (event) => { if (!event.relatedTarget || !event.relatedTarget.closest(".matrix")) couplingBox.replaceChildren(...drawCouplingMatrix()); });
             if (k >= 0) errors.add(`couplings.${k}.J`, cell, error, () => `J(${nameOf(i)},${nameOf(j)})`);
             tr.append(el("td", {}, cell));
           }
@@ -396,7 +397,8 @@ export default {
         const overlay = fixed.overlay.read().value;
         const single = { ...baseRequest(), ...NMR.magnetRequest(fixed.magnet.read()), first_order: true };
         const several = { ...baseRequest(), fields: fixed.fields.read().value };
-        const [one, many] = await Promise.all([NMR.api(single), NMR.api(several)]);
+        // an empty list of several fields: no several-fields view (not an error about the magnet)
+        const [one, many] = await Promise.all([NMR.api(single), several.fields === "" ? null : NMR.api(several)]);
         return { overlay, single, one, many };
       },
       show: ({ overlay, single, one, many }) => {
@@ -412,7 +414,9 @@ export default {
         out.classList.remove("stale");
         renderSingle(one.result, one.warnings || [], overlay, single);
         pin.update({ request: single, result: one.result });
-        if (many.ok) {
+        if (!many) {
+          stack.node.hidden = true;
+        } else if (many.ok) {
           renderFields(many.result);
           stack.node.hidden = false;
         } else {
