@@ -55,32 +55,33 @@ def pick(x0: float, dx: float, y: list[float], threshold: float, *, minimum_sigm
     if sigma == 0:
         sigma = minimum_sigma or max(abs(v) for v in y) * 1e-12 or 1.0
     level = base + threshold * sigma
-    peaks = []
-    n = len(y)
-    for k in range(1, n - 1):
-        yk = y[k]
-        if yk <= level or yk < y[k - 1] or yk <= y[k + 1]:
-            continue
-        a, b, c = y[k - 1], yk, y[k + 1]
-        denom = a - 2 * b + c
-        shift = 0.5 * (a - c) / denom if denom < 0 else 0.0
-        height = b - 0.25 * (a - c) * shift
-        half = base + 0.5 * (height - base)
-        left = k
-        while left > 0 and y[left] > half:
-            left -= 1
-        right = k
-        while right < n - 1 and y[right] > half:
-            right += 1
-        xl = left + (half - y[left]) / (y[left + 1] - y[left]) if y[left + 1] != y[left] else left
-        xr = right - (half - y[right]) / (y[right - 1] - y[right]) if y[right - 1] != y[right] else right
-        lo = k
-        while lo > 0 and y[lo - 1] <= y[lo] and y[lo] > base:
-            lo -= 1
-        hi = k
-        while hi < n - 1 and y[hi + 1] <= y[hi] and y[hi] > base:
-            hi += 1
-        area = sum(0.5 * (y[i] + y[i + 1]) - base for i in range(lo, hi)) * abs(dx)
-        peaks.append({"index": k, "position": x0 + (k + shift) * dx, "height": height - base,
-                      "width": abs(xr - xl) * abs(dx), "integral": area})
+    peaks = [measure(x0, dx, y, k, base) for k in range(1, len(y) - 1)
+             if y[k] > level and y[k] >= y[k - 1] and y[k] > y[k + 1]]
     return {"noise": sigma, "baseline": base, "peaks": peaks}
+
+
+def measure(x0: float, dx: float, y: list[float], k: int, base: float) -> dict:
+    """Position, height, width and integral (module docstring) of the maximum at index ``k``."""
+    n = len(y)
+    a, b, c = y[max(k - 1, 0)], y[k], y[min(k + 1, n - 1)]
+    denom = a - 2 * b + c
+    shift = 0.5 * (a - c) / denom if denom < 0 and 0 < k < n - 1 else 0.0
+    height = b - 0.25 * (a - c) * shift
+    half = base + 0.5 * (height - base)
+    left = k
+    while left > 0 and y[left] > half:
+        left -= 1
+    right = k
+    while right < n - 1 and y[right] > half:
+        right += 1
+    xl = left + (half - y[left]) / (y[left + 1] - y[left]) if left + 1 < n and y[left + 1] != y[left] else left
+    xr = right - (half - y[right]) / (y[right - 1] - y[right]) if right > 0 and y[right - 1] != y[right] else right
+    lo = k
+    while lo > 0 and y[lo - 1] <= y[lo] and y[lo] > base:
+        lo -= 1
+    hi = k
+    while hi < n - 1 and y[hi + 1] <= y[hi] and y[hi] > base:
+        hi += 1
+    area = sum(0.5 * (y[i] + y[i + 1]) - base for i in range(lo, hi)) * abs(dx)
+    return {"index": k, "position": x0 + (k + shift) * dx, "height": height - base,
+            "width": abs(xr - xl) * abs(dx), "integral": area}
