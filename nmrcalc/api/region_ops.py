@@ -20,7 +20,8 @@ best centre by least squares, started at the region's centroid) or ``"spin_syste
 ``spectrometer``/``field``; x must be in ppm) — drawn on the region's points
 with ``linewidth`` (default: the width at half height of the region's highest
 peak) and scaled to the region's integral above ``baseline``; the residual is
-measured − baseline − simulated.
+y − baseline − scale·model; ``simulated`` is baseline + scale·model, on the
+measured trace's own level, to draw over it.
 """
 
 from __future__ import annotations
@@ -183,7 +184,7 @@ def op_compare_region(req: dict, warnings: list[str]) -> dict:
     cmp = regions.scaled_comparison(y, model, dx, base)
     top = max((abs(v - base) for v in y), default=0.0)
     return {"model": kind, "label": label, "x_unit": x_unit, "first_x": first_x, "last_x": last_x,
-            "simulated": cmp["model"], "residual": cmp["residual"], "scale": cmp["scale"],
+            "simulated": [base + v for v in cmp["model"]], "residual": cmp["residual"], "scale": cmp["scale"],
             "integral": cmp["integral"], "rms_residual": cmp["rms"],
             "relative_rms": cmp["rms"] / top if top else None, "linewidth_Hz": width_Hz, "shape": shape,
             "lines": [{"position": p, "intensity": i * cmp["scale"]} for p, i in sticks], **extra}

@@ -14,7 +14,14 @@ frequency, ``first_ppm``/``last_ppm`` give the ppm scale: δ = δ_ref + (x − x
 couplings with starting J, ``observe``, ``spectrometer``) plus ``lines``
 (``position`` in ppm, or a string "1234.5 Hz"; ``intensity``) and ``vary``
 (``shifts`` and/or ``couplings``); shifts of the observed nucleus and every
-given coupling are fitted (``nmrcalc.physics.spin_fit``).
+given coupling are fitted (``nmrcalc.physics.spin_fit``).  Or, instead of
+``lines``, a region's trace (``first_x``, ``last_x``, ``x_unit``, ``y``, with
+``baseline`` and a starting ``linewidth``, both optional): the spin system's
+exact spectrum is fitted to the points (``nmrcalc.physics.trace_fit``), with an
+intensity scale always and the width when ``vary`` has ``linewidth``; the
+result adds the width, the scale, each with its standard error, the rms
+residual in intensity units, the simulated trace (on the measured trace's
+level) and the residual.
 """
 
 from __future__ import annotations
@@ -217,7 +224,8 @@ def op_fit_spin_system(req: dict, warnings: list[str]) -> dict:
                  if fit_width else None, "linewidth_fitted": fit_width, "scale": result["scale"],
                  "scale_error": err[-1] if err else None, "rms_residual": result["rms"],
                  "relative_rms": result["rms"] / max(abs(v - base) for v in y) if any(v != base for v in y) else None,
-                 "simulated": result["model"], "residual": result["residual"], "baseline": base}
+                 "simulated": [base + v for v in result["model"]], "residual": result["residual"],
+                 "baseline": base}
         warnings.append("Standard errors assume independent noise on every point: for a zero-filled or apodized "
                         "spectrum they are too small.")
     else:
