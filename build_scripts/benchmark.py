@@ -12,7 +12,7 @@ Page section (needs `npm ci` and chromium):
 * summary: each speed and size target with PASS or MISS (a report: the script exits 0 either way).
 
 Compute sections (one fresh folder build in bench_results/tmp/web, one page on localhost;
-page figures are timed in the page with performance.now around NMR.api, worker round trip included):
+page figures are timed in the page with performance.now around nmrcalcTest.api, worker round trip included):
 * latency: median and max of a typical request per API op, page and CPython;
 * multiplets: large first-order patterns, CPython and page, beside numpy.convolve peers;
 * spins: 8 all-coupled spins-1/2 (page, CPython with and without numpy), the largest
@@ -174,7 +174,7 @@ def page_section(bench: Bench) -> list:
 
 
 # ---- compute sections: API latency, multiplets, spin systems, pattern finder ----
-# Page figures are timed inside the page (performance.now around NMR.api), so they
+# Page figures are timed inside the page (performance.now around nmrcalcTest.api), so they
 # include the worker round trip and JSON both ways; CPython figures time
 # nmrcalc.api.handle (or the physics function) in this process.
 
@@ -184,10 +184,10 @@ PAGE_CALL = """async ([request, n, limitMs]) => {
     let timer;
     const late = new Promise((resolve) => { timer = setTimeout(() => resolve(null), limitMs); });
     const t0 = performance.now();
-    const response = await Promise.race([NMR.api(request), late]);
+    const response = await Promise.race([nmrcalcTest.api(request), late]);
     const ms = performance.now() - t0;
     clearTimeout(timer);
-    if (response === null) { NMR.cancel(); return { timeout: true, ms }; }
+    if (response === null) { nmrcalcTest.cancel(); return { timeout: true, ms }; }
     if (!response.ok) return { error: response.error, ms };
     times.push(ms);
   }
@@ -277,7 +277,7 @@ def _live_page(bench: Bench):
 
 
 def _page_run(bench: Bench, request: dict, n: int, limit_s: float) -> dict:
-    """PAGE_CALL in the live page; after a timeout (NMR.cancel restarts the worker) wait for the
+    """PAGE_CALL in the live page; after a timeout (nmrcalcTest.cancel restarts the worker) wait for the
     new worker with an untimed small request, so the next figure does not include a boot."""
     out = _live_page(bench).evaluate(PAGE_CALL, [request, n, limit_s * 1000])
     if out.get("timeout"):
@@ -341,7 +341,7 @@ def latency_section(bench: Bench) -> list:
         if request is TYPICAL_MULTIPLET:
             _target(bench, "typical multiplet (5 groups) recompute in the page, median", med, 50, "ms")
     _target(bench, "typical ops in the page, slowest median", worst, 50, "ms")
-    return [f"  {n} calls per op; page = NMR.api round trip timed in the page"] + _table(
+    return [f"  {n} calls per op; page = nmrcalcTest.api round trip timed in the page"] + _table(
         ["op", "page median ms", "page max ms", "CPython median ms", "page/CPython"], rows)
 
 

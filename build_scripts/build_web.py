@@ -9,7 +9,7 @@ Outputs (default under dist/):
                    network: every asset embedded (gzip + base64 where it helps).
 
 Usage: python build_scripts/build_web.py [--out DIR] [--package-dir DIR]
-Needs ``npm ci`` (or ``npm install``) first, for node_modules/pyodide.
+Needs ``npm ci`` (or ``npm install``) first, for node_modules/pyodide and node_modules/.bin/esbuild.
 """
 
 from __future__ import annotations
@@ -53,18 +53,24 @@ SITE_CSP = (
 )
 
 
-def page_scripts() -> list[Path]:
-    """Page scripts in load order: the shell (core.js), shared modules (other web/js/*.js,
-    e.g. plot.js, by name), panels (web/js/panels/*.js, by name), then main.js."""
-    js = WEB / "js"
-    shared = sorted(p for p in js.glob("*.js") if p.name not in ("core.js", "main.js"))
-    panels = sorted((js / "panels").glob("*.js"))
-    return [js / "core.js", *shared, *panels, js / "main.js"]
+ESBUILD = ROOT / "node_modules" / ".bin" / "esbuild"  # npm `esbuild`, pinned in package-lock.json
+PAGE_ENTRY = WEB / "js" / "main.js"
 
 
 def page_script() -> str:
-    """The page scripts joined in load order (each file starts with "use strict" and keeps to itself)."""
-    return "\n".join(p.read_text() for p in page_scripts())
+    """The page's ES modules (web/js/main.js and everything it imports) bundled by esbuild into one
+    classic script (an IIFE: no module loading at run time, so the single file's inline script keeps
+    working from file:// under its hash-only CSP). Strict mode, as in the modules, by a banner; no
+    minifying, so the shipped script stays readable."""
+    if not ESBUILD.exists():
+        raise SystemExit(f"missing {ESBUILD}: run `npm ci` in {ROOT} first")
+    run = subprocess.run(
+        [str(ESBUILD), str(PAGE_ENTRY.relative_to(ROOT)), "--bundle", "--format=iife", "--charset=utf8",
+         "--banner:js=\"use strict\";", "--log-level=warning"],
+        capture_output=True, text=True, cwd=ROOT)
+    if run.returncode != 0 or run.stderr.strip():
+        raise SystemExit(f"esbuild could not bundle the page's modules:\n{run.stderr[-4000:]}")
+    return run.stdout
 
 
 def package_zip(package_dir: Path) -> bytes:

@@ -51,20 +51,20 @@ def _add_param(parser: argparse.ArgumentParser, p: Param) -> None:
     if p.cli and not p.cli.startswith("-"):
         parser.add_argument(p.key, metavar=p.cli, help=_help(p), nargs=None if p.required else "?")
         return
-    name = _flag_name(p)
+    names = [_flag_name(p), *p.cli_aliases]
     if p.kind == "flag":
-        parser.add_argument(name, dest=p.key, action=argparse.BooleanOptionalAction, default=None, help=_help(p))
+        parser.add_argument(*names, dest=p.key, action=argparse.BooleanOptionalAction, default=None, help=_help(p))
     elif p.kind in ("objects", "map"):
         order = p.cli_sep.join(p.cli_order) if p.cli_order else "KEY=VALUE,…"
         order += ",…" if p.cli_sep != "," else ""
         meta = "ISOTOPE=VALUE" if p.kind == "map" else order.upper().replace("_", "-")
-        parser.add_argument(name, dest=p.key, action="append", metavar=meta, help=_help(p) + " (repeat the flag)")
+        parser.add_argument(*names, dest=p.key, action="append", metavar=meta, help=_help(p) + " (repeat the flag)")
     elif p.kind == "integer":
-        parser.add_argument(name, dest=p.key, type=int, help=_help(p))
+        parser.add_argument(*names, dest=p.key, type=int, help=_help(p))
     elif p.kind == "number":
-        parser.add_argument(name, dest=p.key, type=float, help=_help(p))
+        parser.add_argument(*names, dest=p.key, type=float, help=_help(p))
     else:
-        parser.add_argument(name, dest=p.key, help=_help(p))
+        parser.add_argument(*names, dest=p.key, help=_help(p))
 
 
 def _declarations() -> dict[str, Op]:
@@ -237,7 +237,8 @@ def render_spin_system(response: dict) -> str:
             verdict = "first order" if c["first_order"] else "second order"
             when = c["first_order_from_MHz"]
             hint = f"; reaches 10 at {when:.0f} MHz" if when and not c["first_order"] else ""
-            out.append(f"  spins {c['pair'][0]}–{c['pair'][1]}: Δν/J = {c['delta_nu_over_J']:.3g} ({verdict}{hint})")
+            a, b = c.get("labels") or c["pair"]
+            out.append(f"  spins {a}–{b}: Δν/J = {c['delta_nu_over_J']:.3g} ({verdict}{hint})")
         out.append("  ppm        Hz           intensity")
         out += [f"  {l['ppm']:<10.5f} {l['Hz']:<12.3f} {l['intensity']:.6f}" for l in block["lines"]]
     out += [f"note: {w}" for w in response["warnings"]]
@@ -253,6 +254,40 @@ def render_identify(response: dict) -> str:
         parts = [f"{g['count']} × {g.get('partner') or 'I=' + g['spin']} J {g['J_Hz']:.2f} Hz" for g in cand["groups"]]
         out.append(f"{rank}. {cand['label']}  (score {cand['score']:.3f})  " + ("; ".join(parts) or "no coupling"))
     out += [f"note: {n}" for n in r["notes"] + response["warnings"]]
+    return "\n".join(out)
+
+
+def _magnet_line(r: dict) -> str:
+    return f"magnet {r['field_T']:.5f} T (¹H {_fmt(r['proton_MHz'])} MHz), {r['scale']} reference scale"
+
+
+def _difference(row: dict) -> str:
+    if row["difference_ppm"] is None:
+        return "—"
+    return f"{row['difference_ppm']:.{row['difference_decimals']}f}"
+
+
+def render_frequency(response: dict) -> str:
+    """``freq``: the 0 ppm (Ξ) frequency first, the bare nucleus second, their difference to the
+    precision the tabulated values support; the all-nuclide table with the same columns."""
+    r = response["result"]
+    out = [_magnet_line(r)]
+    if "table" in r:
+        cols = ["nuclide", "spin", "abundance %", "0 ppm (MHz)", "bare nucleus (MHz)", "0 ppm − bare (ppm)",
+                "signal vs ¹³C"]
+        cells = [[row["symbol"], row["spin"], _fmt(row["abundance_percent"]), _fmt(row["reference_MHz"]),
+                  _fmt(row["larmor_MHz"]), _difference(row), f"{row['receptivity_C']:.3g}"] for row in r["table"]]
+        widths = [max(len(c), *(len(x[i]) for x in cells)) for i, c in enumerate(cols)]
+        out.append("  ".join(c.ljust(w) for c, w in zip(cols, widths)))
+        out += ["  ".join(x.ljust(w) for x, w in zip(row, widths)) for row in cells]
+    else:
+        zero = f"{_fmt(r['reference_MHz'])} MHz" if r["reference_MHz"] is not None else "— (no Ξ tabulated)"
+        out += [f"{r['symbol']} (spin {r['spin']}, natural abundance {_fmt(r['abundance_percent'])} %)",
+                f"  0 ppm frequency (Ξ)      {zero}",
+                f"  bare nucleus (Larmor)    {_fmt(r['larmor_MHz'])} MHz",
+                f"  0 ppm − bare nucleus     {_difference(r)} ppm",
+                f"  signal vs ¹³C at natural abundance  {r['receptivity_C']:.3g}"]
+    out += [f"note: {r['difference_note']}"] + [f"note: {w}" for w in response["warnings"]]
     return "\n".join(out)
 
 
@@ -285,7 +320,8 @@ def render_spectrum(response: dict) -> str:
 
 
 # ops with a text form of their own
-RENDER = {"multiplet": render_multiplet, "spin_system": render_spin_system, "identify": render_identify,
+RENDER = {"frequency": render_frequency, "multiplet": render_multiplet, "spin_system": render_spin_system,
+          "identify": render_identify,
           "read_spectrum": render_spectrum}
 
 
@@ -322,8 +358,43 @@ def _read_stdin() -> str | None:
         return None
 
 
+def _stray_hint(op: Op, token: str, given: argparse.Namespace) -> str:
+    """What a stray command-line word probably meant: the flag of a parameter not yet given that reads it."""
+    import difflib
+
+    if token.startswith("-"):
+        flags = [n for p in op.params if p.cli != "-" and p.kind != "value" and not (p.cli and p.cli[0] != "-")
+                 for n in (_flag_name(p), *p.cli_aliases)]
+        close = difflib.get_close_matches(token.split("=")[0], flags, n=1)
+        return f"did you mean {close[0]}?" if close else f"see python -m nmrcalc {op.cli or op.name} --help"
+    for p in op.params:
+        if p.cli == "-" or p.kind not in ("nuclide", "quantity") or (p.cli and not p.cli.startswith("-")) \
+                or getattr(given, p.key, None) is not None:
+            continue
+        probe = handle({"op": "nuclide", "query": token}) if p.kind == "nuclide" else None
+        if probe is not None and probe["ok"]:
+            return f"did you mean {_flag_name(p)} {token}?"
+        if p.kind == "quantity" and p.unit:
+            from nmrcalc.units import parse_quantity
+            try:
+                parse_quantity(token, p.unit, p.key)
+            except ValueError:
+                continue
+            return f"did you mean {_flag_name(p)} '{token}'?"
+    return f"see python -m nmrcalc {op.cli or op.name} --help"
+
+
 def main(argv: list[str] | None = None) -> int:
-    args = build_parser().parse_args(argv)
+    parser = build_parser()
+    args, stray = parser.parse_known_args(argv)
+    if stray:
+        op = commands().get(args.command)
+        if op is None:  # api, describe, demo: argparse's own message (it exits with status 2)
+            parser.parse_args(argv)
+            return 2
+        _emit(f"python -m nmrcalc {args.command}: '{stray[0]}' was not understood; {_stray_hint(op, stray[0], args)}",
+              sys.stderr)
+        return 2
     if args.command == "api":
         text = _read_stdin()
         if text is None:

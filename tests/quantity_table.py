@@ -10,9 +10,27 @@ from __future__ import annotations
 
 THIN, NBSP, MINUS = "\u2009", "\u00a0", "\u2212"
 
+# The pattern finder's fields are typed beside a pasted list of three lines (a 1:2:1 triplet, 7 Hz).
+FINDER_LINES = [[1230.5, 1], [1237.5, 2], [1244.5, 1]]
+FINDER_TEXT = "1230.5\t1\n1237.5\t2\n1244.5\t1"
+
+
+FINDER_OPTIONAL = ("ident-tolerance", "ident-linewidth", "ident-resolution")
+
+
+def FINDER_PAGE(input_id: str, prefill: dict | None = None) -> dict:
+    """Where a finder field sits in the page, with the list pasted, the magnet set and the other
+    optional fields cleared first."""
+    fill = {"ident-peaklist": FINDER_TEXT, "ident-magnet": "400", **{f: "" for f in FINDER_OPTIONAL}}
+    fill.update(prefill or {})
+    fill.pop(input_id)
+    return dict(page=("identify", input_id, {"ident-magnet-unit": "MHz"}, "ident"), clicks=["ident-mode-paste"],
+                prefill=fill)
+
+
 # field -> API request around the typed text, the key that carries it, and how to read the
 # value back in SI from the result; "page" is (tab, input id, {select id: option}, form id),
-# "prefill" other inputs of that form the page test sets first.
+# "clicks" buttons the page test presses first, "prefill" other inputs of that form it sets first.
 FIELDS = {
     "magnet as 1H frequency": dict(
         request={"op": "frequency", "nucleus": "1H"}, key="spectrometer",
@@ -88,6 +106,31 @@ FIELDS = {
                  "couplings": [{"between": [0, 1], "J": "8"}]}, key="fields",
         si=lambda r: r["fields"][-1]["spectrometer_MHz"] * 1e6,   # the last magnet of the list
         page=("spins", "spins-fields", {}, "spins")),
+    "solvent shift": dict(
+        request={"op": "solvents", "nucleus": "1H"}, key="query",
+        si=lambda r: (r["solvents"][0]["shift_ppm"] - r["solvents"][0]["distance_ppm"]) * 1e-6,
+        page=("labels", "solvents-query", {}, "solvents")),
+    "finder tolerance": dict(
+        request={"op": "identify", "spectrometer": "400 MHz", "lines": FINDER_LINES}, key="tolerance",
+        si=lambda r: r["tolerance_Hz"], **FINDER_PAGE("ident-tolerance")),
+    "finder line width": dict(
+        request={"op": "identify", "spectrometer": "400 MHz", "lines": FINDER_LINES}, key="linewidth",
+        si=lambda r: r["linewidth_Hz"], **FINDER_PAGE("ident-linewidth")),
+    "finder digital resolution": dict(
+        request={"op": "identify", "spectrometer": "400 MHz", "lines": FINDER_LINES}, key="digital_resolution",
+        si=lambda r: r["digital_resolution_Hz"], **FINDER_PAGE("ident-resolution")),
+    "finder magnet": dict(
+        request={"op": "identify", "lines": FINDER_LINES}, key="spectrometer",
+        si=lambda r: r["observe_MHz"] * 1e6, **FINDER_PAGE("ident-magnet")),
+    "peak list": dict(
+        request={"op": "identify", "spectrometer": "400 MHz"}, key="peaklist",
+        si=lambda r: r["observed"][0]["Hz"], **FINDER_PAGE("ident-peaklist")),
+    "spin coupling": dict(
+        request={"op": "spin_system", "observe": "1H", "spectrometer": "400 MHz",
+                 "spins": [{"nucleus": "1H", "shift": "4.10"}, {"nucleus": "1H", "shift": "4.22"}],
+                 "couplings": [{"between": [0, 1], "J": "1"}]}, key="couplings.0.J",
+        si=lambda r: r["checks"][0]["J_Hz"],
+        page=("spins", "spins-c0-J", {}, "spins")),
 }
 
 TABLE = [
@@ -147,6 +190,22 @@ TABLE = [
     ("multiplet J", "19.3 Hz", 19.3),
     ("several fields", "400 MHz, 600", 600e6),
     ("several fields", "400, 600 MHz", 600e6),
+    ("solvent shift", "2.50", 2.50e-6),
+    ("solvent shift", "2.50 ppm", 2.50e-6),
+    ("solvent shift", "2500 ppb", 2.50e-6),
+    ("finder tolerance", "0.5", 0.5),
+    ("finder tolerance", "500 mHz", 0.5),
+    ("finder line width", "0.8 Hz", 0.8),
+    ("finder line width", "800 mHz", 0.8),
+    ("finder digital resolution", "0.12 Hz", 0.12),
+    ("finder magnet", "400 MHz", 400e6),
+    ("finder magnet", "0.4 GHz", 400e6),
+    ("peak list", "1230.5 Hz, 1\n1237.5 Hz, 2\n1244.5 Hz, 1", 1230.5),
+    ("peak list", "1.2305 kHz\t1\n1.2375 kHz\t2\n1.2445 kHz\t1", 1230.5),
+    ("peak list", f"{MINUS}5.5 1\n{MINUS}12.5 2\n{MINUS}19.5 1", -5.5),
+    ("spin coupling", "-12.5", -12.5),
+    ("spin coupling", f"{MINUS}12.5 Hz", -12.5),
+    ("spin coupling", "12500 mHz", 12.5),
 ]
 
 # Typed text the API refuses, with a piece of the message that must tell the user what to do.
@@ -158,6 +217,10 @@ REFUSED = [
     ("coupling", "1,5", "Did you mean 1.5?"),
     ("temperature", "25 Hz", "give K or °C"),
     ("shift", "7.26 Hz", "give ppm"),
+    ("solvent shift", "2,50", "Did you mean 2.50?"),
+    ("finder tolerance", "0.5 ppm", "give Hz, mHz, kHz or MHz"),
+    ("peak list", "Hz;intensity\n1230,5;1\n1237,5;2", "did you mean 1230.5?"),
+    ("spin coupling", "1,5", "Did you mean 1.5?"),
 ]
 
 

@@ -8,7 +8,7 @@ import sys
 import pytest
 
 from nmrcalc import __version__
-from nmrcalc.api import OPS
+from nmrcalc.api import OPS, handle
 from nmrcalc.cli import build_parser, commands, main
 
 
@@ -20,9 +20,28 @@ def run(args, stdin=None):
 def test_readable_and_json(capsys):
     assert main(["freq", "--nucleus", "29Si", "--spectrometer", "400.13 MHz"]) == 0
     out = capsys.readouterr().out
-    assert "larmor_MHz" in out and "reference_MHz" in out
+    r = handle({"op": "frequency", "nucleus": "29Si", "spectrometer": "400.13 MHz"})["result"]
+    # the 0 ppm frequency is the headline, the bare nucleus second, both labelled; no API keys
+    zero, bare = out.index("0 ppm frequency (Ξ)"), out.index("bare nucleus (Larmor)")
+    assert zero < bare and f"{r['reference_MHz']:.6f}".rstrip("0") in out[zero:bare]
+    assert "larmor_MHz" not in out and "reference_MHz" not in out and "receptivity_C" not in out
+    assert main(["freq", "--magnet", "400"]) == 0
+    table = capsys.readouterr().out
+    assert "0 ppm (MHz)" in table and "signal vs ¹³C" in table and "\n13C " in table
     assert main(["scale", "32 Hz", "--from", "D", "--to", "1H", "--json"]) == 0
     assert json.loads(capsys.readouterr().out)["result"]["J_Hz"] > 200
+
+
+@pytest.mark.parametrize("argv,hint", [
+    (["freq", "400", "--nucleus", "15N"], "did you mean --spectrometer '400'?"),
+    (["freq", "¹⁵N", "--magnet", "400"], "did you mean --nucleus ¹⁵N?"),
+    (["freq", "--nucleus", "15N", "--magnet", "400", "--spinhalf"], "did you mean --spin-half-only?"),
+    (["scale", "20.1 Hz", "--from", "D", "--to", "H", "13C"], "did you mean --partner 13C?"),
+])
+def test_a_stray_word_is_named_with_the_flag_it_needs(argv, hint, capsys):
+    assert main(argv) == 2
+    captured = capsys.readouterr()
+    assert captured.out == "" and hint in captured.err and "was not understood" in captured.err
 
 
 def test_bad_input_goes_to_stderr_with_status_2(capsys):

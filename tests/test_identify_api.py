@@ -76,6 +76,12 @@ def test_platinum_satellites_around_a_quartet_from_the_multiplet_csv():
     ("ppm,Hz,intensity\n,-7.0,0.25\n,0.0,0.5\n,7.0,0.25\n", "Hz", [-7.0, 0.0, 7.0]),
     ("ppm\tHz\tintensity\n\t-7.0\t0.25\n\t0.0\t0.5\n", "Hz", [-7.0, 0.0]),
     ("3.10\n3.12\n", None, [3.10, 3.12]),
+    # units typed per position, in each separator style; a Unicode minus; kHz read as Hz
+    ("1230.5 Hz, 1\n1237.5 Hz, 2\n", "Hz", [1230.5, 1237.5]),
+    ("1230.5 Hz 1\n1237.5 Hz 2\n", "Hz", [1230.5, 1237.5]),
+    ("1.2305 kHz\t1\n1.2375 kHz\t2\n", "Hz", [1230.5, 1237.5]),
+    ("3.076 ppm;1\n3.094 ppm;2\n", "ppm", [3.076, 3.094]),
+    ("\u22125.5, 1\n\u221212.5, 2\n", None, [-5.5, -12.5]),
 ])
 def test_peaklist_parser_formats(text, unit, positions):
     parsed = parse_peaklist(text)
@@ -91,6 +97,24 @@ def test_peaklist_unit_guess_is_reported():
     assert r["candidates"][0]["label"] == "t"
     r = run({"observe": "1H", "peaklist": "100 1\n107 2\n114 1\n"})
     assert r["unit"] == "Hz" and any("read as Hz" in n for n in r["notes"])
+
+
+@pytest.mark.parametrize("text,words", [
+    # a semicolon-separated export with decimal commas is refused, never misread as two columns
+    ("Hz;intensity\n1230,5;1\n1237,5;2\n", ["line 2", "did you mean 1230.5?"]),
+    ("1230.5 Hz, 1\n3.09 ppm, 2\n", ["line 2", "in ppm", "line 1 gives Hz"]),
+    ("ppm,intensity\n1230.5 Hz, 1\n", ["line 2", "the header gives ppm"]),
+])
+def test_peaklist_refuses_what_it_would_misread(text, words):
+    with pytest.raises(InputError) as err:
+        parse_peaklist(text)
+    assert all(w in err.value.message for w in words), err.value.message
+
+
+def test_stated_tolerance_says_width_and_resolution_are_unused():
+    r = run({"lines": [[100, 1], [107, 1]], "tolerance": "0.5 Hz", "linewidth": "0.8 Hz"})
+    assert r["tolerance_Hz"] == 0.5 and r["linewidth_Hz"] == 0.8
+    assert any("change nothing" in n for n in r["notes"])
 
 
 def test_peaklist_errors_give_line_numbers():

@@ -54,6 +54,18 @@ def test_name_search_and_no_match():
     assert r["ok"] and r["result"]["solvents"] == [] and any("No listed" in w for w in r["warnings"])
 
 
+@pytest.mark.parametrize("query", ["2.50", "2.50 ppm", "2500 ppb", "2.5e0 ppm", "2.5×10^0 ppm"])
+def test_shift_query_as_typed(query):
+    # the unit parser reads the shift (SI prefixes: 1 ppb = 1e-3 ppm, arithmetic)
+    assert "DMSO-d6" in {h["name"] for h in run({"query": query, "nucleus": "1H"})}
+
+
+@pytest.mark.parametrize("query,words", [("2,50", "Did you mean 2.50?"), ("2.5 Hz", "give ppm")])
+def test_shift_query_refused_with_a_hint(query, words):
+    r = handle({"op": "solvents", "query": query})
+    assert not r["ok"] and r["error"]["field"] == "query" and words in r["error"]["message"]
+
+
 @pytest.mark.parametrize("req,field", [({"nucleus": "19F"}, "nucleus"),
                                        ({"query": "dmso", "tolerance": 1}, "tolerance"), ({"query": ["x"]}, "query")])
 def test_errors(req, field):

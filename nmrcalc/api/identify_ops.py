@@ -193,12 +193,14 @@ def _small_int(req: dict, key: str, lo: int, hi: int, default: int) -> int:
     return value
 
 
-def _tolerance(req: dict, spacings: list[float], notes: list[str]) -> float:
-    """The stated tolerance, or one from the data: digital resolution / line width, else the default."""
+def _tolerance(req: dict, resolution: float, width: float, spacings: list[float], notes: list[str]) -> float:
+    """The stated tolerance, or one from the data: digital resolution / line width (Hz, 0 when not
+    known), else the default."""
     if req.get("tolerance") not in (None, ""):
+        if resolution or width:
+            notes.append("The stated tolerance is used; the line width and digital resolution given only set "
+                         "the tolerance when none is stated, so here they change nothing.")
         return quantity(req, "tolerance", "coupling", positive=True)
-    resolution = quantity(req, "digital_resolution", "coupling", positive=True, default=0.0)
-    width = quantity(req, "linewidth", "coupling", positive=True, default=0.0)
     if resolution or width:
         tol = max(TOLERANCE_PER_POINT * resolution, TOLERANCE_PER_WIDTH * width)
         how = (f"from the data: the larger of {TOLERANCE_PER_POINT:g} × the digital resolution and "
@@ -301,7 +303,9 @@ def op_identify(req: dict, warnings: list[str]) -> dict:
 
     xs = sorted(x for x, _ in lines_Hz)
     spacings = [b - a for a, b in zip(xs, xs[1:]) if b - a > 0]
-    tol = _tolerance(req, spacings, notes)
+    resolution = quantity(req, "digital_resolution", "coupling", positive=True, default=0.0)
+    width = quantity(req, "linewidth", "coupling", positive=True, default=0.0)
+    tol = _tolerance(req, resolution, width, spacings, notes)
     limits = {"max_groups": _small_int(req, "max_groups", 1, MAX_GROUPS, MAX_GROUPS),
               "max_count": _small_int(req, "max_count", 1, MAX_COUNT, MAX_COUNT),
               "top": _small_int(req, "top", 1, 20, 5)}
@@ -350,7 +354,8 @@ def op_identify(req: dict, warnings: list[str]) -> dict:
             "observed": [{"Hz": x, "intensity": y, **({"ppm": larmor.shift_ppm(ref_MHz, x)} if ref_MHz else {})}
                          for x, y in lines_Hz],
             "unit": sorted(units)[0] if len(units) == 1 else "mixed",
-            "tolerance_Hz": tol, "candidates": candidates, "label": best.label,
+            "tolerance_Hz": tol, "linewidth_Hz": width or None, "digital_resolution_Hz": resolution or None,
+            "candidates": candidates, "label": best.label,
             "center_Hz": best.center_Hz, "center_ppm": larmor.shift_ppm(ref_MHz, best.center_Hz) if ref_MHz else None,
             "observe_MHz": ref_MHz, "searched": found.evaluated, "complete": found.complete,
             "satellites": satellites,

@@ -77,6 +77,7 @@ class Param:
     items: tuple[Param, ...] = ()
     example: Any = None              # a valid value, for docs and the fuzz
     cli: str | None = None           # flag or positional name; "-" keeps it off the CLI
+    cli_aliases: tuple[str, ...] = ()  # further flags for the same key (e.g. --magnet)
     cli_order: tuple[str, ...] = ()  # objects: the item keys a CLI text fills, in order
     cli_sep: str = ","               # objects: separates an item's parts; another one lets "," separate items
     file: bool = False               # text: the CLI reads it from a file ('-' = standard input)
@@ -139,7 +140,8 @@ def _unit_name(kind: str | None) -> str | None:
 # The magnet, shared by every op that needs one.
 MAGNET = (
     Param("spectrometer", "quantity", unit="magnet_MHz", label="Spectrometer (¹H frequency)",
-          help="the magnet named by its 1H frequency, e.g. '400.13 MHz'", example="400.13 MHz"),
+          help="the magnet named by its 1H frequency, e.g. '400.13 MHz' (or its field, '9.4 T')",
+          example="400.13 MHz", cli_aliases=("--magnet",)),
     Param("field", "quantity", unit="magnet_T", label="Field B₀",
           help="the magnet as a flux density, e.g. '9.4 T' or '94000 G' (instead of spectrometer)"),
 )

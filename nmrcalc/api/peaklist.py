@@ -2,9 +2,13 @@
 
 Format rules
 ------------
-* Separators: a comma if the line has one, else a tab, else runs of spaces;
-  a ``;`` line separator is accepted like a comma.  Blank lines and lines
-  starting with ``#`` are skipped.
+* Separators: a ``;`` if the line has one (then a comma inside a number is a
+  decimal comma, refused with "did you mean 1230.5?"), else a comma, else a
+  tab, else runs of spaces.  Blank lines and lines starting with ``#`` are
+  skipped.
+* A position may carry its unit ("1230.5 Hz", "1.23 kHz", "3.08 ppm"); every
+  line that does must name the same unit (Hz or ppm), and it must agree with
+  a header that names one.  A Unicode minus (−) reads as a minus.
 * A header is the first line in which no cell is a number (so a data line is never taken for one).  Its
   cells name the columns: one containing ``hz`` is a position in Hz, one
   containing ``ppm`` a position in ppm; one containing ``int``, ``height``,
@@ -18,7 +22,7 @@ Format rules
 * A single column gives positions only; every intensity is then 1 (and the
   caller says so).
 
-The unit is what the header names (``"Hz"`` / ``"ppm"``), else ``None``: the
+The unit is what the header or the cells name (``"Hz"`` / ``"ppm"``), else ``None``: the
 caller decides (see ``nmrcalc.api.identify_ops``).
 """
 
@@ -29,6 +33,7 @@ import re
 from typing import NamedTuple
 
 from nmrcalc.errors import InputError
+from nmrcalc.units import normalise
 
 MAX_TEXT_CHARS = 100_000
 MAX_PEAKS = 500
@@ -45,20 +50,37 @@ class PeakList(NamedTuple):
 _DECIMAL_COMMA = re.compile(r"^[-+−]?\d+,\d+$")  # "1,5" beside other columns split by spaces or tabs
 
 
+_UNIT_AFTER_NUMBER = re.compile(r"(?<=[\d.])\s+(?=(?:k?hz|ppm)\b)", re.IGNORECASE)
+_WITH_UNIT = re.compile(r"(.*?\d\.?)\s*(k?hz|ppm)", re.IGNORECASE)
+_UNIT_SCALE = {"hz": ("Hz", 1.0), "khz": ("Hz", 1e3), "ppm": ("ppm", 1.0)}
+
+
 def _cells(line: str) -> list[str]:
-    if "," in line or ";" in line:
-        return [c.strip() for c in re.split(r"[,;]", line)]
+    if ";" in line:
+        return [c.strip() for c in line.split(";")]
+    if "," in line:
+        return [c.strip() for c in line.split(",")]
     if "\t" in line:
         return [c.strip() for c in line.split("\t")]
-    return line.split()
+    return _UNIT_AFTER_NUMBER.sub("", line).split()  # "1230.5 Hz 1" → "1230.5Hz", "1"
 
 
 def _number(cell: str) -> float | None:
     try:
-        x = float(cell)
+        x = float(normalise(cell))
     except ValueError:
         return None
     return x if math.isfinite(x) else None
+
+
+def _position(cell: str) -> tuple[float | None, str | None]:
+    """A position cell as (value, unit or None); "1.2 kHz" → (1200.0, "Hz")."""
+    m = _WITH_UNIT.fullmatch(cell.strip())
+    if not m:
+        return _number(cell), None
+    unit, scale = _UNIT_SCALE[m.group(2).lower()]
+    x = _number(m.group(1))
+    return (None if x is None else x * scale), unit
 
 
 def _column(header: list[str], words: tuple[str, ...]) -> int | None:
@@ -86,7 +108,12 @@ def parse_peaklist(text: object, field: str = "peaklist") -> PeakList:
             raise InputError(f"{field} line {number}: '{comma}' has a decimal comma; "
                              f"did you mean {comma.replace(',', '.')}?", field)
         cells = _cells(raw.rstrip("\r\n "))  # keep a leading empty cell (e.g. an empty ppm column)
-        if header is None and not rows and all(_number(c) is None for c in cells if c):
+        if ";" in line:
+            comma = next((c for c in cells if _DECIMAL_COMMA.match(c)), None)
+            if comma is not None:
+                raise InputError(f"{field} line {number}: '{comma}' has a decimal comma; "
+                                 f"did you mean {comma.replace(',', '.')}?", field)
+        if header is None and not rows and all(_position(c)[0] is None for c in cells if c):
             header = cells
             continue
         rows.append((number, cells))
@@ -114,15 +141,21 @@ def parse_peaklist(text: object, field: str = "peaklist") -> PeakList:
         if firsts == [float(k) for k in range(1, len(rows) + 1)]:
             pos_col = 1
     given = int_col != pos_col
+    unit_from = "the header"
 
     peaks = []
     for number, cells in rows:
         where = f"{field} line {number}"
         if len(cells) <= max(pos_col, int_col if given else 0):
             raise InputError(f"{where}: expected {max(pos_col, int_col) + 1} columns, found {len(cells)}.", field)
-        pos = _number(cells[pos_col])
+        pos, cell_unit = _position(cells[pos_col])
         if pos is None:
             raise InputError(f"{where}: '{cells[pos_col][:30]}' is not a number (the position).", field)
+        if cell_unit is not None:
+            if unit is not None and cell_unit != unit:
+                raise InputError(f"{where}: the position is in {cell_unit}, but {unit_from} gives {unit}; "
+                                 "use one unit for the whole list.", field)
+            unit, unit_from = cell_unit, f"line {number}"
         if given:
             y = _number(cells[int_col])
             if y is None:

@@ -1,7 +1,8 @@
 """The ``solvents`` op: residual solvent and water signals (``nmrcalc.data.solvents``),
 each with the first-order multiplet the engine predicts from its couplings to 2H.
 
-``query`` (optional): a shift ("2.50", "2.50 ppm") → the rows within
+``query`` (optional): a shift ("2.50", "2.50 ppm", "−0.1 ppm"; read by the unit parser, so
+"2,50" is refused with "did you mean 2.50?" and "2.5 Hz" with the units that apply) → the rows within
 ``tolerance`` (default 0.05 ppm for 1H, 0.5 ppm for 13C; common practice, no
 source: residual signals move by a few hundredths of a ppm with concentration
 and temperature); any other text → the solvents whose name or aliases contain it.
@@ -21,7 +22,10 @@ from nmrcalc.errors import InputError
 from nmrcalc.physics.multiplet import multiplet, multiplet_label, ratio_string
 
 DEFAULT_TOLERANCE_PPM = {"1H": 0.05, "13C": 0.5}
-_SHIFT = re.compile(r"\s*[-+]?(\d+\.?\d*|\.\d+)\s*(ppm)?\s*", re.IGNORECASE)
+# Text that starts as a number and ends in at most a short unit is a shift ("2.50", "2,50", "7260 ppb",
+# "2.5e0 ppm"); anything else ("1,4-dioxane", "DMSO") is a name.
+_SHIFT = re.compile(r"\s*[-+\u2212]?(\d[\d.,\u2009\u202f]*|[.,]\d+)"
+                    r"([eE][-+\u2212]?\d+|\s*[×x]\s*10\S*)?\s*[A-Za-zµ]{0,4}\s*")
 DEUTERON = Fraction(1)
 
 

@@ -131,7 +131,7 @@ def _bad_share_links(page):
         "#calc=" + _b64url({"panel": "multiplet", "form": "mult", "request": {"op": "multiplet"}, "inputs": {"mult.rows": {"groups": [{"kind": 1}], "abundance": []}}}): "form this page expects",
     }
     for fragment, reason in cases.items():
-        page.evaluate("(h) => NMR.openShareLink(h)", fragment)
+        page.evaluate("(h) => nmrcalcTest.openShareLink(h)", fragment)
         expect(page.locator("#page-notice")).to_contain_text("could not be opened")
         expect(page.locator("#page-notice")).to_contain_text(reason)
 
@@ -142,8 +142,8 @@ def _worker_crash(rec, want):
     page.click("#tab-coupling")
     before = page.locator("#scale-result").inner_text()
     response = page.evaluate("""() => {
-        NMR.debugWorker().postMessage({ type: "not-a-message-type" });
-        return NMR.api({ op: "nuclide", query: "1H" });
+        nmrcalcTest.worker().postMessage({ type: "not-a-message-type" });
+        return nmrcalcTest.api({ op: "nuclide", query: "1H" });
     }""")
     assert response["ok"] is False
     assert response["error"]["code"] == "worker_restarted" and response["error"]["retryable"] is True
@@ -154,7 +154,7 @@ def _worker_crash(rec, want):
     expect(page.locator("#scale-J")).to_have_value("32")
     assert page.locator("#scale-result").inner_text() == before
     expect(page.locator("#tab-notebook")).to_be_visible()
-    assert page.evaluate("NMRNotebook.list().length") == 2
+    assert page.evaluate("nmrcalcTest.notebook.list().length") == 2
     page.click("#form-scale button[type=submit]")
     expect(page.locator("#scale-result")).to_contain_text(f"{want['J_Hz']:#.5g}")
     expect(page.locator("#scale-form-error")).to_be_empty()
@@ -169,7 +169,7 @@ def _panel_with_rows(rec):
     page.wait_for_function("() => window.nmrcalcStatus.pending === 0")
     expect(page.locator("#card-mult .pin-open")).to_be_enabled()
     pin(page, "mult", "rows pin")
-    link_state = page.evaluate("NMRNotebook.list()[0]")
+    link_state = page.evaluate("nmrcalcTest.notebook.list()[0]")
     assert link_state["form"] == "mult" and link_state["inputs"]["mult.rows"]["groups"][0]["J"] == "21.7"
     assert link_state["request"]["op"] == "multiplet"
     page.fill("#mult-g0-J", "3")

@@ -16,7 +16,7 @@ def test_progress_shown_then_ready(dist, open_page):
     page = rec.page
     page.evaluate("(req) => { window.__seen = []; const t = document.getElementById('boot-text');"
                   " new MutationObserver(() => window.__seen.push(t.textContent)).observe(t, {childList: true, characterData: true, subtree: true});"
-                  " window.__reply = NMR.api(req); }", REQUEST)
+                  " window.__reply = nmrcalcTest.api(req); }", REQUEST)
     reply = page.evaluate("async () => await window.__reply")
     assert reply["ok"], reply
     seen = page.evaluate("() => window.__seen")

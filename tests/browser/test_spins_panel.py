@@ -48,7 +48,7 @@ def test_preset_checks_fields_error_and_cancel(dist, open_page):
 
     # cancel ends the worker; a fresh one answers the next run
     page.fill("#spins-s0-shift", "5.30")
-    page.evaluate("NMR.cancel()")
+    page.evaluate("nmrcalcTest.cancel()")
     page.click("#form-spins button[type=submit]")
     expect(page.locator("#spins-s0-shift-error")).to_be_empty(timeout=60_000)
     expect(rows).to_have_count(len(want["checks"]))

@@ -53,7 +53,7 @@ def test_two_tabs_keep_both_pins_and_inputs(dist, open_page):
     for page in (a, b):
         page.reload()
         page.wait_for_selector("#boot[data-state=ready]", state="attached", timeout=90_000)
-        notes = page.evaluate("NMRNotebook.list().map((p) => p.note)")
+        notes = page.evaluate("nmrcalcTest.notebook.list().map((p) => p.note)")
         assert sorted(notes) == ["from tab A", "from tab B"]
         page.click("#tab-coupling")
         expect(page.locator("#scale-J")).to_have_value("32")
@@ -108,12 +108,12 @@ def test_share_link_is_computed_from_its_fields(dist, open_page):
     inputs = {"energy.nucleus": {"value": "1H"}, "energy.temperature": {"value": "298"}}
     fragment = "#calc=" + _b64url({"panel": "energy", "form": "energy", "inputs": inputs,
                                    "request": {"op": "energy", "nucleus": "1H", "spectrometer": "500 MHz", "temperature": "4 K"}})
-    page.evaluate("(h) => NMR.openShareLink(h)", fragment)
+    page.evaluate("(h) => nmrcalcTest.openShareLink(h)", fragment)
     expect(page.locator("#energy-temperature")).to_have_value("298")
     page.wait_for_function("() => window.nmrcalcStatus.pending === 0")
     expect(page.locator("#card-energy .pin-open")).to_be_enabled()
     pin(page, "energy", "link")
-    assert page.evaluate("NMRNotebook.list()[0].request.temperature") == "298"  # as typed: a bare number is in K
+    assert page.evaluate("nmrcalcTest.notebook.list()[0].request.temperature") == "298"  # as typed: a bare number is in K
 
 
 def test_pins_and_csv_are_fileable(dist, open_page):
@@ -143,9 +143,9 @@ def test_pins_and_csv_are_fileable(dist, open_page):
     for row in rows:
         for cell in row.values():
             assert not cell or cell[0] not in "=+-@\t\r" or cell.lstrip("-+").replace(".", "", 1).isdigit(), cell
-    guards = page.evaluate("['=1', '+1+A1', '-1+cmd', '@a', '\\t1', '\\r1', '1', '-57.9'].map((c) => NMRNotebook.csvCell(c))")
+    guards = page.evaluate("['=1', '+1+A1', '-1+cmd', '@a', '\\t1', '\\r1', '1', '-57.9'].map((c) => nmrcalcTest.notebook.csvCell(c))")
     assert guards == ["'=1", "'+1+A1", "'-1+cmd", "'@a", "'\t1", "\"'\r1\"", "1", "-57.9"]
-    assert page.evaluate("NMRNotebook.cleanNumber(-57.900000000000006)") == "-57.9"
+    assert page.evaluate("nmrcalcTest.notebook.cleanNumber(-57.900000000000006)") == "-57.9"
 
 
 def test_multiplet_csv_header_and_order(dist, open_page):

@@ -30,10 +30,10 @@ RECORD_CALLS = """(() => {
   window.Worker = Recording;
 })();"""
 
-# The reply to the latest call whose request carries `text` at `path` (dotted), or null.
-FIND_REPLY = """([path, text]) => {
+# The reply to the latest call of `op` whose request carries `text` at `path` (dotted), or null.
+FIND_REPLY = """([op, path, text]) => {
   const at = (obj, keys) => keys.reduce((o, k) => (o == null ? undefined : o[k]), obj);
-  const hits = Object.values(window.__calls).filter((c) => c.res && at(c.req, path.split(".")) === text);
+  const hits = Object.values(window.__calls).filter((c) => c.res && c.req.op === op && at(c.req, path.split(".")) === text);
   return hits.length ? hits[hits.length - 1].res : null;
 }"""
 
@@ -41,13 +41,15 @@ FIND_REPLY = """([path, text]) => {
 def _type(page, field, text):
     tab, input_id, selects, form = FIELDS[field]["page"]
     page.click(f"#tab-{tab}")
+    for button in FIELDS[field].get("clicks", []):
+        page.click(f"#{button}")
     for select, option in selects.items():
         page.select_option(f"#{select}", option)
     for other, value in FIELDS[field].get("prefill", {}).items():
         page.fill(f"#{other}", value)
     page.fill(f"#{input_id}", text)
     page.click(f"#form-{form} button[type=submit]")
-    handle = page.wait_for_function(FIND_REPLY, arg=[FIELDS[field]["key"], text], timeout=30_000)
+    handle = page.wait_for_function(FIND_REPLY, arg=[FIELDS[field]["request"]["op"], FIELDS[field]["key"], text], timeout=30_000)
     return handle.json_value()
 
 

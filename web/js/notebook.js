@@ -2,7 +2,9 @@
 // localStorage, JSON/CSV export and import, and share links (#calc=<base64url
 // JSON {panel, form, request, inputs}>) that recreate a calculation offline.
 // Everything a user typed is shown as text only (textContent, never HTML).
-"use strict";
+// An ES module: NMR is the shared namespace (core.js and this file's exports, see nmr.js),
+// used only when a function runs, so the core.js <-> notebook.js cycle is safe.
+import * as NMR from "./nmr.js";
 
 const NMRNotebook = (() => {
   const KEY = "nmrcalc.notebook.v1";
@@ -400,7 +402,7 @@ const NMRNotebook = (() => {
     });
     document.getElementById("page-notice").append(" ", undo);
   }
-  NMR.withUndo = (formId, what, replace) => {
+  const withUndoIn = (formId, what, replace) => {
     const handle = source(formId);
     if (handle) withUndo(handle, what, replace);
     else replace();
@@ -417,14 +419,14 @@ const NMRNotebook = (() => {
 
   /** Hand inputs (store key → saved value, the panel's own format) to another panel's form and compute there.
    * False if that panel or form is not on this page. */
-  NMR.openInputs = (panel, form, inputs) => {
+  const openInputs = (panel, form, inputs) => {
     const handle = source(form);
     if (!handle || !NMR.panelIds().includes(panel)) return false;
     show(panel, handle, inputs, "Opening it here");
     return true;
   };
 
-  NMR.openShareLink = (hash) => {
+  const openShareLink = (hash) => {
     if (!hash || !hash.startsWith("#calc=")) return;
     try {
       const entry = parseShare(hash);
@@ -438,7 +440,7 @@ const NMRNotebook = (() => {
   /** Pins for a panel with its own form: {id, node, fields: [sharedField states],
    * rows: {storeKey: {get: () => value, set(value)}}, run: () => compute again}.
    * Returns the pin bar; append its node under the result and call update({request, result}) or update(null). */
-  NMR.pinSource = ({ id, node, fields, rows, run }) => {
+  const pinSource = ({ id, node, fields, rows, run }) => {
     const snapshot = () => {
       const inputs = {};
       for (const f of fields) {
@@ -481,7 +483,7 @@ const NMRNotebook = (() => {
   }
 
   // ---------- the Pin bar under each result ----------
-  NMR.pinBar = ({ form }) => {
+  const pinBar = ({ form }) => {
     const { el } = NMR;
     let state = null;
     const pinButton = el("button", { type: "button", class: "small-button pin-open", disabled: true }, "Pin result");
@@ -555,5 +557,9 @@ const NMRNotebook = (() => {
   window.addEventListener("beforeprint", stampPrintDate);
   document.addEventListener("DOMContentLoaded", stampPrintDate);
 
-  return { list, add, remove, exportJSON, importJSON, toCSV, shareLink, parseShare, reopen, requestText, NotebookError, inputRows, resultRows, csvCell, csvHeader, cleanNumber, linesCSV, captionLines, onChange: (fn) => listeners.push(fn) };
+  return { list, add, remove, exportJSON, importJSON, toCSV, shareLink, parseShare, reopen, requestText, NotebookError, inputRows, resultRows, csvCell, csvHeader, cleanNumber, linesCSV, captionLines, onChange: (fn) => listeners.push(fn),
+    withUndo: withUndoIn, openInputs, openShareLink, pinSource, pinBar };
 })();
+
+export default NMRNotebook;
+export const { withUndo, openInputs, openShareLink, pinSource, pinBar } = NMRNotebook;

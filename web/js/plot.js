@@ -10,7 +10,8 @@
 // ppm axis, a stick diagram and a tree are a few dozen lines each in plain SVG.
 // Colours come from CSS variables (--plot-*) so light and dark themes both work,
 // and are written as presentation attributes so an exported SVG keeps them.
-"use strict";
+// An ES module; the notebook gives an exported plot its caption (used only when a plot is exported).
+import NMRNotebook from "./notebook.js";
 
 const NMRPlot = (() => {
   const SVG_NS = "http://www.w3.org/2000/svg";
@@ -519,3 +520,5 @@ const NMRPlot = (() => {
 
   return { create, tree, downloadText, exportSVG, exportPNG };
 })();
+
+export default NMRPlot;

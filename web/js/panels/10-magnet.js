@@ -1,8 +1,8 @@
 // Panel: magnet & frequencies — one nucleus at the magnet, ppm <-> Hz, and the
 // table of every magnetic nuclide at that field. One magnet field feeds all three.
-"use strict";
+import * as NMR from "../nmr.js";
 
-NMR.registerPanel({
+export default {
   id: "magnet",
   title: "Magnet & frequencies",
   build(container) {
@@ -154,4 +154,4 @@ NMR.registerPanel({
     container.append(el("div", { class: "cards" }, magnetCard, one.node, convert.node, window_.node, table.node));
     container.lastChild.lastChild.classList.add("card-wide");
   },
-});
+};

@@ -1,8 +1,8 @@
 // Panel: coupling between isotopologues — scale J from one isotope to another
 // by the ratio of magnetogyric ratios (of Ξ where both share a reference compound); optionally the reduced coupling K.
-"use strict";
+import * as NMR from "../nmr.js";
 
-NMR.registerPanel({
+export default {
   id: "coupling",
   title: "Isotopologue coupling",
   build(container) {
@@ -37,4 +37,4 @@ NMR.registerPanel({
     });
     container.append(el("div", { class: "cards" }, scale.node));
   },
-});
+};

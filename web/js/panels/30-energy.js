@@ -1,8 +1,8 @@
 // Panel: energy & signal strength — the spin transition energy and Boltzmann
 // populations, an optical photon for comparison, and relative receptivity.
-"use strict";
+import * as NMR from "../nmr.js";
 
-NMR.registerPanel({
+export default {
   id: "energy",
   title: "Energy & signal",
   build(container) {
@@ -83,4 +83,4 @@ NMR.registerPanel({
     container.append(el("div", { class: "cards" }, gap.node, recept.node));
     gap.node.classList.add("card-wide");
   },
-});
+};

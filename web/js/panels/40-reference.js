@@ -1,7 +1,7 @@
 // Panel: nuclide reference — search the nuclide data, tap one for its details.
-"use strict";
+import * as NMR from "../nmr.js";
 
-NMR.registerPanel({
+export default {
   id: "reference",
   title: "Nuclide reference",
   build(container) {
@@ -66,4 +66,4 @@ NMR.registerPanel({
     }
     NMR.whenShown(details, () => show(last));
   },
-});
+};

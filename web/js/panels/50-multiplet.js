@@ -2,9 +2,11 @@
 // (nuclides, elements with their isotope mixture, or bare spins). Everything
 // shown (label, ratio, lines, tree, spectrum, isotopologue traces) comes from
 // the API op "multiplet"; this file only collects inputs and draws results.
-"use strict";
+import * as NMR from "../nmr.js";
+import NMRPlot from "../plot.js";
+import NMRNotebook from "../notebook.js";
 
-NMR.registerPanel({
+export default {
   id: "multiplet",
   title: "Multiplet builder",
   build(container) {
@@ -464,4 +466,4 @@ NMR.registerPanel({
     drawRows();
     NMR.whenShown(card, run);
   },
-});
+};

@@ -1,8 +1,8 @@
 // Panel: solvent signals and deuteration level. Everything shown comes from the
 // API ops "solvents" and "deuteration"; this file collects inputs and draws results.
-"use strict";
+import * as NMR from "../nmr.js";
 
-NMR.registerPanel({
+export default {
   id: "labels",
   title: "Solvents & deuteration",
   build(container) {
@@ -130,4 +130,4 @@ NMR.registerPanel({
     solvents.node.classList.add("card-wide");
     container.append(el("div", { class: "cards" }, solvents.node, deut.node));
   },
-});
+};

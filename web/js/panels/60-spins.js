@@ -2,9 +2,10 @@
 // "spin_system"), the first-order pattern for comparison, the pair-by-pair
 // first-order check, and the same system at several magnets on one ppm axis.
 // No physics here: spectra, lines and checks all come from the API result.
-"use strict";
+import * as NMR from "../nmr.js";
+import NMRPlot from "../plot.js";
 
-NMR.registerPanel({
+export default {
   id: "spins",
   title: "Spin systems",
   build(container) {
@@ -367,4 +368,4 @@ NMR.registerPanel({
     drawRows();
     NMR.whenShown(card, run);
   },
-});
+};

@@ -2,9 +2,10 @@
 // first-order explanations out (which groups of equivalent partners, how many,
 // which J). Every candidate, score, predicted line and note comes from the API
 // op "identify"; this file only collects inputs and draws the answer.
-"use strict";
+import * as NMR from "../nmr.js";
+import NMRPlot from "../plot.js";
 
-NMR.registerPanel({
+export default {
   id: "identify",
   title: "Pattern finder",
   build(container) {
@@ -416,4 +417,4 @@ NMR.registerPanel({
       if (mode === "paste" ? peaklist.value.trim() : rows.some((row) => row.position.trim())) run();
     });
   },
-});
+};

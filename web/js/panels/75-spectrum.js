@@ -7,9 +7,10 @@
 // Every number comes from the ops read_spectrum, pick_peaks, peak_at, integrate,
 // compare_region and fit_spin_system; this file only maps points to the plot and
 // to index ranges (a linear axis between the first and last x given).
-"use strict";
+import * as NMR from "../nmr.js";
+import NMRPlot from "../plot.js";
 
-NMR.registerPanel({
+export default {
   id: "spectrum",
   title: "Measured spectrum",
   build(container) {
@@ -458,4 +459,4 @@ NMR.registerPanel({
       simNote.textContent = `Fitted in ${r.iterations} steps.`;
     });
   },
-});
+};

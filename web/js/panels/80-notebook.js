@@ -1,8 +1,10 @@
 // Panel: bench notebook — the pinned results, newest first, with their notes;
 // re-open, share, delete; export/import JSON, export CSV, print.
-"use strict";
+import * as NMR from "../nmr.js";
+import NMRPlot from "../plot.js";
+import NMRNotebook from "../notebook.js";
 
-NMR.registerPanel({
+export default {
   id: "notebook",
   title: "Bench notebook",
   build(container) {
@@ -77,4 +79,4 @@ NMR.registerPanel({
         status, count, listNode)));
     draw();
   },
-});
+};

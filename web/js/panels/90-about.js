@@ -1,7 +1,7 @@
 // Panel: about & safety — what the numbers are, and the cautions around magnets.
-"use strict";
+import * as NMR from "../nmr.js";
 
-NMR.registerPanel({
+export default {
   id: "about",
   title: "About & safety",
   build(container) {
@@ -29,4 +29,4 @@ NMR.registerPanel({
         el("p", { class: "hint" }, "Inputs and pins are kept in this browser's local storage so they survive a reload. Opened as a file (file://), the page shares that storage with every other local file this browser opens: another file can read or change it. Export the bench notebook as JSON: the export is your backup."),
         el("p", { class: "hint", id: "offline-status", "aria-live": "polite" }, location.protocol.startsWith("http") ? "" : "This single file works offline as it is."))));
   },
-});
+};
