@@ -5,7 +5,11 @@
   noise σ and baseline are the medians over the quietest quarter of the pieces:
   those hold no signal (common practice, no source: a signal-free region sets
   the noise in the usual signal-to-noise measurement).
-- A peak is a local maximum higher than baseline + threshold × σ.  Its position
+- A peak is a local maximum higher than baseline + threshold × σ that also
+  stands out by threshold × σ: on each side the trace falls that far below it
+  before rising higher (or the trace ends), so noise ripples on the tails of a
+  strong line are not peaks (a prominence test, common practice, no source).
+  Its position
   is the vertex of the parabola through the maximum and its two neighbours, its
   height the parabola's value there (three-point interpolation; exact for a
   parabola, error below 1 % of a point spacing for a Lorentzian sampled with at
@@ -55,9 +59,23 @@ def pick(x0: float, dx: float, y: list[float], threshold: float, *, minimum_sigm
     if sigma == 0:
         sigma = minimum_sigma or max(abs(v) for v in y) * 1e-12 or 1.0
     level = base + threshold * sigma
+    drop = threshold * sigma
     peaks = [measure(x0, dx, y, k, base) for k in range(1, len(y) - 1)
-             if y[k] > level and y[k] >= y[k - 1] and y[k] > y[k + 1]]
+             if y[k] > level and y[k] >= y[k - 1] and y[k] > y[k + 1] and _prominent(y, k, drop)]
     return {"noise": sigma, "baseline": base, "peaks": peaks}
+
+
+def _prominent(y: list[float], k: int, drop: float) -> bool:
+    """True if, on both sides of the maximum at k, y falls by ``drop`` before rising above y[k]
+    (or reaches the end of the trace)."""
+    floor = y[k] - drop
+    for step in (-1, 1):
+        j = k + step
+        while 0 <= j < len(y) and y[j] > floor:
+            if y[j] > y[k]:
+                return False
+            j += step
+    return True
 
 
 def measure(x0: float, dx: float, y: list[float], k: int, base: float) -> dict:
