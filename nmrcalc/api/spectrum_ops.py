@@ -113,8 +113,10 @@ def samples(req: dict) -> tuple[float, float, str, list[float]]:
     first_x, last_x = _number(req, "first_x"), _number(req, "last_x")
     x_unit = _unit(req) or require(req, "x_unit")
     y = require(req, "y")
-    if not isinstance(y, list) or not all(isinstance(v, (int, float)) and not isinstance(v, bool)
-                                          and math.isfinite(v) and abs(v) <= MAX_ORDINATE for v in y):
+    # C-level passes (types, then min/max, then a sum that is NaN or infinite if any value is):
+    # a 256k-point trace is checked in milliseconds
+    if not isinstance(y, list) or not set(map(type, y)) <= {int, float} or (
+            y and not (-MAX_ORDINATE <= min(y) and max(y) <= MAX_ORDINATE and math.isfinite(math.fsum(y)))):
         raise InputError(f"'y' must be a list of numbers of size at most {MAX_ORDINATE:g}.", "y")
     if len(y) > MAX_POINTS:
         raise InputError(f"At most {MAX_POINTS} points.", "y", "too_large")

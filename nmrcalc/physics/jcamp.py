@@ -43,8 +43,9 @@ _DUP = {c: d for d, c in enumerate("STUVWXYZs", 1)}
 # Decoding is done with C-level string operations (one str.translate and re.sub per line, then
 # float() over the pieces), so that a 256k-point file reads in well under a second in the browser:
 # "|" starts a new (absolute) value, " " starts a difference.
-_SEP = re.compile(r"[\s,;]+|(?=[+-])")
-_ASDF_TABLE = str.maketrans({**{c: f"|{d}" for c, d in _SQZ.items()}, **{c: f" {d}" for c, d in _DIF.items()}})
+# Separators and signs start a new value too: "|" (empty pieces are skipped).
+_ASDF_TABLE = str.maketrans({**{c: f"|{d}" for c, d in _SQZ.items()}, **{c: f" {d}" for c, d in _DIF.items()},
+                             **dict.fromkeys(" \t\r\n\v\f,;", "|"), "+": "|+", "-": "|-"})
 _DUP_TOKEN = re.compile(r"([@A-Ia-i%J-Rj-r][0-9]*|[+-]?[0-9]+\.?[0-9]*)([S-Zs][0-9]*)")
 _ALLOWED = re.compile(r"[0-9@A-Za-s%+\-.\s,;]*")
 _EXPONENT = re.compile(r"[0-9.][Ee][+-][0-9]")  # E then a sign; E then a digit is SQZ 5
@@ -160,17 +161,18 @@ def decode_line(text: str, line: int) -> tuple[list[float], bool, int]:
             if _DUP_TOKEN.match(text[len(first):]) is None and text[len(first):len(first) + 1] in _DUP:
                 raise InputError(f"Line {line}: a repeat count (DUP) with nothing to repeat.", "text")
             text = _DUP_TOKEN.sub(_dup, text)
-        coded = ("|" + _SEP.sub("|", text)).translate(_ASDF_TABLE)
         out: list[float] = []
-        for seg in coded.split("|"):
+        for seg in ("|" + text).translate(_ASDF_TABLE).split("|"):
             if not seg:
                 continue
-            values = [float(v) for v in seg.split()]
             if seg[0] == " ":
                 if not out:
                     raise InputError(f"Line {line}: a difference (DIF) with no value before it.", "text")
+                values = list(map(float, seg.split()))
                 values[0] += out[-1]
-            out.extend(accumulate(values))
+                out.extend(accumulate(values))
+            else:
+                out.extend(accumulate(map(float, seg.split())))
     except ValueError:
         raise InputError(f"Line {line}: '{text[:40]}' is not valid spectrum data.", "text") from None
     last = _LAST.search(text)

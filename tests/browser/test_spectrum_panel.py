@@ -108,6 +108,12 @@ def test_tap_integrate_simulate_and_fit(dist, open_page, tmp_path):
     page.set_input_files("#spec-file", str(path))
     want = handle({"op": "read_spectrum", "text": text, "filename": path.name})["result"]
     expect(page.locator("#spec-status")).to_contain_text(f"{want['npoints']} points")
+    # decimation keeps every maximum: one min/max pair per pixel column, and the tallest point of the
+    # 32768 sets the top of the plot (320 px high, 12 px top margin, 40 px axis: its y is 12 + 268 − 262)
+    points = page.eval_on_selector("#spec-plot svg polyline", "p => p.getAttribute('points').trim().split(' ')")
+    width = page.locator("#spec-plot svg").bounding_box()["width"]
+    assert len(points) <= 4 * width + 8 < len(want["y"]) / 4
+    assert min(float(p.split(",")[1]) for p in points) == 18.0
     page.fill("#spec-threshold", "30")
     page.click("#spec-pick")
     picked = handle({"op": "pick_peaks", "first_x": 10.0, "last_x": 0.0, "x_unit": "ppm", "y": want["y"],
