@@ -169,6 +169,9 @@ def test_tap_integrate_simulate_and_fit(dist, open_page, tmp_path):
     J, err = (float(v) for v in j_text.split(" ± "))
     assert abs(J - 12) < max(5 * err, 0.02) and err < 0.1   # the true J of the invented file
     expect(page.locator("#spec-fit-table")).to_contain_text("second order")   # Δν/J = 28/12
+    page.click("#spec-fit-use")   # the fitted system becomes the editor's starting point
+    a, b, j = page.input_value("#spec-couplings").split(",")
+    assert (a, b) == ("0", "1") and abs(float(j) - J) <= 1e-5 * J   # the table shows J to 6 digits
     page.set_viewport_size({"width": 820, "height": 1180})   # a tablet held upright
     page.locator("#card-spectrum").screenshot(path=str(dist / "spectrum-panel-tablet.png"))
     assert all(u.startswith(("file:", "data:", "blob:")) for u in rec.requests), rec.requests

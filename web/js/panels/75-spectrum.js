@@ -455,6 +455,14 @@ export default {
       body.append(el("tr", {}, el("td", {}, "line width, Hz"), el("td", {}, r.linewidth_fitted ? pm(r.linewidth_Hz, r.linewidth_error_Hz, 4) : `${short(r.linewidth_Hz, 4)} (held)`), el("td", {}, "")));
       body.append(el("tr", {}, el("td", {}, "intensity scale"), el("td", {}, pm(r.scale, r.scale_error, 5)), el("td", {}, "")));
       body.append(el("tr", {}, el("td", {}, "rms residual"), el("td", { id: "spec-fit-rms" }, `${short(r.rms_residual, 3)} (${short(100 * r.relative_rms, 3)} % of the tallest point)`), el("td", {}, "")));
+      const use = el("button", { type: "button", class: "small-button", id: "spec-fit-use" }, "Start from the fitted values");
+      use.addEventListener("click", () => {
+        spinsIn.node.value = r.spins.map((sp) => `${sp.nucleus},${sp.shift_ppm}${sp.count > 1 ? `,${sp.count}` : ""}`).join("; ");
+        couplingsIn.node.value = r.couplings.map((c) => `${c.between[0]},${c.between[1]},${c.J_Hz}`).join("; ");
+        widthIn.node.value = String(r.linewidth_Hz);
+        for (const field of [spinsIn, couplingsIn, widthIn]) field.node.dispatchEvent(new Event("change"));
+      });
+      body.append(el("tr", {}, el("td", { colspan: "3" }, use)));
       fitTable.append(body);
       simNote.textContent = `Fitted in ${r.iterations} steps.`;
     });
