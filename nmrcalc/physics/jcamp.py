@@ -40,10 +40,10 @@ MAX_ORDINATE = 1e100  # any intensity unit, but sums of squares stay finite
 _SQZ = {c: d for d, c in enumerate("@ABCDEFGHI")} | {c: -d for d, c in enumerate("abcdefghi", 1)}
 _DIF = {c: d for d, c in enumerate("%JKLMNOPQR")} | {c: -d for d, c in enumerate("jklmnopqr", 1)}
 _DUP = {c: d for d, c in enumerate("STUVWXYZs", 1)}
-# Decoding is done with C-level string operations (one str.translate and re.sub per line, then
-# float() over the pieces), so that a 256k-point file reads in well under a second in the browser:
-# "|" starts a new (absolute) value, " " starts a difference.
-# Separators and signs start a new value too: "|" (empty pieces are skipped).
+# Decoding is done with C-level string operations (DUP counts expanded by slicing, one str.translate
+# per line, then float() over the pieces), for speed in the browser (benchmark.py --only spectrum):
+# "|" starts a new (absolute) value, " " starts a difference; separators and signs start a new value
+# too (empty pieces are skipped).
 _ASDF_TABLE = str.maketrans({**{c: f"|{d}" for c, d in _SQZ.items()}, **{c: f" {d}" for c, d in _DIF.items()},
                              **dict.fromkeys(" \t\r\n\v\f,;", "|"), "+": "|+", "-": "|-"})
 _DUP_COUNT = re.compile(r"[S-Zs][0-9]*")
