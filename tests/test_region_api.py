@@ -108,5 +108,8 @@ def test_compare_region_multiplet_and_spin_system():
     hz = handle({"op": "compare_region", **{**region, "x_unit": "Hz"}, "model": "spin_system",
                  "spectrometer": MHZ, "spins": [{"nucleus": "1H", "shift": 7.26}]})
     assert not hz["ok"] and hz["error"]["field"] == "x_unit"
+    mixed = handle({"op": "compare_region", **region, "model": "multiplet", "observe": "1H",
+                    "groups": [{"partner": "1H", "count": 2, "J": 7}], "spins": [{"nucleus": "1H", "shift": 7.26}]})
+    assert not mixed["ok"] and mixed["error"]["field"] == "spins"
     none = handle({"op": "compare_region", **region, "model": "multiplet"})
     assert not none["ok"] and none["error"]["field"] == "observe"

@@ -151,8 +151,13 @@ def op_compare_region(req: dict, warnings: list[str]) -> dict:
                 else _default_width_Hz(y, dx, base, to_Hz))
     kind = req.get("model")
     shape = req.get("shape", "lorentzian")
+    other = {"multiplet": ("spins", "couplings"), "spin_system": ("groups", "abundance", "min_share", "center")}
+    stray = [k for k in other.get(str(kind), ()) if req.get(k) not in (None, "", [])]
+    if stray:
+        raise InputError(f"'{stray[0]}' belongs to the other model; model \"{kind}\" does not use it.", stray[0])
     if kind == "multiplet":
-        sub = _sub_request(req, MULTIPLET_DECLARED["multiplet"], ("observe", "groups", "abundance", "min_share"))
+        sub = _sub_request(req, MULTIPLET_DECLARED["multiplet"],
+                           ("observe", "groups", "abundance", "min_share", *MAGNET_KEYS))
         result = op_multiplet(sub, warnings)
         if "partial_collapse" in result:
             warnings.append("The comparison draws the resolved pattern, not its partial collapse by relaxation.")
