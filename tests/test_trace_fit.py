@@ -110,7 +110,7 @@ def test_fixed_width_and_refusals():
     assert not res["spins"][0]["fitted"] and res["couplings"][0]["J_Hz"] == pytest.approx(J, abs=0.02)
     both = handle({"op": "fit_spin_system", **_system(spins, couplings), **trace,
                    "lines": [{"position": 2.0}, {"position": 2.1}]})
-    assert not both["ok"] and both["error"]["field"] == "lines"
+    assert not both["ok"] and both["error"]["field"] == "y"
     stray = handle({"op": "fit_spin_system", **_system(spins, couplings), "baseline": 1,
                     "lines": [{"position": 2.0}, {"position": 2.1}]})
     assert not stray["ok"] and stray["error"]["field"] == "baseline"

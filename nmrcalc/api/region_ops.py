@@ -239,7 +239,7 @@ DECLARED = {
         )),
     "compare_region": Op(
         "compare_region", "a multiplet or spin system drawn on a region's points, scaled to its integral, with "
-        "the residual", cli="-", one_of=(("spectrometer", "field"),),
+        "the residual", cli="-", one_of=(("spectrometer", "field"), ("groups", "spins"), ("groups", "couplings")),
         limits=f"{MAX_REGION_POINTS} points", params=(
             *_TRACE,
             Param("y", "value", required=True, label="Ordinates", help="the region's evenly spaced ordinates",

@@ -300,7 +300,8 @@ DECLARED = {
     "fit_spin_system": Op(
         "fit_spin_system", "fit a spin system's shifts and couplings to measured line positions or to a "
         "region's trace (least squares)",
-        cli="fit", one_of=(("spectrometer", "field"),), limits=f"{MAX_LINES} lines; {TRACE_POINTS} trace points",
+        cli="fit", one_of=(("spectrometer", "field"), ("lines", "y"), ("lines", "x_unit"), ("lines", "linewidth")),
+        limits=f"{MAX_LINES} lines; {TRACE_POINTS} trace points",
         params=(
             _SPIN_PARAMS["observe"], _SPIN_PARAMS["spins"], _SPIN_PARAMS["couplings"], *MAGNET,
             Param("lines", "objects", max_items=MAX_LINES, label="Measured lines",
