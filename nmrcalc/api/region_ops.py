@@ -81,6 +81,8 @@ def op_peak_at(req: dict, warnings: list[str]) -> dict:
 
 def _indices(region: Any, k: int, first_x: float, dx: float, n: int) -> tuple[int, int, float, float]:
     where = f"regions.{k}."
+    if not isinstance(region, dict):
+        raise InputError(f"Region {k + 1} must be {{\"from\": x, \"to\": x}}.", f"regions.{k}")
     a, b = _number(region, "from", where), _number(region, "to", where)
     i, j = sorted(((a - first_x) / dx, (b - first_x) / dx))
     lo, hi = max(0, int(-(-i // 1))), min(n - 1, int(j // 1))   # points inside [a, b]
