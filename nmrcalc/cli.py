@@ -19,6 +19,7 @@ from __future__ import annotations
 import argparse
 import json
 import sys
+from typing import TextIO
 
 from nmrcalc import __version__
 from nmrcalc.api import OPS, handle, handle_json
@@ -95,7 +96,7 @@ def build_parser() -> argparse.ArgumentParser:
 
 # ---------- turning parsed arguments into a request ----------
 
-def _scalar(p: Param, text: str):
+def _scalar(p: Param, text: str) -> object:
     """A CLI text as the JSON value the declared kind takes."""
     if p.kind == "integer":
         try:
@@ -134,7 +135,7 @@ def _item(p: Param, text: str) -> dict:
     return out
 
 
-def _pair_member(text: str):
+def _pair_member(text: str) -> int | str:
     text = text.strip()
     return int(text) if text.lstrip("-").isdigit() else text
 
@@ -179,7 +180,7 @@ def request_from_args(op: Op, args: argparse.Namespace) -> dict:
 
 # ---------- readable text ----------
 
-def _fmt(value) -> str:
+def _fmt(value: object) -> str:
     if isinstance(value, float):
         return f"{value:.6g}" if abs(value) < 1e-3 or abs(value) >= 1e7 else f"{value:.6f}".rstrip("0").rstrip(".")
     if value is None:
@@ -337,7 +338,7 @@ DEMO = [
 ]
 
 
-def _emit(text: str, stream) -> None:
+def _emit(text: str, stream: TextIO) -> None:
     """Print ``text``; characters the stream cannot encode are shown as escapes, never a traceback."""
     encoding = getattr(stream, "encoding", None) or "utf-8"
     try:

@@ -12,10 +12,11 @@ from __future__ import annotations
 import importlib
 import json
 import re
-from collections.abc import Mapping
+from collections.abc import Callable, Iterator, Mapping
+from typing import Any
 
 from nmrcalc.api.fields import PROGRESS
-from nmrcalc.api.params import check
+from nmrcalc.api.params import Op, check
 from nmrcalc.errors import InputError
 
 # Each op and the module of this package that defines it (in that module's OPS).
@@ -38,17 +39,17 @@ _SURROGATE = re.compile("[\ud800-\udfff]")  # one C-level scan: a spectrum's tex
 MAX_REQUEST_CHARS = 16_000_000  # a measured spectrum (256k points, its file or its ordinates) travels as text
 
 
-class _Ops(Mapping):
+class _Ops(Mapping[str, Callable[[dict, list[str]], dict]]):
     """``OPS[name]``: the function ``(request, warnings) -> result`` of an op, imported on first use."""
 
-    def __getitem__(self, name: str):
+    def __getitem__(self, name: str) -> Callable[[dict, list[str]], dict]:
         return importlib.import_module(f"nmrcalc.api.{OP_MODULES[name]}").OPS[name]
 
-    def declaration(self, name: str):
+    def declaration(self, name: str) -> Op:
         """The op's declaration (``nmrcalc.api.params.Op``), from the ``DECLARED`` table of its module."""
         return importlib.import_module(f"nmrcalc.api.{OP_MODULES[name]}").DECLARED[name]
 
-    def __iter__(self):
+    def __iter__(self) -> Iterator[str]:
         return iter(OP_MODULES)
 
     def __len__(self) -> int:
@@ -62,7 +63,7 @@ def _error(code: str, message: str, field: str | None = None) -> dict:
     return {"ok": False, "error": {"code": code, "message": message, "field": field}}
 
 
-def handle(request, progress=None) -> dict:
+def handle(request: Any, progress: Callable[[float], None] | None = None) -> dict:
     """Run one request; return a response dict (never raises).
 
     ``progress``, if given, is called with a fraction in [0, 1] during long
@@ -92,7 +93,7 @@ def handle(request, progress=None) -> dict:
         PROGRESS.reset(token)
 
 
-def _check_unicode(text: str, request) -> None:
+def _check_unicode(text: str, request: Any) -> None:
     """Refuse text that is not valid Unicode (a lone surrogate, raw or written as an escape)."""
     if "\\ud" in text.lower() or _SURROGATE.search(text):
         try:
@@ -102,7 +103,7 @@ def _check_unicode(text: str, request) -> None:
                              "not valid Unicode text; retype or re-save that value.", None, "bad_request") from None
 
 
-def handle_json(text: str, progress=None) -> str:
+def handle_json(text: str, progress: Callable[[float], None] | None = None) -> str:
     """Text in, text out: the bridge used by the Web Worker and ``python -m nmrcalc api``."""
     try:
         if not isinstance(text, str) or len(text) > MAX_REQUEST_CHARS:

@@ -169,7 +169,7 @@ def check(op: Op, request: dict) -> dict:
     return _with_defaults(op.params, request)
 
 
-def _with_defaults(params, obj: dict) -> dict:
+def _with_defaults(params: tuple[Param, ...], obj: dict) -> dict:
     out = dict(obj)
     for p in params:
         if p.default is not None and out.get(p.key) in (None, ""):
@@ -183,7 +183,7 @@ def _given(obj: dict, key: str) -> bool:
     return obj.get(key) not in (None, "")
 
 
-def _all_keys(params, where: str = "") -> dict[str, str]:
+def _all_keys(params: tuple[Param, ...], where: str = "") -> dict[str, str]:
     """Every declared key of a request, anywhere in it → the level it belongs to ('' = top level)."""
     out: dict[str, str] = {}
     for p in params:
@@ -194,7 +194,9 @@ def _all_keys(params, where: str = "") -> dict[str, str]:
     return out
 
 
-def _check_object(params, obj: dict, prefix: str, extra: set[str], everywhere: dict[str, str]) -> None:
+def _check_object(
+    params: tuple[Param, ...], obj: dict, prefix: str, extra: set[str], everywhere: dict[str, str]
+) -> None:
     declared = {p.key: p for p in params}
     for key in obj:
         if key in declared or key in extra:
@@ -211,7 +213,7 @@ def _check_object(params, obj: dict, prefix: str, extra: set[str], everywhere: d
         _check_value(p, value, prefix + p.key, everywhere)
 
 
-def _safe_key(key) -> str:
+def _safe_key(key: object) -> str:
     text = str(key)
     return text if len(text) <= 60 else text[:57] + "…"
 
@@ -238,7 +240,7 @@ def _unknown_message(key: str, declared: dict, everywhere: dict[str, str], prefi
     return f"{prefix}{shown}: unknown key for {'this item' if level else 'this op'}; the keys are: {known}."
 
 
-def _check_value(p: Param, value, where: str, everywhere: dict[str, str]) -> None:
+def _check_value(p: Param, value: Any, where: str, everywhere: dict[str, str]) -> None:
     kind = p.kind
     if kind == "quantity":
         from nmrcalc.api.fields import bounded
@@ -301,7 +303,7 @@ def _check_value(p: Param, value, where: str, everywhere: dict[str, str]) -> Non
             raise InputError(f"{where}: give two spins, e.g. [0, 1] or [\"A\", \"B\"].", where)
 
 
-def _split(value, where: str, p: Param) -> list:
+def _split(value: Any, where: str, p: Param) -> list:
     if isinstance(value, str):
         from nmrcalc.units import split_list
         value = split_list(value, where)
@@ -312,7 +314,7 @@ def _split(value, where: str, p: Param) -> list:
     return value
 
 
-def _in_bounds(p: Param, value, where: str) -> None:
+def _in_bounds(p: Param, value: Any, where: str) -> None:
     lo, hi = p.bounds
     if (lo is not None and value < lo) or (hi is not None and value > hi):
         if lo is not None and hi is not None:
@@ -343,7 +345,7 @@ _TYPICAL = {"field": "11.74 T", "frequency": "500 MHz", "coupling": "7 Hz", "shi
             "temperature": "298 K", "wavelength": "254 nm", "wavenumber": "1700 cm-1", "percent": 1}
 
 
-def example_value(p: Param):
+def example_value(p: Param) -> Any:
     """A valid value of ``p``: its declared example, else one that follows from its kind (or None)."""
     if p.example is not None:
         return p.example
