@@ -347,7 +347,8 @@ export default {
       if (!spectrum || !regions.length) return;
       const sc = scale();
       const request = { op: "integrate", first_x: sc.first, last_x: sc.last, x_unit: sc.unit, y: spectrum.y, regions, normalize_to: reference };
-      if (nuclei.node.value.trim() !== "") request.nuclei = Number(nuclei.node.value);   // the op checks it
+      const typed = nuclei.node.value.trim();
+      if (typed !== "") request.nuclei = Number.isFinite(Number(typed)) ? Number(typed) : typed;   // the op checks it
       if (spectrum.observe_MHz) request.observe_MHz = spectrum.observe_MHz;
       const response = await NMR.api(request);
       if (!response.ok) { integralNote.textContent = response.error.message; return; }
