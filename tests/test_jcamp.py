@@ -198,3 +198,11 @@ def test_two_column_refusals():
     with pytest.raises(InputError, match="Line 3"):
         read_two_column("Hz,I\n1,1\nx,2\n3,3\n")
     assert math.isclose(read_two_column("Hz,I\n1,1\n2,2\n3,3\n").last_x, 3.0)
+
+
+def test_dup_repeats_plain_numbers_and_whole_sqz_values():
+    # JCAMP-DX's ASDF compression (McDonald & Wilks, Appl. Spectrosc. 42 (1988) 151), DUP: the count includes the
+    # value itself (T = 2, S3 = 13); a plain number repeated stays one number per copy
+    assert decode_line("100 1 2 3T", 1)[0] == [100, 1, 2, 3, 3]
+    assert decode_line("100A1.5U", 1)[0] == [100, 11.5, 11.5, 11.5]
+    assert decode_line("100 J5T", 1)[0] == [100, 115, 130]

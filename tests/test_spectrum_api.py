@@ -81,3 +81,22 @@ def test_pick_peaks_refusals():
     assert not r["ok"] and r["error"]["field"] == "threshold"
     r = handle({"op": "pick_peaks", "first_x": 10.0, "last_x": 0.0, "x_unit": "Hz", "y": [1, "a"]})
     assert not r["ok"] and r["error"]["field"] == "y"
+
+
+def test_noise_on_a_strong_line_tail_is_not_a_peak():
+    # one line 10⁴ σ high: its tails stay above 5 σ for about 440 points, where noise makes over 100
+    # local maxima; a maximum counts only if it also stands out by the threshold on both sides
+    # (prominence), which leaves the line and the rare > 4.5 σ noise spikes on its tails
+    rng = random.Random(4)
+    y = [_lorentz(k, 4000.3, 10.0, 1e4) + rng.gauss(0, 1.0) for k in range(8192)]
+    r = handle({"op": "pick_peaks", "first_x": 0.0, "last_x": 8191.0, "x_unit": "Hz", "y": y, "threshold": "5 sigma"})
+    assert r["ok"], r
+    found = [round(p["position"]) for p in r["result"]["peaks"]]
+    assert 4000 in found and len(found) <= 5
+    tails = sum(1 for k in range(1, 8191) if y[k] > 5 and y[k] >= y[k - 1] and y[k] > y[k + 1])
+    assert tails > 25 * len(found)  # the local maxima a bare threshold would have taken (118 here)
+    # two resolved lines both survive
+    y2 = [v + _lorentz(k, 4060.0, 10.0, 5e3) for k, v in enumerate(y)]
+    r = handle({"op": "pick_peaks", "first_x": 0.0, "last_x": 8191.0, "x_unit": "Hz", "y": y2, "threshold": "5 sigma"})
+    found = [round(p["position"]) for p in r["result"]["peaks"]]
+    assert 4000 in found and 4060 in found and len(found) <= 6

@@ -30,6 +30,7 @@ OP_MODULES = {
     "spin_system": "spin_system_ops",
     "identify": "identify_ops",
     **dict.fromkeys(["read_spectrum", "pick_peaks", "fit_spin_system"], "spectrum_ops"),
+    **dict.fromkeys(["peak_at", "integrate", "compare_region"], "region_ops"),
     "deuteration": "deuteration_ops",
     "solvents": "solvent_ops",
     "describe": "describe_ops",

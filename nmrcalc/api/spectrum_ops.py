@@ -14,7 +14,14 @@ frequency, ``first_ppm``/``last_ppm`` give the ppm scale: δ = δ_ref + (x − x
 couplings with starting J, ``observe``, ``spectrometer``) plus ``lines``
 (``position`` in ppm, or a string "1234.5 Hz"; ``intensity``) and ``vary``
 (``shifts`` and/or ``couplings``); shifts of the observed nucleus and every
-given coupling are fitted (``nmrcalc.physics.spin_fit``).
+given coupling are fitted (``nmrcalc.physics.spin_fit``).  Or, instead of
+``lines``, a region's trace (``first_x``, ``last_x``, ``x_unit``, ``y``, with
+``baseline`` and a starting ``linewidth``, both optional): the spin system's
+exact spectrum is fitted to the points (``nmrcalc.physics.trace_fit``), with an
+intensity scale always and the width when ``vary`` has ``linewidth``; the
+result adds the width, the scale, each with its standard error, the rms
+residual in intensity units, the simulated trace (on the measured trace's
+level) and the residual.
 """
 
 from __future__ import annotations
@@ -29,13 +36,16 @@ from nmrcalc.api.spin_system_ops import DECLARED as SPIN_DECLARED
 from nmrcalc.api.spin_system_ops import _couplings, _ref_MHz, _spins
 from nmrcalc.errors import InputError
 from nmrcalc.physics.jcamp import MAX_POINTS, read_jcamp
-from nmrcalc.physics.peaks import pick
+from nmrcalc.physics.peaks import measure, pick
 from nmrcalc.physics.spectrum_text import read_two_column
 from nmrcalc.physics.spin_fit import fit
 from nmrcalc.physics.spin_system import Site, equivalence_caveats, first_order_checks
+from nmrcalc.physics.trace_fit import MAX_POINTS as TRACE_MAX_POINTS
+from nmrcalc.physics.trace_fit import fit_trace
 
 MAX_TEXT_CHARS = 16_000_000
 MAX_LINES = 64
+TRACE_POINTS = TRACE_MAX_POINTS
 MAX_ORDINATE = 1e100  # any intensity unit, but sums of squares stay finite
 
 
@@ -98,29 +108,41 @@ def op_read_spectrum(req: dict, warnings: list[str]) -> dict:
     return out
 
 
-def op_pick_peaks(req: dict, warnings: list[str]) -> dict:
+def samples(req: dict) -> tuple[float, float, str, list[float]]:
+    """(first_x, last_x, x_unit, y) of an evenly sampled trace in a request, checked."""
     first_x, last_x = _number(req, "first_x"), _number(req, "last_x")
     x_unit = _unit(req) or require(req, "x_unit")
     y = require(req, "y")
-    observe = req.get("observe_MHz")
-    threshold = req.get("threshold", "5 sigma")
-    if not isinstance(y, list) or not all(isinstance(v, (int, float)) and not isinstance(v, bool)
-                                          and math.isfinite(v) and abs(v) <= MAX_ORDINATE for v in y):
+    # C-level passes (types, then min/max, then a sum that is NaN or infinite if any value is):
+    # a 256k-point trace is checked in milliseconds
+    if not isinstance(y, list) or not set(map(type, y)) <= {int, float} or (
+            y and not (-MAX_ORDINATE <= min(y) and max(y) <= MAX_ORDINATE and math.isfinite(math.fsum(y)))):
         raise InputError(f"'y' must be a list of numbers of size at most {MAX_ORDINATE:g}.", "y")
     if len(y) > MAX_POINTS:
         raise InputError(f"At most {MAX_POINTS} points.", "y", "too_large")
-    if observe is not None:
-        observe = quantity(req, "observe_MHz", "frequency", positive=True)
-    if x_unit == "ppm" and observe is None:
-        raise InputError("x is in ppm: give 'observe_MHz' so that widths come out in Hz.", "observe_MHz",
-                         "missing_field")
+    if len(y) < 2 or first_x == last_x:
+        raise InputError("A spectrum needs at least 2 points and first_x ≠ last_x.", "y")
+    return first_x, last_x, x_unit, y
+
+
+def observe_frequency(req: dict, x_unit: str, why: str) -> float | None:
+    """``observe_MHz`` of a request; required (``why`` says for what) when x is in ppm."""
+    if req.get("observe_MHz") is not None:
+        return quantity(req, "observe_MHz", "frequency", positive=True)
+    if x_unit == "ppm":
+        raise InputError(f"x is in ppm: give 'observe_MHz' {why}.", "observe_MHz", "missing_field")
+    return None
+
+
+def op_pick_peaks(req: dict, warnings: list[str]) -> dict:
+    first_x, last_x, x_unit, y = samples(req)
+    observe = observe_frequency(req, x_unit, "so that widths come out in Hz")
+    threshold = req.get("threshold", "5 sigma")
     m = re.fullmatch(r"\s*([0-9.]+)\s*(?:sigma|σ)?\s*", str(threshold))
     if not m or not 0 < float(m.group(1)) <= 1e6:
         raise InputError("'threshold' is a multiple of the noise, e.g. \"5 sigma\".", "threshold")
-    if len(y) < 2 or first_x == last_x:
-        raise InputError("A spectrum needs at least 2 points and first_x ≠ last_x.", "y")
     dx = (last_x - first_x) / (len(y) - 1)
-    to_Hz = observe if x_unit == "ppm" else 1.0
+    to_Hz = observe if observe is not None and x_unit == "ppm" else 1.0
     found = pick(first_x, dx, y, float(m.group(1)))
     peaks = [{"position": p["position"], "height": p["height"], "width_Hz": p["width"] * to_Hz,
               "integral": p["integral"]} for p in found["peaks"]]
@@ -137,36 +159,90 @@ def _line_Hz(line: Any, k: int, ref_MHz: float) -> float:
     return quantity(line, "position", "shift", prefix=f"lines.{k}.") * ref_MHz
 
 
+def _checks(sites: list[Site], couplings: list[tuple[int, int, float]], proton_MHz: float) -> list[dict]:
+    return [{"pair": list(c["pair"]), "delta_nu_Hz": c["delta_nu_Hz"], "J_Hz": c["J_Hz"],
+             "delta_nu_over_J": c["delta_nu_over_J"], "first_order": c["first_order"]}
+            for c in first_order_checks(sites, couplings, spectrometer_1H_MHz=proton_MHz)]
+
+
+def _trace_input(req: dict, ref: float) -> tuple[list[float], list[float], float, float | None]:
+    """x (Hz from 0 ppm of the observed nucleus), y, baseline and the starting width of a trace fit."""
+    first_x, last_x, x_unit, y = samples(req)
+    to_Hz = ref if x_unit == "ppm" else 1.0
+    dx = (last_x - first_x) / (len(y) - 1)
+    x = [(first_x + k * dx) * to_Hz for k in range(len(y))]
+    base = 0.0 if req.get("baseline") is None else _number(req, "baseline")
+    width = quantity(req, "linewidth", "coupling", positive=True) if req.get("linewidth") is not None else None
+    if width is None:
+        top = max(range(len(y)), key=lambda k: y[k])
+        width = measure(0.0, dx, y, top, base)["width"] * to_Hz or None
+    return x, y, base, width
+
+
 def op_fit_spin_system(req: dict, warnings: list[str]) -> dict:
     observe = nucleus(req, "observe")
     spins = _spins(req)
     couplings = _couplings(req, len(spins))
     field_T, proton_MHz = magnet(req, warnings)
-    lines = require(req, "lines")
+    lines: Any = req.get("lines")
     vary = req.get("vary", ["shifts", "couplings"])
     if isinstance(vary, str):
         vary = [v.strip() for v in vary.split(",") if v.strip()]
-    if not isinstance(lines, list) or not all(isinstance(ln, dict) for ln in lines):
+    on_trace = req.get("y") is not None
+    if on_trace == (lines is not None):
+        raise InputError("Give either 'lines' (measured positions) or a trace ('first_x', 'last_x', 'x_unit', "
+                         "'y'), not both.", "lines" if lines is not None else "y", "missing_field")
+    stray = [k for k in ("first_x", "last_x", "x_unit", "baseline", "linewidth") if req.get(k) is not None]
+    if not on_trace and stray:
+        raise InputError(f"'{stray[0]}' belongs to a trace fit (with 'y'); a fit to 'lines' does not use it.",
+                         stray[0])
+    if not on_trace and (not isinstance(lines, list) or not all(isinstance(ln, dict) for ln in lines)):
         raise InputError("'lines' must be a list of {position, intensity}.", "lines")
-    if len(lines) > MAX_LINES:
+    if not on_trace and len(lines) > MAX_LINES:
         raise InputError(f"At most {MAX_LINES} lines.", "lines", "too_large")
-    if not isinstance(vary, list) or not vary or not set(vary) <= {"shifts", "couplings"}:
-        raise InputError("'vary' lists \"shifts\" and/or \"couplings\".", "vary")
+    allowed = {"shifts", "couplings", "linewidth"} if on_trace else {"shifts", "couplings"}
+    if not isinstance(vary, list) or not vary or not set(vary) <= allowed:
+        raise InputError("'vary' lists " + ", ".join(f'"{v}"' for v in sorted(allowed)) + ".", "vary")
     ref = _ref_MHz(observe, field_T, proton_MHz)
-    measured = [(_line_Hz(ln, k, ref), quantity(ln, "intensity", "percent", default=1.0, prefix=f"lines.{k}."))
-                for k, ln in enumerate(lines)]
     refs = [_ref_MHz(nuc, field_T, proton_MHz) for nuc, _, _ in spins]
     sites = [Site(nuc.symbol, nuc.spin, shift * r, count) for (nuc, shift, count), r in zip(spins, refs)]
     shift_sites = [i for i, (nuc, _, _) in enumerate(spins) if nuc.symbol == observe.symbol] \
         if "shifts" in vary else []
     coupling_idx = list(range(len(couplings))) if "couplings" in vary else []
-    result = fit(sites, couplings, observe.symbol, measured, shift_sites, coupling_idx)
-    p, err = result["params"], result["errors"]
-    if not result["converged"]:
-        warnings.append("The line assignment was still changing when the fit stopped: check the starting "
-                        "shifts and couplings, or fit fewer lines.")
+    extra: dict[str, Any] = {}
+    if on_trace:
+        x, y, base, width = _trace_input(req, ref)
+        if width is None:
+            raise InputError("The region's highest peak has no measurable width: give 'linewidth'.", "linewidth",
+                             "missing_field")
+        fit_width = "linewidth" in vary
+        if not (shift_sites or coupling_idx or fit_width):
+            raise InputError("Nothing to fit: choose shifts, couplings and/or linewidth in 'vary'.", "vary")
+        result = fit_trace(sites, couplings, observe.symbol, x, y, base, width, shift_sites, coupling_idx,
+                           fit_width)
+        p, err = result["params"], result["errors"]
+        n = len(shift_sites) + len(coupling_idx)
+        extra = {"linewidth_Hz": result["width_Hz"], "linewidth_error_Hz": (err[n] if err else None)
+                 if fit_width else None, "linewidth_fitted": fit_width, "scale": result["scale"],
+                 "scale_error": err[-1] if err else None, "rms_residual": result["rms"],
+                 "relative_rms": result["rms"] / max(abs(v - base) for v in y) if any(v != base for v in y) else None,
+                 "simulated": [base + v for v in result["model"]], "residual": result["residual"],
+                 "baseline": base}
+        warnings.append("Standard errors assume independent noise on every point: for a zero-filled or apodized "
+                        "spectrum they are too small.")
+    else:
+        measured = [(_line_Hz(ln, k, ref), quantity(ln, "intensity", "percent", default=1.0, prefix=f"lines.{k}."))
+                    for k, ln in enumerate(lines)]
+        result = fit(sites, couplings, observe.symbol, measured, shift_sites, coupling_idx)
+        p, err = result["params"], result["errors"]
+        if not result["converged"]:
+            warnings.append("The line assignment was still changing when the fit stopped: check the starting "
+                            "shifts and couplings, or fit fewer lines.")
+        extra = {"rms_Hz": result["rms_Hz"],
+                 "residuals": [{"position_Hz": xm, "assigned_Hz": a, "residual_Hz": r} for (xm, _), a, r
+                               in zip(measured, result["assigned_Hz"], result["residuals_Hz"])]}
     if err is None:
-        warnings.append("As many parameters as lines: the standard errors are undefined.")
+        warnings.append("As many parameters as data points: the standard errors are undefined.")
     fitted = dict(zip(shift_sites, p))
     out_spins: list[dict[str, Any]] = []
     for i, (nuc, shift, count) in enumerate(spins):
@@ -186,13 +262,9 @@ def op_fit_spin_system(req: dict, warnings: list[str]) -> dict:
                         "symmetry are fitted separately, so only their means are well determined.")
     new_sites = [Site(s.nucleus, s.spin, fitted.get(i, s.offset_Hz), s.count) for i, s in enumerate(sites)]
     new_couplings = [(c["between"][0], c["between"][1], c["J_Hz"]) for c in out_couplings]
-    checks = [{"pair": list(c["pair"]), "delta_nu_Hz": c["delta_nu_Hz"], "J_Hz": c["J_Hz"],
-               "delta_nu_over_J": c["delta_nu_over_J"], "first_order": c["first_order"]}
-              for c in first_order_checks(new_sites, new_couplings, spectrometer_1H_MHz=proton_MHz)]
-    return {"observe": observe.symbol, "spins": out_spins, "couplings": out_couplings, "rms_Hz": result["rms_Hz"],
-            "checks": checks, "iterations": result["iterations"],
-            "residuals": [{"position_Hz": x, "assigned_Hz": a, "residual_Hz": r} for (x, _), a, r
-                          in zip(measured, result["assigned_Hz"], result["residuals_Hz"])]}
+    return {"observe": observe.symbol, "on": "trace" if on_trace else "lines", "spins": out_spins,
+            "couplings": out_couplings, "checks": _checks(new_sites, new_couplings, proton_MHz),
+            "iterations": result["iterations"], **extra}
 
 
 _SPIN_PARAMS = SPIN_DECLARED["spin_system"].keys()
@@ -226,10 +298,13 @@ DECLARED = {
                   help="a multiple of the noise, e.g. '5 sigma'"),
         )),
     "fit_spin_system": Op(
-        "fit_spin_system", "fit a spin system's shifts and couplings to measured line positions (least squares)",
-        cli="fit", one_of=(("spectrometer", "field"),), limits=f"{MAX_LINES} lines", params=(
+        "fit_spin_system", "fit a spin system's shifts and couplings to measured line positions or to a "
+        "region's trace (least squares)",
+        cli="fit", one_of=(("spectrometer", "field"), ("lines", "y"), ("lines", "x_unit"), ("lines", "linewidth")),
+        limits=f"{MAX_LINES} lines; {TRACE_POINTS} trace points",
+        params=(
             _SPIN_PARAMS["observe"], _SPIN_PARAMS["spins"], _SPIN_PARAMS["couplings"], *MAGNET,
-            Param("lines", "objects", required=True, max_items=MAX_LINES, label="Measured lines",
+            Param("lines", "objects", max_items=MAX_LINES, label="Measured lines",
                   help="positions (ppm, or '1234.5 Hz') and intensities, e.g. '7.012:1,7.031:1'", cli="--lines",
                   cli_order=("position", "intensity"), cli_sep=":",
                   example=[{"position": 0.99, "intensity": 1}, {"position": 1.0, "intensity": 1},
@@ -237,8 +312,18 @@ DECLARED = {
                 Param("position", "value", required=True, label="Position", help="ppm, or text with Hz"),
                 Param("intensity", "number", label="Intensity", help="height or integral"),
             )),
-            Param("vary", "texts", default=["shifts", "couplings"], label="Vary", max_items=2,
-                  help="'shifts' and/or 'couplings'", example=["shifts", "couplings"]),
+            Param("first_x", "number", label="First x", help="trace fit: x of the region's first point", cli="-"),
+            Param("last_x", "number", label="Last x", help="trace fit: x of the region's last point", cli="-"),
+            Param("x_unit", "choice", choices=("Hz", "ppm"), label="x unit",
+                  help="trace fit: ppm, or Hz from the observed nucleus's 0 ppm", cli="-"),
+            Param("y", "value", label="Ordinates", help="trace fit: the region's evenly spaced ordinates "
+                  "(instead of 'lines')", cli="-"),
+            Param("baseline", "number", label="Baseline", help="trace fit: level subtracted from y", cli="-"),
+            Param("linewidth", "quantity", unit="coupling", label="Line width",
+                  help="trace fit: starting (or fixed) full width at half height; default from the region's "
+                       "highest peak", cli="-"),
+            Param("vary", "texts", default=["shifts", "couplings"], label="Vary", max_items=3,
+                  help="'shifts', 'couplings' and (trace fit) 'linewidth'", example=["shifts", "couplings"]),
         )),
 }
 

@@ -40,17 +40,18 @@ MAX_ORDINATE = 1e100  # any intensity unit, but sums of squares stay finite
 _SQZ = {c: d for d, c in enumerate("@ABCDEFGHI")} | {c: -d for d, c in enumerate("abcdefghi", 1)}
 _DIF = {c: d for d, c in enumerate("%JKLMNOPQR")} | {c: -d for d, c in enumerate("jklmnopqr", 1)}
 _DUP = {c: d for d, c in enumerate("STUVWXYZs", 1)}
-# Decoding is done with C-level string operations (one str.translate and re.sub per line, then
-# float() over the pieces), so that a 256k-point file reads in well under a second in the browser:
-# "|" starts a new (absolute) value, " " starts a difference.
-_SEP = re.compile(r"[\s,;]+|(?=[+-])")
-_ASDF_TABLE = str.maketrans({**{c: f"|{d}" for c, d in _SQZ.items()}, **{c: f" {d}" for c, d in _DIF.items()}})
-_DUP_TOKEN = re.compile(r"([@A-Ia-i%J-Rj-r][0-9]*|[+-]?[0-9]+\.?[0-9]*)([S-Zs][0-9]*)")
+# Decoding is done with C-level string operations (DUP counts expanded by slicing, one str.translate
+# per line, then float() over the pieces), for speed in the browser (benchmark.py --only spectrum):
+# "|" starts a new (absolute) value, " " starts a difference; separators and signs start a new value
+# too (empty pieces are skipped).
+_ASDF_TABLE = str.maketrans({**{c: f"|{d}" for c, d in _SQZ.items()}, **{c: f" {d}" for c, d in _DIF.items()},
+                             **dict.fromkeys(" \t\r\n\v\f,;", "|"), "+": "|+", "-": "|-"})
+_DUP_COUNT = re.compile(r"[S-Zs][0-9]*")
+_TOKEN_START = frozenset("@ABCDEFGHIabcdefghi%JKLMNOPQRjklmnopqr+-")
 _ALLOWED = re.compile(r"[0-9@A-Za-s%+\-.\s,;]*")
 _EXPONENT = re.compile(r"[0-9.][Ee][+-][0-9]")  # E then a sign; E then a digit is SQZ 5
 _OTHER_ASDF = re.compile(r"[@A-DF-Ia-df-i%J-Rj-rS-Zs]")
 _ANY_DUP = re.compile(r"[S-Zs]")
-_LAST = re.compile(r"([^0-9.])[0-9.]*\s*$")
 _LABEL = re.compile(r"^\s*##([^=]*)=(.*)$")
 
 
@@ -132,10 +133,26 @@ def _num(text: str, label: str, line: int) -> float:
     return x
 
 
-def _dup(m: re.Match) -> str:
-    token, count = m.group(1), m.group(2)
-    n = int(str(_DUP[count[0]]) + count[1:])
-    return token * n
+def _expand_dups(text: str, line: int) -> str:
+    """Each DUP count (S…Z, s, then digits) replaced by that many copies of the token before it
+    (a value, or a DIF token: its difference); the token is found by looking back over its digits."""
+    out: list[str] = []
+    pos = 0
+    for m in _DUP_COUNT.finditer(text):
+        end = m.start()
+        j = end
+        while j > pos and text[j - 1] in "0123456789.":
+            j -= 1
+        if j > pos and text[j - 1] in _TOKEN_START:
+            j -= 1
+        if j == end or j == 0:   # nothing before it, or only the line's abscissa
+            raise InputError(f"Line {line}: a repeat count (DUP) with nothing to repeat.", "text")
+        count = int(str(_DUP[m.group(0)[0]]) + m.group(0)[1:])
+        out.append(text[pos:j])
+        out.append(" ".join([text[j:end]] * count))   # separated: plain numbers do not delimit themselves
+        pos = m.end()
+    out.append(text[pos:])
+    return "".join(out)
 
 
 def decode_line(text: str, line: int) -> tuple[list[float], bool, int]:
@@ -157,24 +174,23 @@ def decode_line(text: str, line: int) -> tuple[list[float], bool, int]:
         if _EXPONENT.search(text):  # AFFN with exponents: plain numbers only
             return [float(t) for t in re.split(r"[\s,;]+", text) if t], False, decimals
         if _ANY_DUP.search(text):
-            if _DUP_TOKEN.match(text[len(first):]) is None and text[len(first):len(first) + 1] in _DUP:
-                raise InputError(f"Line {line}: a repeat count (DUP) with nothing to repeat.", "text")
-            text = _DUP_TOKEN.sub(_dup, text)
-        coded = ("|" + _SEP.sub("|", text)).translate(_ASDF_TABLE)
+            text = _expand_dups(text, line)
         out: list[float] = []
-        for seg in coded.split("|"):
+        for seg in ("|" + text).translate(_ASDF_TABLE).split("|"):
             if not seg:
                 continue
-            values = [float(v) for v in seg.split()]
             if seg[0] == " ":
                 if not out:
                     raise InputError(f"Line {line}: a difference (DIF) with no value before it.", "text")
+                values = list(map(float, seg.split()))
                 values[0] += out[-1]
-            out.extend(accumulate(values))
+                out.extend(accumulate(values))
+            else:
+                out.extend(accumulate(map(float, seg.split())))
     except ValueError:
         raise InputError(f"Line {line}: '{text[:40]}' is not valid spectrum data.", "text") from None
-    last = _LAST.search(text)
-    return out, bool(last and last.group(1) in _DIF), decimals
+    body = text.rstrip().rstrip("0123456789.")
+    return out, bool(body) and body[-1] in _DIF, decimals
 
 
 def decode_xy_table(lines: list[tuple[int, str]], first_x: float, last_x: float, npoints: int, x_factor: float,

@@ -16,7 +16,7 @@ Recipes*, 3rd ed., §15.5), undefined when m ≤ n.
 from __future__ import annotations
 
 import math
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import replace
 from typing import Any
 
@@ -147,19 +147,13 @@ def fit(sites: Sequence[Site], couplings: Sequence[tuple[int, int, float]], obse
             converged = True
             break
         index = new_index
-        p, jac, cost, steps = _levenberg_marquardt(model, p, x, index)
+        p, cost, steps = _position_fit(model, p, x, index)
         it += steps
     ref = model.lines(p)
     calc = [ref[b][0] for b in index]
     r = [xi - ci for xi, ci in zip(x, calc)]
     cost = sum(v * v for v in r)
-    jac = _jacobian(model, p, index, (len(ref), calc))
-    errors = None
-    if m > n:
-        inv = _inverse(_normal(jac, m, n))
-        if inv is not None:
-            s2 = cost / (m - n)
-            errors = [math.sqrt(max(0.0, s2 * inv[a][a])) for a in range(n)]
+    errors = covariance_errors(_jacobian(model, p, index, (len(ref), calc)), cost, m)
     return {"params": p, "errors": errors, "rms_Hz": math.sqrt(cost / m), "residuals_Hz": r,
             "assigned_Hz": calc, "iterations": it, "converged": converged}
 
@@ -182,42 +176,72 @@ def _normal(jac: list[list[float]], m: int, n: int) -> list[list[float]]:
     return [[sum(jac[a][i] * jac[b][i] for i in range(m)) for b in range(n)] for a in range(n)]
 
 
-def _levenberg_marquardt(model, p, x, index):
-    """Minimize Σ (x − ν_index(p))² with the assignment fixed; returns (p, J, cost, steps)."""
-    n, m = len(p), len(x)
+def _position_fit(model: _Model, p: list[float], x: list[float], index: list[int]) -> tuple[list[float], float, int]:
+    """Minimize Σ (x − ν_index(p))² with the assignment fixed; returns (p, cost, steps)."""
+    refs: dict[tuple[float, ...], tuple[int, list[float]]] = {}
 
-    def residuals(params):
+    def residuals(params: list[float]) -> list[float] | None:
         lines = model.lines(params)
-        calc = _positions(lines, index, (len(lines), [lines[b][0] for b in index])) \
-            if len(lines) > max(index) else None
-        if calc is None:
-            return None, None
-        return [xi - ci for xi, ci in zip(x, calc)], (len(lines), calc)
+        if len(lines) <= max(index):
+            return None
+        calc = [lines[b][0] for b in index]
+        refs[tuple(params)] = (len(lines), calc)
+        return [xi - ci for xi, ci in zip(x, calc)]
 
-    r, ref = residuals(p)
+    def jacobian(params: list[float]) -> list[list[float]]:
+        # ∂r/∂p = −∂ν/∂p
+        return [[-v for v in row] for row in _jacobian(model, params, index, refs[tuple(params)])]
+
+    return levenberg_marquardt(residuals, jacobian, p, TOL_HZ)
+
+
+def levenberg_marquardt(
+    residuals: Callable[[list[float]], list[float] | None],
+    jacobian: Callable[[list[float]], list[list[float]]],
+    p: list[float], tol: float, max_iter: int = MAX_ITER,
+) -> tuple[list[float], float, int]:
+    """Minimize Σ r(p)² (``residuals`` returns None where the model is undefined);
+    ``jacobian(p)[j][i]`` = ∂r_i/∂p_j.  Marquardt's damping (module docstring); stops when
+    no step lowers the cost or every step component is below ``tol``.  Returns (p, cost, steps)."""
+    r = residuals(p)
+    if r is None:
+        raise InputError("The starting values give no model to fit.", "spins")
+    n, m = len(p), len(r)
     cost = sum(v * v for v in r)
     lam = 1e-3
-    jac = None
     steps = 0
-    for _ in range(MAX_ITER):
+    for _ in range(max_iter):
         steps += 1
-        jac = _jacobian(model, p, index, ref)
+        jac = jacobian(p)
         jtj = _normal(jac, m, n)
-        jtr = [sum(jac[a][i] * r[i] for i in range(m)) for a in range(n)]
-        accepted = None
+        # the model is f and r = x − f, so the Gauss–Newton step solves JᵀJ δ = −Jᵀ r in terms of ∂r/∂p
+        jtr = [-sum(jac[a][i] * r[i] for i in range(m)) for a in range(n)]
+        accepted: list[float] | None = None
         for _ in range(MAX_TRIES):
             damped = [[jtj[a][b] * (1 + lam) + lam * 1e-12 if a == b else jtj[a][b] for b in range(n)]
                       for a in range(n)]
             step = _solve(damped, jtr)
             if step is not None:
                 trial = [pi + si for pi, si in zip(p, step)]
-                t_r, t_ref = residuals(trial)
+                t_r = residuals(trial)
                 if t_r is not None and sum(v * v for v in t_r) <= cost:
                     accepted = step
-                    p, r, ref, cost = trial, t_r, t_ref, sum(v * v for v in t_r)
+                    p, r, cost = trial, t_r, sum(v * v for v in t_r)
                     lam = max(lam / 10, 1e-12)
                     break
             lam *= 10
-        if accepted is None or max(abs(s) for s in accepted) < TOL_HZ:
+        if accepted is None or max((abs(s) for s in accepted), default=0.0) < tol:
             break
-    return p, jac, cost, steps
+    return p, cost, steps
+
+
+def covariance_errors(jac: list[list[float]], cost: float, m: int) -> list[float] | None:
+    """Standard errors √(σ² (JᵀJ)⁻¹_jj) with σ² = cost / (m − n); None when m ≤ n or JᵀJ is singular."""
+    n = len(jac)
+    if m <= n:
+        return None
+    inv = _inverse(_normal(jac, m, n))
+    if inv is None:
+        return None
+    s2 = cost / (m - n)
+    return [math.sqrt(max(0.0, s2 * inv[a][a])) for a in range(n)]

@@ -106,6 +106,7 @@ def test_notebook_and_crash_recovery(dist, open_page, tmp_path):
     expect(page.locator("#scale-result")).to_contain_text(f"{want['J_Hz']:#.5g}")
 
     _bad_share_links(page)
+    _older_spin_link(page)
     _worker_crash(rec, want)
     _panel_with_rows(rec)
     assert not rec.errors, rec.errors
@@ -134,6 +135,19 @@ def _bad_share_links(page):
         page.evaluate("(h) => nmrcalcTest.openShareLink(h)", fragment)
         expect(page.locator("#page-notice")).to_contain_text("could not be opened")
         expect(page.locator("#page-notice")).to_contain_text(reason)
+
+
+def _older_spin_link(page):
+    """A spin-system link written before spins had labels still opens; each spin gets a free letter."""
+    rows = {"spins": [{"nucleus": "1H", "shift": "4.10", "count": "1"}, {"nucleus": "1H", "shift": "4.22", "count": "1"}],
+            "couplings": [{"i": 0, "j": 1, "J": "-12.5"}]}
+    link = {"panel": "spins", "form": "spins", "request": {"op": "spin_system"}, "inputs": {"spins.rows": rows}}
+    page.evaluate("(h) => nmrcalcTest.openShareLink(h)", "#calc=" + _b64url(link))
+    expect(page.locator("#tab-spins")).to_have_attribute("aria-selected", "true")
+    expect(page.locator("#spins-s1-shift")).to_have_value("4.22")
+    expect(page.locator("#spins-s1-label")).to_have_attribute("placeholder", "B")
+    expect(page.locator("#card-spins")).to_contain_text("Spin B")
+    page.click("#tab-coupling")
 
 
 def _worker_crash(rec, want):

@@ -104,8 +104,12 @@ const NMRNotebook = (() => {
     return summary;
   }
 
-  // value has the JSON shape of template: same types, the same object keys, array
-  // entries shaped like the template's first entry (or flat objects of plain values).
+  // Row keys added after pins were first written: an older pin or link without them still
+  // loads (the panel fills them in, e.g. a spin without a label gets the next free letter).
+  const ADDED_ROW_KEYS = new Set(["label"]);
+  // value has the JSON shape of template: same types, the same object keys (but for
+  // ADDED_ROW_KEYS, which may be missing), array entries shaped like the template's first
+  // entry (or flat objects of plain values).
   function sameShape(value, template, depth) {
     if (depth > 6) return false;
     if (Array.isArray(template)) {
@@ -115,7 +119,8 @@ const NMRNotebook = (() => {
     if (isPlain(template)) {
       if (!isPlain(value)) return false;
       const keys = Object.keys(template);
-      return Object.keys(value).every((k) => keys.includes(k)) && keys.every((k) => k in value && sameShape(value[k], template[k], depth + 1));
+      return Object.keys(value).every((k) => keys.includes(k))
+        && keys.every((k) => (k in value ? sameShape(value[k], template[k], depth + 1) : ADDED_ROW_KEYS.has(k)));
     }
     return value === null || template === null ? isScalar(value) : typeof value === typeof template;
   }

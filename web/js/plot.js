@@ -179,8 +179,9 @@ const NMRPlot = (() => {
    * A pan/zoom plot on an x axis (ppm decreasing to the right when reversed).
    * create(container, {label, xLabel, reversed, height, fileName})
  *   -> {node, svg, update(data, keepView), view(), setXLabel(text), zoom(factor), pan(fraction), reset()}
-   * data: {traces: [{label, x, y, kind: "line"|"sticks", color, dashed, mark, legend}], stacked, stackLabels}
-   * color: index into --plot-1..6; mark: draw in the marker colour (e.g. satellites).
+   * data: {traces: [{label, x, y, kind: "line"|"sticks", color, dashed, mark, legend, below}], stacked, stackLabels}
+   * color: index into --plot-1..6; mark: draw in the marker colour (e.g. satellites); below: drawn in a
+   * band under the others at their vertical scale (a residual). options.onTap(x): a tap (or click) at data x.
    */
   function create(container, options) {
     const opts = { height: 300, reversed: true, caption: "Zoom: wheel, pinch or + / −. Pan: drag or ← →. 0 or Reset restores the view.", ...options };
@@ -262,16 +263,21 @@ const NMRPlot = (() => {
       const layer = svgEl("g", { "clip-path": `url(#${clipId})` });
       svg.append(layer);
 
-      const sharedTop = visibleTop(data.traces, lo, hi);
+      // traces marked `below` (a residual) share the main traces' vertical scale in a band under them,
+      // about their own zero line
+      const lower = data.traces.some((t) => t.below) && !data.stacked ? 0.3 : 0;
+      const sharedTop = visibleTop(data.traces.filter((t) => !t.below), lo, hi);
       const bands = data.stacked ? data.traces.length : 1;
-      const bandH = plotH / bands;
+      const bandH = (plotH * (1 - lower)) / bands;
       data.traces.forEach((t, index) => {
         const band = data.stacked ? index : 0;
-        const base = MARGIN.top + bandH * (band + 1) - (data.stacked ? 4 : 0);
+        const below = lower && t.below;
+        const base = below ? MARGIN.top + plotH * (1 - lower / 2) : MARGIN.top + bandH * (band + 1) - (data.stacked ? 4 : 0);
         const scaleH = bandH - (data.stacked ? 10 : 6);
         const inView = [];
         const yMax = data.stacked ? visibleTop([t], lo, hi) : sharedTop;
         const py = (y) => base - (yMax > 0 ? (y / yMax) * scaleH : 0);
+        if (below) layer.append(svgEl("line", { x1: left, x2: left + plotW, y1: base, y2: base, stroke: pal.grid, "stroke-dasharray": "3 3" }));
         const color = colorOf(pal, t);
         if (t.kind === "sticks") {
           const g = svgEl("g", { stroke: color, "stroke-width": 2, "stroke-dasharray": t.dashed ? "4 3" : null });
@@ -359,6 +365,7 @@ const NMRPlot = (() => {
     }, { passive: false });
     const pointers = new Map();
     let gesture = null;
+    let tap = null;  // a single pointer that went down and up within a few pixels: opts.onTap(x)
     svg.addEventListener("pointerdown", (event) => {
       try {
         svg.setPointerCapture(event.pointerId);
@@ -368,6 +375,7 @@ const NMRPlot = (() => {
       pointers.set(event.pointerId, event.clientX);
       const xs = [...pointers.values()];
       gesture = { view: view.slice(), xs, anchor: xs.map(toData) };
+      tap = xs.length === 1 ? { x: event.clientX, y: event.clientY, time: event.timeStamp } : null;
     });
     svg.addEventListener("pointermove", (event) => {
       if (!pointers.has(event.pointerId) || !gesture) return;
@@ -391,6 +399,12 @@ const NMRPlot = (() => {
       }
     });
     const release = (event) => {
+      if (tap && event.type === "pointerup" && opts.onTap && Math.hypot(event.clientX - tap.x, event.clientY - tap.y) < 6 && event.timeStamp - tap.time < 600) {
+        view = gesture ? gesture.view.slice() : view;
+        draw();
+        opts.onTap(toData(event.clientX));
+      }
+      tap = null;
       pointers.delete(event.pointerId);
       const xs = [...pointers.values()];
       gesture = xs.length ? { view: view.slice(), xs, anchor: xs.map(toData) } : null;
