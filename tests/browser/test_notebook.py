@@ -145,7 +145,7 @@ def _older_spin_link(page):
     page.evaluate("(h) => nmrcalcTest.openShareLink(h)", "#calc=" + _b64url(link))
     expect(page.locator("#tab-spins")).to_have_attribute("aria-selected", "true")
     expect(page.locator("#spins-s1-shift")).to_have_value("4.22")
-    expect(page.locator("#spins-s1-label")).to_have_attribute("placeholder", "B")
+    expect(page.locator("#spins-s1-label")).to_have_attribute("placeholder", "B (automatic)")
     expect(page.locator("#card-spins")).to_contain_text("Spin B")
     page.click("#tab-coupling")
 
