@@ -1,7 +1,8 @@
 """A worker that stops without an error event (terminated from outside, as a killed worker would be)
 is noticed by the page's heartbeat: a calculation sent to it fails with a message beside its panel
 instead of waiting forever, Python restarts, the status line says so, the inputs are kept and the
-next calculation gives its result; a worker that stops while idle is replaced before the next call.
+next calculation gives its result; a worker that stops while idle is replaced before the next call, and
+one that stops in the middle of a calculation is noticed by its silence.
 The test reaches the worker through the page's documented test hook (window.nmrcalcTest.worker()).
 
 Expected numbers come from nmrcalc.api.handle on CPython (the physics is tested elsewhere)."""
@@ -59,4 +60,19 @@ def test_silently_stopped_worker_is_noticed_and_restarted(dist, open_page):
           .concat(Array.from({length: 7}, (_, k) => ({between: [k, k + 2], J: "1.5 Hz"})))})""")
     assert reply["ok"], reply
     assert page.evaluate("window.nmrcalcStatus.restarts") == 2
+
+    # stopped in the middle of a calculation (after it answered the heartbeat and started): the
+    # silence is noticed (the limit shortened from 180 s to 3 s for the test), the call fails, Python restarts
+    page.evaluate("nmrcalcTest.setSilentLimit(3000)")
+    page.evaluate("""() => { window.__midCall = nmrcalcTest.api({op: "spin_system", observe: "1H", spectrometer: "400 MHz",
+        spins: Array.from({length: 9}, (_, k) => ({nucleus: "1H", shift: `${1 + 0.11 * k} ppm`})),
+        couplings: Array.from({length: 8}, (_, k) => ({between: [k, k + 1], J: "7 Hz"}))}); }""")
+    page.wait_for_timeout(1500)
+    page.evaluate("nmrcalcTest.worker().terminate()")
+    reply = page.evaluate("() => window.__midCall")
+    assert not reply["ok"] and reply["error"]["code"] == "worker_restarted", reply
+    _restarted(page, 3)
+    page.click("#form-scale button[type=submit]")
+    expect(page.locator("#scale-form-error")).to_be_empty()
+    expect(page.locator("#scale-result")).to_contain_text(f"{want['J_Hz']:#.5g}")
     assert not rec.errors, rec.errors

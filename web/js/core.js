@@ -226,8 +226,13 @@ function onWorkerCrash(detail) {
 // starts the call). No message within PONG_MS means it is gone: pending calls fail with a message
 // and a fresh worker starts (onWorkerCrash). A worker busy in Python answers no ping, so none is sent
 // while a call runs; the page being busy itself (the answer waiting behind it) only asks again.
+// While a call runs, a worker that says nothing at all (no reply, no progress) for SILENT_MS is taken
+// for dead the same way: every op's worst case is bounded well below that (DEVELOPERS.md, Limits),
+// and the long ones (spin systems) report progress as they go.
 const HEARTBEAT_MS = 5000;
 const PONG_MS = 4000;
+let SILENT_MS = 180_000;
+let lastHeard = performance.now();
 let pongTimer = null;
 function ping() {
   if (!workerReady || pongTimer !== null) return;
@@ -245,8 +250,18 @@ function ping() {
 function heard() {
   clearTimeout(pongTimer);
   pongTimer = null;
+  lastHeard = performance.now();
 }
-setInterval(() => { if (waiting.size === 0) ping(); }, HEARTBEAT_MS);
+setInterval(() => {
+  if (waiting.size === 0) ping();
+  else if (workerReady && performance.now() - lastHeard > SILENT_MS) {
+    onWorkerCrash(`no sign of life for ${Math.round(SILENT_MS / 1000)} s during a calculation`);
+  }
+}, HEARTBEAT_MS);
+/** For the browser tests (via main.js's hook): a shorter silence limit, so a test need not wait minutes. */
+function setSilentLimit(ms) {
+  SILENT_MS = ms;
+}
 
 // The worker was started by boot.js (NMRBoot) before this script ran; it is
 // adopted on the first start and replaced by a fresh one on every later start.
@@ -813,5 +828,5 @@ function debugWorker() {
 export {
   api, ready, el, fmt, fixed, calculation, nuclideLabel, numberNode, form, sharedField, resultList, sortableTable,
   registerPanel, whenShown, start, timings, magnetRequest, MAGNET_UNITS, remember, recall, cancel, param, declaredField, storageTrouble,
-  forms, selectTab, panelIds, panelOf, notice, debugWorker,
+  forms, selectTab, panelIds, panelOf, notice, debugWorker, setSilentLimit,
 };

@@ -1,6 +1,6 @@
 // The page's entry module (esbuild bundles it and everything it imports into one script):
 // the panels in tab order, registered with the shell, then the shell starts.
-import { registerPanel, start, api, cancel, debugWorker } from "./core.js";
+import { registerPanel, start, api, cancel, debugWorker, setSilentLimit } from "./core.js";
 import NMRNotebook, { openShareLink } from "./notebook.js";
 import magnet from "./panels/10-magnet.js";
 import coupling from "./panels/20-coupling.js";
@@ -22,7 +22,7 @@ for (const panel of [magnet, coupling, energy, reference, multiplet, labels, spi
 // tests and build_scripts/benchmark.py (calls timed in the page, a worker a test makes fail,
 // the notebook's pins and CSV cell guard). The page itself never reads it.
 window.nmrcalcTest = Object.freeze({
-  api, cancel, openShareLink, worker: debugWorker,
+  api, cancel, openShareLink, worker: debugWorker, setSilentLimit,
   notebook: Object.freeze({ list: NMRNotebook.list, csvCell: NMRNotebook.csvCell, cleanNumber: NMRNotebook.cleanNumber }),
 });
 
