@@ -73,11 +73,11 @@ export default {
     });
 
     const fixed = {
-      observe: NMR.sharedField("mult", { id: "observe", label: "Observed nucleus", value: "13C", list: "nuclide-list", keys: ["observe"] }),
+      observe: NMR.sharedField("mult", { id: "observe", param: "multiplet.observe", value: "13C", list: "nuclide-list" }),
       magnet: NMR.sharedField("mult", { id: "magnet", label: "Magnet", value: "400", units: NMR.MAGNET_UNITS, keys: ["spectrometer", "field"] }),
       center: NMR.sharedField("mult", { id: "center", param: "multiplet.center", value: "77.0", keys: ["center"] }),
       linewidth: NMR.sharedField("mult", { id: "linewidth", param: "multiplet.linewidth", value: "0.5", keys: ["linewidth"] }),
-      shape: NMR.sharedField("mult", { id: "shape", label: "Line shape", kind: "select", options: [["lorentzian", "Lorentzian"], ["gaussian", "Gaussian"]], keys: ["shape"] }),
+      shape: NMR.sharedField("mult", { id: "shape", param: "multiplet.shape", kind: "select", options: [["lorentzian", "Lorentzian"], ["gaussian", "Gaussian"]] }),
     };
     const formNode = el("form", { class: "calc-form", id: "form-mult", novalidate: true });
     formNode.append(el("div", { class: "fields" }, ...Object.values(fixed).map((f) => f.wrap)));

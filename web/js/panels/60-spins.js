@@ -50,8 +50,8 @@ export default {
       observe: NMR.sharedField("spins", { id: "observe", param: "spin_system.observe", value: "1H", list: "nuclide-list", keys: ["observe"] }),
       magnet: NMR.sharedField("spins", { id: "magnet", label: "Magnet", value: "400", units: NMR.MAGNET_UNITS, keys: ["spectrometer", "field"] }),
       linewidth: NMR.sharedField("spins", { id: "linewidth", param: "spin_system.linewidth", value: "0.8", keys: ["linewidth"] }),
-      fields: NMR.sharedField("spins", { id: "fields", label: "Several fields (MHz ¹H, comma-separated)", value: "60, 300, 400, 600, 800, 1200", keys: ["fields"], wide: true }),
-      overlay: NMR.sharedField("spins", { id: "overlay", label: "Overlay the first-order pattern", kind: "checkbox", value: true, keys: ["first_order"] }),
+      fields: NMR.sharedField("spins", { id: "fields", param: "spin_system.fields", value: "60, 300, 400, 600, 800, 1200", wide: true }),
+      overlay: NMR.sharedField("spins", { id: "overlay", param: "spin_system.first_order", kind: "checkbox", value: true }),
     };
     const formNode = el("form", { class: "calc-form", id: "form-spins", novalidate: true });
     formNode.append(el("div", { class: "fields" }, ...Object.values(fixed).map((f) => f.wrap)));

@@ -48,7 +48,7 @@ export default {
     });
 
     const fixed = {
-      observe: NMR.sharedField("ident", { id: "observe", label: "Observed nucleus", value: "1H", list: "nuclide-list", keys: ["observe"] }),
+      observe: NMR.sharedField("ident", { id: "observe", param: "identify.observe", value: "1H", list: "nuclide-list" }),
       magnet: NMR.sharedField("ident", {
         id: "magnet", label: "Magnet", value: "400", units: NMR.MAGNET_UNITS, keys: ["spectrometer", "field"],
         hint: "Needed for ppm positions; blank for Hz offsets only.",
