@@ -39,8 +39,11 @@ def _submit_and_wait(page):
 
 def _only_error_at(page, selector: str, message: str):
     """message beside selector's input (its own error line), the result stale, no other error on the panel
-    (a spin's label in the message is the page's own: "spin A" here may read "spin CH₃" there)."""
-    pattern = re.compile("^" + re.escape(message).replace(r"spin\ A\ at", r"spin\ \S+\ at").replace(r"spin\ B\ at", r"spin\ \S+\ at") + "$")
+    (a spin's label in the message is the page's own: "spin A" here may read "spin CH₃" there; the
+    message's leading request path, "spins.0.shift: ", reads as the row's name there, "Spin CH₃, shift: ")."""
+    rest = re.sub(r"^(?:spins|couplings)\.\d+\.[\w.]+: ", "", message)
+    named = "(?:.+?: )?" if rest != message else ""
+    pattern = re.compile("^" + named + re.escape(rest).replace(r"spin\ A\ at", r"spin\ \S+\ at").replace(r"spin\ B\ at", r"spin\ \S+\ at") + "$")
     expect(page.locator(selector)).to_have_text(pattern)
     expect(page.locator("#spins-result")).to_have_class("result stale")
     shown = page.evaluate("""() => [...document.querySelectorAll('#panel-spins .field-error, #panel-spins .form-error')]
