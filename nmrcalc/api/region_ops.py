@@ -106,7 +106,8 @@ def op_integrate(req: dict, warnings: list[str]) -> dict:
             if spans[k][0] <= spans[j][1] and spans[j][0] <= spans[k][1]:
                 warnings.append(f"Regions {j + 1} and {k + 1} overlap: their relative errors are not independent.")
     values = [regions.integral(y[lo:hi + 1], dx, base, sigma) for lo, hi, _, _ in spans]
-    ref = None if req.get("normalize_to") is None else int(req["normalize_to"])   # declared an integer
+    raw = req.get("normalize_to")
+    ref = None if raw in (None, "", []) else int(raw)   # declared an integer; "" or [] is not given
     nuclei = req.get("nuclei", 1.0)
     if ref is not None and not 0 <= ref < len(values):
         raise InputError(f"'normalize_to' names region {ref + 1}, but there are {len(values)}.", "normalize_to")

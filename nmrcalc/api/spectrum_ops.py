@@ -190,8 +190,10 @@ def op_fit_spin_system(req: dict, warnings: list[str]) -> dict:
         vary = [v.strip() for v in vary.split(",") if v.strip()]
     on_trace = req.get("y") is not None
     if on_trace == (lines is not None):
+        both = on_trace
         raise InputError("Give either 'lines' (measured positions) or a trace ('first_x', 'last_x', 'x_unit', "
-                         "'y'), not both.", "lines" if lines is not None else "y", "missing_field")
+                         f"'y'){', not both' if both else ''}.", "y" if both else "lines",
+                         "invalid_value" if both else "missing_field")
     stray = [k for k in ("first_x", "last_x", "x_unit", "baseline", "linewidth") if req.get(k) is not None]
     if not on_trace and stray:
         raise InputError(f"'{stray[0]}' belongs to a trace fit (with 'y'); a fit to 'lines' does not use it.",
