@@ -187,20 +187,25 @@ def test_weak_links_split_unless_exact():
             assert min(abs(line["Hz"] - x) for x in exact_Hz) <= bound + 2e-3  # 2e-3: merge tolerances
 
 
+def _benchmark_molecule() -> tuple[list, list]:
+    """The benchmark's 16-nucleus molecule (build_scripts/benchmark.py), loaded from there: one definition."""
+    import importlib.util
+    from pathlib import Path
+
+    spec = importlib.util.spec_from_file_location(
+        "benchmark", Path(__file__).resolve().parent.parent / "build_scripts" / "benchmark.py")
+    module = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(module)
+    return module._phenyl_isopentyl()
+
+
 def test_sixteen_nuclei_in_two_weakly_linked_clusters_are_drawn_at_half_a_hertz():
     # made-up (3-methylbutyl)phenyl fragment (the benchmark's 16-nucleus molecule): five ring H and an
     # 11-H chain joined by 0.6 Hz benzylic links; too large to solve in one piece, so weak links, and its
     # 0.5 Hz spectrum over 2.6 kHz is drawn, not refused
-    ring = ((7.17, "H-2"), (7.17, "H-6"), (7.27, "H-3"), (7.27, "H-5"), (7.16, "H-4"))
-    spins = [{"nucleus": "1H", "shift": s, "label": n} for s, n in ring]
-    spins += [{"nucleus": "1H", "shift": s, "count": c, "label": n} for s, c, n in
-              ((2.62, 2, "H-1'"), (1.50, 2, "H-2'"), (1.60, 1, "H-3'"), (0.94, 6, "H-4'"))]
-    J = [(("H-2", "H-3"), 7.6), (("H-6", "H-5"), 7.6), (("H-3", "H-4"), 7.4), (("H-5", "H-4"), 7.4),
-         (("H-2", "H-4"), 1.2), (("H-6", "H-4"), 1.2), (("H-2", "H-6"), 1.8), (("H-3", "H-5"), 1.4),
-         (("H-2", "H-5"), 0.6), (("H-6", "H-3"), 0.6), (("H-1'", "H-2'"), 7.9), (("H-2'", "H-3'"), 6.8),
-         (("H-3'", "H-4'"), 6.6), (("H-2", "H-1'"), 0.6), (("H-6", "H-1'"), 0.6)]
+    spins, couplings = _benchmark_molecule()
     req = {"op": "spin_system", "observe": "1H", "spectrometer": "400 MHz", "spins": spins,
-           "couplings": [{"between": list(p), "J": j} for p, j in J], "spectrum": True, "linewidth": "0.5 Hz"}
+           "couplings": couplings, "spectrum": True, "linewidth": "0.5 Hz"}
     r = run(req)
     assert sum(s.get("count", 1) for s in spins) == 16
     assert [c["method"] for c in r["clusters"]] == ["weak-link", "weak-link"]
