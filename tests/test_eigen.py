@@ -71,3 +71,22 @@ def test_bad_matrix_raises_input_error(bad):
     with pytest.raises(InputError) as info:
         eigh(bad)
     assert info.value.field == "matrix"
+
+
+@pytest.mark.parametrize("n", [24, 40])
+def test_sparse_and_split_matrices_take_the_krylov_route(n):
+    # rows with no, one and several off-diagonal entries, uncoupled parts and a repeated
+    # eigenvalue: the Lanczos route must restart, split and still match the reference
+    rng = numpy.random.default_rng(n)
+    A = numpy.diag(rng.normal(size=n) * 100.0)
+    for i in range(0, n - 6, 3):
+        A[i, i + 2] = A[i + 2, i] = rng.normal() * 5.0
+    A[n - 1, n - 1] = A[n - 2, n - 2]  # two uncoupled rows with the same diagonal entry
+    from nmrcalc.physics.eigen import KRYLOV_MIN, _checked_copy, _krylov_eigh
+    assert n >= KRYLOV_MIN
+    found = _krylov_eigh(_checked_copy(A.tolist()))
+    assert found is not None  # the checked fast route was accepted, not the fallback
+    values, vectors = found
+    # reference: numpy.linalg.eigvalsh
+    assert numpy.allclose(values, numpy.linalg.eigvalsh(A), rtol=0, atol=1e-11 * numpy.abs(A).max() * n)
+    _check_decomposition(A, values, vectors)

@@ -1,17 +1,23 @@
 """Pure-Python eigensolver for real symmetric matrices (lists of floats, no numpy).
 
-Method: Householder reduction to tridiagonal form followed by the implicit QL
-algorithm with Wilkinson-type shifts, accumulating the orthogonal transforms so
-that eigenvectors come out together with eigenvalues.  Sources: J. H. Wilkinson,
-*The Algebraic Eigenvalue Problem* (1965), ch. 5 and 8; H. Bowdler, R. S. Martin,
-C. Reinsch, J. H. Wilkinson, "The QR and QL algorithms for symmetric matrices",
-Numer. Math. 11, 293-306 (1968); G. H. Golub, C. F. Van Loan, *Matrix
-Computations*, sec. 8.3.
+Two methods, one answer:
 
-For A symmetric, A = Q T Qᵀ with T tridiagonal (Householder), and T = Z Λ Zᵀ
-(QL rotations); the eigenvectors of A are the columns of Q Z.  The work is
-O(n³) and each inner loop is a list comprehension over a whole row, which is
-what keeps it usable in CPython and in Pyodide.
+* small or dense matrices: Householder reduction to tridiagonal form followed by the
+  implicit QL algorithm with the transforms accumulated, so that eigenvectors come out
+  with the eigenvalues (J. H. Wilkinson, *The Algebraic Eigenvalue Problem* (1965),
+  ch. 5 and 8; Bowdler, Martin, Reinsch & Wilkinson, Numer. Math. 11, 293-306 (1968);
+  G. H. Golub, C. F. Van Loan, *Matrix Computations*, sec. 8.3).  For A = Q T Qᵀ and
+  T = Z Λ Zᵀ the eigenvectors of A are the columns of Q Z.  O(n³) work in list
+  comprehensions.
+* from ``KRYLOV_MIN`` rows on: Lanczos tridiagonalization with full reorthogonalization
+  (``lanczos``), eigenvalues of T by QL without vectors and its eigenvectors by inverse
+  iteration (``tridiagonal.eigenpairs``), then y ↦ Q y and a Rayleigh quotient per
+  vector.  Nearly all the work is inner products of whole lists, which ``math.sumprod``
+  does in C; on a 252-row spin block it is about ten times quicker than the first way.
+  The result is accepted only after it is checked: every residual ‖A z − λ z‖∞ and the
+  orthogonality ‖(ZᵀZ − I) u‖ for three random u must stay within ``_TOL`` · n · max|A|;
+  otherwise (or when an inverse iteration does not converge) the first way is used.
+  A shift by the mean diagonal entry keeps T well scaled.
 
 Public function: ``eigh(matrix) -> (values, vectors)`` with ``values`` ascending
 and ``vectors[k]`` the unit eigenvector (a list) belonging to ``values[k]``.
@@ -20,12 +26,16 @@ returns them as columns).
 """
 
 import math
+import random
 from operator import mul
 
 from nmrcalc.errors import InputError
+from nmrcalc.physics.lanczos import dot, multiplier, tridiagonalize
+from nmrcalc.physics.tridiagonal import eigenpairs, implicit_ql
 
-_EPS = 2.220446049250313e-16  # IEEE-754 double machine epsilon
-_MAX_QL_ITERATIONS = 60  # per eigenvalue; 2-3 are typical
+KRYLOV_MIN = 24  # rows from which the Lanczos route is tried
+_TOL = 1e-13  # accepted residual and loss of orthogonality, times n · max|A|
+_SEED = 20261202  # start vectors: the same matrix always gives the same vectors
 
 
 def eigh(matrix: list[list[float]]) -> tuple[list[float], list[list[float]]]:
@@ -39,10 +49,50 @@ def eigh(matrix: list[list[float]]) -> tuple[list[float], list[list[float]]]:
     n = len(a)
     if n == 0:
         return [], []
+    if n >= KRYLOV_MIN:
+        found = _krylov_eigh(a)
+        if found is not None:
+            return found
     d, e, z = _householder_tridiagonal(a)
-    _implicit_ql(d, e, z)
+    implicit_ql(d, e, z)
     order = sorted(range(n), key=d.__getitem__)
     return [d[k] for k in order], [z[k] for k in order]
+
+
+def _krylov_eigh(a: list[list[float]]) -> tuple[list[float], list[list[float]]] | None:
+    """The Lanczos route, checked; None when a check fails.  ``a`` is left unchanged."""
+    n = len(a)
+    size = max(abs(x) for row in a for x in row)
+    if size == 0.0:
+        return None
+    shift = sum(a[i][i] for i in range(n)) / n
+    rows = [list(row) for row in a]
+    for i in range(n):
+        rows[i][i] -= shift
+    rng = random.Random(_SEED)
+    alpha, beta, cols = tridiagonalize(rows, rng)
+    pairs = eigenpairs(alpha, beta, rng)
+    if pairs is None:
+        return None
+    times = multiplier(rows)
+    tol = _TOL * n * size
+    values, vectors = [], []
+    for y in pairs[1]:
+        z = [dot(y, col) for col in cols]
+        az = times(z)
+        lam = dot(z, az)
+        if max(abs(p - lam * q) for p, q in zip(az, z)) > tol:
+            return None
+        values.append(lam + shift)
+        vectors.append(z)
+    by_entry = list(zip(*vectors))
+    for _ in range(3):
+        u = [rng.gauss(0.0, 1.0) for _ in range(n)]
+        s = [dot(z, u) for z in vectors]
+        if math.sqrt(sum((dot(s, c) - x) ** 2 for c, x in zip(by_entry, u))) > _TOL * n * math.sqrt(n):
+            return None
+    order = sorted(range(n), key=values.__getitem__)
+    return [values[k] for k in order], [vectors[k] for k in order]
 
 
 def _checked_copy(matrix: list[list[float]]) -> list[list[float]]:
@@ -114,55 +164,3 @@ def _householder_tridiagonal(a: list[list[float]]) -> tuple[list[float], list[fl
         e[n - 2] = a[n - 1][n - 2]
     d[n - 1] = a[n - 1][n - 1]
     return d, e, z
-
-
-def _implicit_ql(d: list[float], e: list[float], z: list[list[float]]) -> None:
-    """Diagonalize the tridiagonal (d, e) in place, rotating the rows of ``z`` alongside.
-
-    Implicit QL sweeps with a shift from the leading 2×2 block (Bowdler et al.
-    1968); a subdiagonal element is treated as zero once it is below machine
-    epsilon relative to its two diagonal neighbours, which splits the matrix.
-    """
-    n = len(d)
-    for l in range(n):
-        iterations = 0
-        while True:
-            m = l
-            while m < n - 1 and abs(e[m]) > _EPS * (abs(d[m]) + abs(d[m + 1])):
-                m += 1
-            if m == l:
-                break
-            iterations += 1
-            if iterations > _MAX_QL_ITERATIONS:
-                raise ArithmeticError("implicit QL did not converge")
-            g = (d[l + 1] - d[l]) / (2.0 * e[l])
-            r = math.hypot(g, 1.0)
-            g = d[m] - d[l] + e[l] / (g + math.copysign(r, g))
-            s = c = 1.0
-            p = 0.0
-            deflated = False
-            for i in range(m - 1, l - 1, -1):
-                f = s * e[i]
-                b = c * e[i]
-                r = math.hypot(f, g)
-                e[i + 1] = r
-                if r == 0.0:
-                    d[i + 1] -= p
-                    e[m] = 0.0
-                    deflated = True
-                    break
-                s = f / r
-                c = g / r
-                g = d[i + 1] - p
-                r = (d[i] - g) * s + 2.0 * c * b
-                p = s * r
-                d[i + 1] = g + p
-                g = c * r - b
-                zi, zi1 = z[i], z[i + 1]
-                z[i + 1] = [s * u + c * t for u, t in zip(zi, zi1)]
-                z[i] = [c * u - s * t for u, t in zip(zi, zi1)]
-            if deflated:
-                continue
-            d[l] -= p
-            e[l] = g
-            e[m] = 0.0

@@ -78,6 +78,7 @@ from typing import Any
 
 from nmrcalc.errors import InputError
 from nmrcalc.physics.eigen import eigh
+from nmrcalc.physics.lanczos import dot
 
 # Size limits, applied after factoring (per connected component).  A 10-spin-1/2
 # like-nuclide system has a largest block of 252 (about 20 s in pure CPython,
@@ -731,11 +732,11 @@ def _transition_amplitudes(entries: list[tuple[int, int, float, int]], dim_f: in
             ws[tag][ti] += c * vb[si]
             every[ti] += c * vb[si]
         for fa, (Ea, va) in enumerate(zip(E_f, V_f)):
-            amp = sum(map(mul, va, every))
+            amp = dot(va, every)
             if len(sites) == 1 or amp * amp < min_amp2:  # one site, or a line the caller drops
                 yield Ea - Eb, amp, sites[0], fa, ib
                 continue
-            share = {site: sum(map(mul, va, w)) for site, w in ws.items()}
+            share = {site: dot(va, w) for site, w in ws.items()}
             yield Ea - Eb, amp, max(share, key=lambda k: share[k] ** 2), fa, ib
 
 
