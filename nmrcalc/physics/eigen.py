@@ -13,7 +13,8 @@ Two methods, one answer:
   (``lanczos``), eigenvalues of T by QL without vectors and its eigenvectors by inverse
   iteration (``tridiagonal.eigenpairs``), then y ↦ Q y and a Rayleigh quotient per
   vector.  Nearly all the work is inner products of whole lists, which ``math.sumprod``
-  does in C; on a 252-row spin block it is about ten times quicker than the first way.
+  does in C (10 all-coupled spins: 5.0 s of eigensolves on CPython 3.13, where the
+  first way made the whole calculation take about 50 s).
   The result is accepted only after it is checked: every residual ‖A z − λ z‖∞ and the
   orthogonality ‖(ZᵀZ − I) u‖ for three random u must stay within ``_TOL`` · n · max|A|;
   otherwise (or when an inverse iteration does not converge) the first way is used.

@@ -21,10 +21,11 @@ beside its rows so that the Gram–Schmidt update is also a list of inner produc
 
 import math
 import random
+import sys
 from collections.abc import Callable, Sequence
 from operator import itemgetter, mul
 
-_EPS = 2.220446049250313e-16  # IEEE-754 double machine epsilon
+_EPS = sys.float_info.epsilon  # IEEE-754 double: 2.22e-16
 
 Vector = list[float]
 

@@ -22,9 +22,10 @@ last entry is unused and left 0).
 
 import math
 import random
+import sys
 from operator import mul
 
-_EPS = 2.220446049250313e-16  # IEEE-754 double machine epsilon
+_EPS = sys.float_info.epsilon  # IEEE-754 double: 2.22e-16
 _MAX_QL_ITERATIONS = 60  # per eigenvalue; 2-3 are typical
 _MAX_STEPS = 5  # inverse-iteration steps per vector (dstein: MAXITS)
 _EXTRA_STEPS = 2  # steps taken after the growth criterion first holds (dstein: EXTRA)
