@@ -50,6 +50,7 @@ from pathlib import Path
 ROOT = Path(__file__).resolve().parent.parent
 sys.path.insert(0, str(ROOT / "build_scripts"))
 import build_web  # noqa: E402  (sibling script)
+import webkit_driver  # noqa: E402  (sibling script)
 
 RESULTS = ROOT / "bench_results" / "latest.txt"
 CHROMIUM_ARGS = ["--no-sandbox", "--disable-gpu", "--disable-background-networking",
@@ -622,27 +623,9 @@ class _EngineDriver:
     Playwright, WebKit (WebKitGTK's MiniBrowser) through selenium under a private Xvfb display."""
 
     def __init__(self, bench: Bench, engine: str):
-        self.engine, self.page, self.session, self.processes = engine, None, None, []
+        self.engine, self.page, self.session, self.webkit = engine, None, None, None
         if engine == "webkit":
-            import socket
-
-            from selenium import webdriver
-            from selenium.webdriver.webkitgtk.options import Options
-
-            display = ":" + str(next(n for n in range(93, 200) if not Path(f"/tmp/.X{n}-lock").exists()))
-            with socket.socket() as probe:
-                probe.bind(("127.0.0.1", 0))
-                port = probe.getsockname()[1]
-            self.processes.append(subprocess.Popen(["Xvfb", display, "-screen", "0", "1280x1024x24", "-nolisten", "tcp"],
-                                                   stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL))
-            self.processes.append(subprocess.Popen(["WebKitWebDriver", f"--port={port}"], env={**os.environ, "DISPLAY": display},
-                                                   stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL))
-            time.sleep(2)
-            options = Options()
-            options.binary_location = str(sorted(Path("/usr/lib").glob("*/webkit2gtk-4.1/MiniBrowser"))[0])
-            options.add_argument("--automation")
-            self.options, self.url = options, f"http://127.0.0.1:{port}"
-            self._new = lambda: webdriver.Remote(command_executor=self.url, options=self.options)
+            self.webkit = webkit_driver.WebKitDriver().start()
         else:
             bench.browser()  # starts Playwright
             if engine == "firefox":
@@ -656,7 +639,7 @@ class _EngineDriver:
     def open(self, url: str):
         self.close_page()
         if self.engine == "webkit":
-            self.session = self._new()
+            self.session = self.webkit.new_session()
             self.session.get(url)
         else:
             self.context = self.browser.new_context()
@@ -678,9 +661,8 @@ class _EngineDriver:
 
     def close(self):
         self.close_page()
-        for process in self.processes:
-            process.terminate()
-            process.wait(timeout=10)
+        if self.webkit is not None:
+            self.webkit.stop()
 
 
 def _engine_time(driver: _EngineDriver, url: str, expression: str, timeout_s: float = 180) -> float:

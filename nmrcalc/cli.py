@@ -60,6 +60,9 @@ def _add_param(parser: argparse.ArgumentParser, p: Param) -> None:
         order += ",…" if p.cli_sep != "," else ""
         meta = "ISOTOPE=VALUE" if p.kind == "map" else order.upper().replace("_", "-")
         parser.add_argument(*names, dest=p.key, action="append", metavar=meta, help=_help(p) + " (repeat the flag)")
+    elif p.kind == "object":
+        meta = ",".join(p.cli_order).upper().replace("_", "-")
+        parser.add_argument(*names, dest=p.key, metavar=meta, help=_help(p) + " (parts in this order, or KEY=VALUE)")
     elif p.kind == "integer":
         parser.add_argument(*names, dest=p.key, type=int, help=_help(p))
     elif p.kind == "number":
@@ -112,7 +115,7 @@ def _scalar(p: Param, text: str) -> object:
 
 
 def _item(p: Param, text: str) -> dict:
-    """One ``--group``/``--spin``/… text → an item object, by the declared ``cli_order``."""
+    """One ``--group``/``--spin``/``--residual``… text → an object, by the declared ``cli_order``."""
     items = {q.key: q for q in p.items}
     out: dict = {}
     for slot, part in enumerate(text.split(p.cli_sep)):
@@ -164,13 +167,15 @@ def request_from_args(op: Op, args: argparse.Namespace) -> dict:
         if p.kind == "objects":
             texts = [t for text in value for t in (text.split(",") if p.cli_sep != "," else [text])]
             value = [_item(p, text) for text in texts if text.strip()]
+        elif p.kind == "object":
+            value = _item(p, value)
         elif p.kind == "map":
             pairs = [text.split("=", 1) for text in value]
             bad = [text for text, pair in zip(value, pairs) if len(pair) != 2]
             if bad:
                 raise ValueError(f"{p.key}: '{bad[0]}' is not ISOTOPE=VALUE")
             value = {k.strip(): v.strip() for k, v in pairs}
-        elif p.kind in ("quantities", "texts"):
+        elif p.kind in ("quantities", "numbers", "texts"):
             value = [v.strip() for v in value.split(",") if v.strip()]
         elif p.file:
             value = _read_file(p.key, value)

@@ -77,3 +77,29 @@ def test_panel_fields_name_declared_parameters():
     names = [m for js in (ROOT / "web" / "js").rglob("*.js")
              for m in re.findall(r'param:\s*"([\w.]+)"', js.read_text())]
     assert all(find(name) for name in names), [n for n in names if not find(n)]
+
+
+def test_one_input_for_a_one_of_group_names_it():
+    """A page field written {either: "op.key"} (the magnet: MHz or T) takes its label, hint and
+    request keys from the op's one_of group in the declaration: every such name must be in one."""
+    from nmrcalc.api.describe_ops import declarations as decl
+
+    def group(path: str) -> tuple[str, ...] | None:
+        op, key = path.split(".")
+        groups = decl()[op].one_of if op in decl() else ()
+        return next((g for g in groups if key in g), None)
+
+    names = [m for js in (ROOT / "web" / "js").rglob("*.js")
+             for m in re.findall(r'either:\s*"([\w.]+)"', js.read_text())]
+    assert len(names) >= 6
+    assert all(group(name) for name in names), [n for n in names if not group(n)]
+
+
+def test_panel_fields_for_request_keys_are_declared_not_hand_labelled():
+    """A field that shows a request key's errors (keys: [...]) gets its label from a declaration
+    (param or either): a label written by hand beside the key would drift from the op."""
+    blocks = [(js.name, b) for js in (ROOT / "web" / "js" / "panels").glob("*.js")
+              for b in re.findall(r"\{[^{}]*\bid:[^{}]*\}", js.read_text())]
+    hand = [(name, b[:80]) for name, b in blocks
+            if re.search(r"\bkeys:\s*\[", b) and not re.search(r"\b(param|either):", b)]
+    assert not hand, hand

@@ -473,6 +473,38 @@ def test_misspelled_keys_are_refused_with_their_path(op):
                 assert r["error"]["code"] == "unknown_key" and r["error"]["field"] == f"{p.key}.0.{typo}", (typo, r)
 
 
+def single_object_params(op):
+    return [p for p in DECLARATIONS[op].params if p.kind == "object" and isinstance(TEMPLATES[op].get(p.key), dict)]
+
+
+def test_some_op_declares_a_single_object():
+    assert any(single_object_params(op) for op in DECLARATIONS)
+
+
+@pytest.mark.parametrize("op", sorted(op for op in DECLARATIONS if single_object_params(op)))
+def test_keys_of_a_single_object_are_strict(op):
+    base = template(op)
+    for p in single_object_params(op):
+        inner = {q.key for q in p.items}
+        for key in list(base[p.key]):
+            for typo in misspellings(key):
+                if typo in inner:
+                    continue
+                r = call({**base, p.key: {**base[p.key], typo: base[p.key][key]}})
+                assert r["error"]["code"] == "unknown_key" and r["error"]["field"] == f"{p.key}.{typo}", (typo, r)
+        for key in inner - {q.key for q in DECLARATIONS[op].params}:
+            r = call({**base, key: base[p.key].get(key, 1)})
+            assert r["error"]["code"] == "unknown_key" and r["error"]["field"] == key, r
+            assert f"the object '{p.key}'" in r["error"]["message"], r
+        r = call({**base, p.key: {**base[p.key], "positions": 3}})
+        if "positions" in {q.key for q in DECLARATIONS[op].params}:
+            assert r["error"]["field"] == f"{p.key}.positions" and "top level" in r["error"]["message"], r
+        for q in p.items:
+            if q.required:
+                r = call({**base, p.key: {k: v for k, v in base[p.key].items() if k != q.key}})
+                assert r["error"] == {**r["error"], "code": "missing_field", "field": f"{p.key}.{q.key}"}, r
+
+
 @pytest.mark.parametrize("op", sorted(DECLARATIONS))
 def test_misplaced_keys_are_refused_and_their_home_named(op):
     base = template(op)

@@ -49,7 +49,7 @@ def _beyond(p):
         return "x" * (p.max_chars + 1), str(p.max_chars)
     if p.kind == "objects":
         return [{}] * (p.max_items + 1), str(p.max_items)
-    if p.kind in ("quantities", "texts"):
+    if p.kind in ("quantities", "numbers", "texts"):
         return ["1"] * (p.max_items + 1), str(p.max_items)
     if p.kind == "integer" and p.bounds[1] is not None:
         return int(p.bounds[1]) + 1, f"{p.bounds[1]:g}"

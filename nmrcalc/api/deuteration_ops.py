@@ -15,6 +15,7 @@ from nmrcalc.units import split_list
 MAX_POSITIONS = 64
 DEFAULT_ERROR_SHARE = 0.01  # of the largest integral, when no integral_error is given
 OBSERVED = ("once_per_molecule", "site_1H")
+RESIDUAL_KEYS = ("integral", "standard_integral", "standard_nuclei", "standard_per_analyte", "relative_error")
 MODEL = ("Binomial (random) labelling: share of k D = C(n,k) p^k (1-p)^(n-k) (Feller, Probability Theory, "
          "vol. 1, ch. VI); χ² test at 5 %. Integrals must be quantitative (full relaxation; on 13C also equal NOE).")
 
@@ -59,14 +60,8 @@ def _read(req: dict) -> dict:
         out["sigma"] = None if err in (None, "") else _number(err, "integral_error", positive=True)
     res = req.get("residual")
     if res is not None:
-        if not isinstance(res, dict):
-            raise InputError("residual is an object: integral, standard_integral, standard_nuclei, "
-                             "standard_per_analyte.", "residual")
-        r = {key: _number(res.get(key), f"residual.{key}", positive=key != "integral")
-             for key in ("integral", "standard_integral", "standard_nuclei", "standard_per_analyte")}
+        r = {key: _number(res.get(key), f"residual.{key}", positive=key != "integral") for key in RESIDUAL_KEYS[:4]}
         r["relative_error"] = quantity(res, "relative_error", "percent", default=0.0, prefix="residual.") / 100
-        if r["relative_error"] < 0:
-            raise InputError("relative_error must not be negative.", "residual.relative_error")
         out["residual"] = r
     if out["integrals"] is None and out["residual"] is None:
         raise InputError("Give the isotopologue 'integrals' of the site, or its 'residual' 1H integral "
@@ -120,15 +115,28 @@ DECLARED = {"deuteration": Op(
     limits=f"{MAX_POSITIONS} positions", params=(
         Param("positions", "integer", required=True, bounds=(1, MAX_POSITIONS), label="H/D positions at the site",
               example=3, help="the H/D positions of the site (3 for a methyl)"),
-        Param("integrals", "quantities", unit="percent", max_items=MAX_POSITIONS + 1, label="Isotopologue integrals",
-              example=[1, 6, 27, 66], help="integrals of the isotopologue signals, index = number of D atoms"),
+        Param("integrals", "numbers", bounds=(0, None), max_items=MAX_POSITIONS + 1,
+              label="Isotopologue integrals, k = 0, 1, 2 …", example=[1, 6, 27, 66],
+              help="integrals of the isotopologue signals on any one scale, index k = number of D atoms"),
         Param("integral_error", "number", bounds=(0, None), label="Error of each integral", example=0.5,
               help="absolute error of each integral (default 1 % of the largest)"),
         Param("observed_on", "choice", choices=OBSERVED, default="once_per_molecule", label="Integrals measured on",
               help="once_per_molecule (e.g. 13C) or site_1H (the site's own protons: k = 0 … n-1)"),
-        Param("residual", "value", label="Residual 1H signal", cli="-",
+        Param("residual", "object", label="Residual 1H signal", cli_order=RESIDUAL_KEYS,
               example={"integral": 0.05, "standard_integral": 1, "standard_nuclei": 3, "standard_per_analyte": 1},
-              help="{integral, standard_integral, standard_nuclei, standard_per_analyte, relative_error}"),
+              help="the site's residual 1H integral against an internal standard", items=(
+                  Param("integral", "number", required=True, bounds=(0, None), example=0.05,
+                        label="Residual 1H integral of the site", help="the integral of the site's remaining 1H"),
+                  Param("standard_integral", "number", required=True, bounds=(0, None), example=1,
+                        label="Standard's integral", help="the integral of the standard's signal, same scale"),
+                  Param("standard_nuclei", "number", required=True, bounds=(0, None), example=3,
+                        label="Nuclei behind the standard's signal", help="e.g. 3 for a methyl singlet"),
+                  Param("standard_per_analyte", "number", required=True, bounds=(0, None), example=1,
+                        label="Moles of standard per mole of sample", help="the molar ratio weighed in"),
+                  Param("relative_error", "quantity", unit="percent", default=0, bounds=(0, None),
+                        label="Relative error of each of the two integrals",
+                        help="the relative error of each integral (default none)"),
+              )),
     ))}
 
 OPS = {"deuteration": op_deuteration}

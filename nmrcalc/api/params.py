@@ -26,6 +26,7 @@ Kinds (``Param.kind``):
 ``quantity``   a number in ``unit``'s default unit, or text with a unit
                (``units.parse_quantity``; ``unit`` is a kind of quantity there)
 ``quantities`` a list of such quantities (or one text, comma separated)
+``numbers``    a list of plain numbers within ``bounds`` (or one text, comma separated)
 ``nuclide``    a nuclide name (``13C``, ``C-13``, ``carbon-13``, ``D``)
 ``partner``    a nuclide or an element (``2H``, ``B``, ``Pt``)
 ``spin``       a nuclear spin: ``1/2``, ``"3/2"``, ``1``
@@ -36,6 +37,7 @@ Kinds (``Param.kind``):
 ``text``       a string of at most ``max_chars`` characters
 ``texts``      a list of strings
 ``map``        an object: isotope → quantity of ``unit`` (e.g. percent)
+``object``     one object whose keys are the declared ``items``
 ``objects``    a list of objects whose keys are the declared ``items``
 ``pair``       a list of two spin references (0-based numbers or labels)
 ``value``      any JSON value the op reads itself (position lists and the like)
@@ -53,8 +55,8 @@ from typing import Any
 
 from nmrcalc.errors import InputError
 
-KINDS = ("quantity", "quantities", "nuclide", "partner", "spin", "integer", "number", "flag", "choice", "text",
-         "texts", "map", "objects", "pair", "value")
+KINDS = ("quantity", "quantities", "numbers", "nuclide", "partner", "spin", "integer", "number", "flag", "choice", "text",
+         "texts", "map", "object", "objects", "pair", "value")
 MAX_LIST_ITEMS = 4096
 MAX_TEXT_CHARS = 1_000_000
 
@@ -102,7 +104,7 @@ class Param:
             out["bounds"] = list(self.bounds)
         if self.items:
             out["items"] = [p.describe() for p in self.items]
-        if self.kind in ("objects", "quantities", "texts"):
+        if self.kind in ("objects", "quantities", "numbers", "texts"):
             out["max_items"] = self.max_items
         if self.kind == "text":
             out["max_chars"] = self.max_chars
@@ -125,6 +127,8 @@ class Op:
 
     def describe(self) -> dict:
         out = {"op": self.name, "summary": self.summary, "params": [p.describe() for p in self.params]}
+        if self.one_of:
+            out["one_of"] = [_alternatives(group) for group in self.one_of]
         if self.limits:
             out["limits"] = self.limits
         return out
@@ -136,6 +140,20 @@ def _unit_name(kind: str | None) -> str | None:
     from nmrcalc.units import default_unit
     return default_unit(kind)
 
+
+def _alternatives(group: tuple[str, ...]) -> dict:
+    """A ``one_of`` group for ``describe``: its keys, and the one label and help a front end shows
+    for a single input that fills whichever key its unit names (the magnet: MHz or T)."""
+    label, help_ = ALTERNATIVES.get(group, (" or ".join(group), ""))
+    return {"keys": list(group), "label": label, "help": help_}
+
+
+# ``one_of`` groups that a front end reads as one input (its unit says which key it fills).
+ALTERNATIVES = {
+    ("spectrometer", "field"): ("Magnet", "the magnet by its 1H frequency (MHz) or its field (T, kG, G)"),
+    ("ppm", "Hz"): ("Value", "a shift in ppm or an offset from 0 ppm in Hz"),
+    ("wavelength", "wavenumber"): ("Photon, optional", "a UV/visible wavelength or an IR wavenumber to compare with"),
+}
 
 # The magnet, shared by every op that needs one.
 MAGNET = (
@@ -176,6 +194,8 @@ def _with_defaults(params: tuple[Param, ...], obj: dict) -> dict:
             out[p.key] = p.default
         elif p.items and isinstance(out.get(p.key), list):
             out[p.key] = [_with_defaults(p.items, item) if isinstance(item, dict) else item for item in out[p.key]]
+        elif p.items and isinstance(out.get(p.key), dict):
+            out[p.key] = _with_defaults(p.items, out[p.key])
     return out
 
 
@@ -189,9 +209,16 @@ def _all_keys(params: tuple[Param, ...], where: str = "") -> dict[str, str]:
     for p in params:
         out.setdefault(p.key, where)
         if p.items:
-            for k, w in _all_keys(p.items, f"{p.key}[*]").items():
+            for k, w in _all_keys(p.items, p.key if p.kind == "object" else f"{p.key}[*]").items():
                 out.setdefault(k, w)
     return out
+
+
+def _home(level: str) -> str:
+    """Where a key belongs, in words: '' is the top level, 'x[*]' each item of the list x, 'x' the object x."""
+    if level == "":
+        return "the top level of the request"
+    return f"each item of '{level[:-3]}'" if level.endswith("[*]") else f"the object '{level}'"
 
 
 def _check_object(
@@ -224,7 +251,7 @@ def _unknown_message(key: str, declared: dict, everywhere: dict[str, str], prefi
     level = prefix.rstrip(".")
     belongs = everywhere.get(key)
     if belongs is not None:
-        home = "at the top level of the request" if belongs == "" else f"inside each item of '{belongs[:-3]}'"
+        home = "at " + _home(belongs) if belongs == "" else "inside " + _home(belongs)
         return f"{prefix}{shown}: '{shown}' is not a key of {where}; it belongs {home}."
     from difflib import get_close_matches
     close = get_close_matches(key[:40].lower(), [k.lower() for k in declared], n=1, cutoff=0.75)
@@ -233,9 +260,7 @@ def _unknown_message(key: str, declared: dict, everywhere: dict[str, str], prefi
         return f"{prefix}{shown}: unknown key — did you mean '{match}'?"
     close = get_close_matches(key[:40], list(everywhere), n=1, cutoff=0.75)
     if close:
-        level_of = everywhere[close[0]]
-        home = "the top level of the request" if level_of == "" else f"each item of '{level_of[:-3]}'"
-        return f"{prefix}{shown}: unknown key — did you mean '{close[0]}' (a key of {home})?"
+        return f"{prefix}{shown}: unknown key — did you mean '{close[0]}' (a key of {_home(everywhere[close[0]])})?"
     known = ", ".join(sorted(declared)) or "none"
     return f"{prefix}{shown}: unknown key for {'this item' if level else 'this op'}; the keys are: {known}."
 
@@ -244,12 +269,15 @@ def _check_value(p: Param, value: Any, where: str, everywhere: dict[str, str]) -
     kind = p.kind
     if kind == "quantity":
         from nmrcalc.api.fields import bounded
-        bounded(value, p.quantity_kind, where)
+        _in_bounds(p, bounded(value, p.quantity_kind, where), where)
     elif kind == "quantities":
         from nmrcalc.api.fields import bounded
         items = _split(value, where, p)
         for i, item in enumerate(items):
             bounded(item, p.quantity_kind, f"{where}.{i}")
+    elif kind == "numbers":
+        for i, item in enumerate(_split(value, where, p)):
+            _check_value(Param(p.key, "number", bounds=p.bounds), _plain_number(item), f"{where}.{i}", everywhere)
     elif kind in ("nuclide", "partner", "text", "spin"):
         if kind == "spin" and isinstance(value, (int, float)) and not isinstance(value, bool):
             return
@@ -289,6 +317,11 @@ def _check_value(p: Param, value: Any, where: str, everywhere: dict[str, str]) -
             if len(str(key)) > 40:
                 raise InputError(f"{where}: a key is too long.", where)
             bounded(item, p.quantity_kind, f"{where}.{key}")
+    elif kind == "object":
+        if not isinstance(value, dict):
+            keys = ", ".join(q.key for q in p.items)
+            raise InputError(f"{where}: give an object with the keys {keys}.", where)
+        _check_object(p.items, value, f"{where}.", set(), everywhere)
     elif kind == "objects":
         if not isinstance(value, list):
             raise InputError(f"{where}: give a list of objects.", where)
@@ -301,6 +334,16 @@ def _check_value(p: Param, value: Any, where: str, everywhere: dict[str, str]) -
         if not isinstance(value, list) or len(value) != 2 or not all(
                 isinstance(x, (int, str)) and not isinstance(x, bool) for x in value):
             raise InputError(f"{where}: give two spins, e.g. [0, 1] or [\"A\", \"B\"].", where)
+
+
+def _plain_number(item: Any) -> Any:
+    """A number typed as text ('27.9', '−0.5') read as one; anything else unchanged (refused by the caller)."""
+    if isinstance(item, str):
+        try:
+            return float(item.strip().replace("\u2212", "-"))
+        except ValueError:
+            return item
+    return item
 
 
 def _split(value: Any, where: str, p: Param) -> list:

@@ -14,7 +14,9 @@ links, |Δν| >= 20 |J| and J²/|Δν| <= ``WEAK_LINK_TOL_HZ`` in Hz at the chos
 field, and whose second-order mixing bound is also within that tolerance, are
 solved apart with those links to first order, ``method`` "weak-link" and
 ``error_Hz`` the bound of ``spin_system.clusters`` on how far a line is from the
-exact one; a system too large to join stays split with its larger ``error_Hz``
+exact one, and ``partner_field`` true for a cluster re-solved in every field its
+partner's eigenstates give it (its own level mixing then exact); a system too large
+to join stays split with its larger ``error_Hz``
 and a warning saying so; ``"exact": true`` solves every link exactly) and ``first_order_threshold``
 (the Δν/J used by ``checks``).
 
@@ -225,7 +227,7 @@ def _block(spins, labels, couplings, observe, field_T, proton_MHz, req, warnings
     found_clusters = clusters(sites, couplings, observe.symbol, tol,
                               factor_equivalence=flag(req, "factor_equivalence", True))
     groups = [{"spins": c["spins"], "labels": [labels[k] for k in c["spins"]], "method": c["method"],
-               "error_Hz": c["error_Hz"]} for c in found_clusters]
+               "error_Hz": c["error_Hz"], "partner_field": c["partner_field"]} for c in found_clusters]
     for c in found_clusters:
         if tol is not None and c["mixing_Hz"] > tol:
             names = ", ".join(labels[k] for k in c["spins"])

@@ -71,7 +71,7 @@ import functools
 import itertools
 import math
 from collections.abc import Callable, Iterable, Iterator
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from fractions import Fraction
 from operator import itemgetter, mul
 from typing import Any
@@ -358,34 +358,42 @@ def _mixing_bound(sites: list[Site], group: list[int], strong: Links, links: lis
 
 
 def _weak_split(sites: list[Site], J: Links, observe: str, tol_Hz: float | None,
-                factor_equivalence: bool) -> tuple[Links, Links, dict[int, float]]:
+                factor_equivalence: bool) -> tuple[Links, Links, dict[int, float], frozenset[int]]:
     """``_joined_split`` (its docstring), remembered for the last few systems (and size limits):
     ``clusters`` and ``transitions`` of one request ask for the same split."""
-    strong, weak, mixing = _joined_split(tuple(sites), tuple(sorted(J.items())), observe, tol_Hz, factor_equivalence,
-                                         (MAX_BLOCK_DIM, MAX_TOTAL_DIM))
-    return dict(strong), dict(weak), dict(mixing)
+    strong, weak, mixing, resolved = _joined_split(tuple(sites), tuple(sorted(J.items())), observe, tol_Hz,
+                                                   factor_equivalence, (MAX_BLOCK_DIM, MAX_TOTAL_DIM))
+    return dict(strong), dict(weak), dict(mixing), resolved
 
 
 @functools.lru_cache(maxsize=4)
 def _joined_split(site_tuple: tuple[Site, ...], J_items: tuple[tuple[tuple[int, int], float], ...], observe: str,
                   tol_Hz: float | None, factor_equivalence: bool,
-                  limits: tuple[int, int]) -> tuple[Links, Links, dict[int, float]]:
-    """(strong, weak, mixing error per site's cluster): ``_split_links``, then the second-order check.
+                  limits: tuple[int, int]) -> tuple[Links, Links, dict[int, float], frozenset[int]]:
+    """(strong, weak, mixing error per site's cluster, sites of the clusters re-solved in their
+    partner's field): ``_split_links``, then the second-order check.
 
     A line of cluster A is a difference of two of A's levels in one eigenstate of each
     partner B, so the mixing (``_mixing_bound``) moves it by at most 2 e_A + Σ_B 2 e_B
     (B's levels shift by up to e_B in A's field, differently in A's two states).  A
-    cluster whose bound exceeds ``tol_Hz`` is joined to its partners (its links solved
-    exactly) when the joined cluster fits MAX_BLOCK_DIM / MAX_TOTAL_DIM; otherwise it
-    stays split and its bound is reported.  Repeated until nothing changes.  When the split
-    clusters themselves exceed the size limits the bound is not worked out (math.inf).
+    cluster with one partner cluster and a mixing worth a tenth of ``tol_Hz`` is instead
+    re-solved in each field its partner's eigenstates give it (``transitions``), the largest
+    first, no two re-solved clusters linked to each other: its own mixing is then exact and
+    drops out of its own bound (2 e_A = 0).  Its partner's bound keeps 2 e_A: the partner's
+    lines take A's level changes from the re-solved fields, but terms that change A's and
+    B's states at once are neglected there, and on random systems (tests/test_spin_clusters.py)
+    they exceed B's own part.  A cluster whose bound still exceeds
+    ``tol_Hz`` is joined to its partners (its links solved exactly) when the joined
+    cluster fits MAX_BLOCK_DIM / MAX_TOTAL_DIM; otherwise it stays split and its bound is
+    reported.  Repeated until nothing changes.  When the split clusters themselves exceed
+    the size limits the bound is not worked out (math.inf).
     """
     sites, solve = list(site_tuple), _solver(None)
     strong, weak = _split_links(sites, dict(J_items), observe, tol_Hz)
     while weak:
         largest, total_dim, _ = _size_report(_plan(sites, strong, observe, factor_equivalence))
         if largest is None or largest > limits[0] or total_dim > limits[1]:
-            return strong, weak, dict.fromkeys(range(len(sites)), math.inf)  # too large: not estimated
+            return strong, weak, dict.fromkeys(range(len(sites)), math.inf), frozenset()  # too large
         groups = _components(len(sites), strong)
         root = {s: k for k, group in enumerate(groups) for s in group}
         own = [0.0] * len(groups)
@@ -395,7 +403,12 @@ def _joined_split(site_tuple: tuple[Site, ...], J_items: tuple[tuple[tuple[int, 
             partners[k] = {root[b] for _, b, _ in links}
             if links:
                 own[k] = _mixing_bound(sites, group, strong, links, solve)
-        mixing = [2 * own[k] + sum(2 * own[b] for b in partners[k]) for k in range(len(groups))]
+        resolved: set[int] = set()
+        for k in sorted(range(len(groups)), key=lambda k: -own[k]):
+            if len(partners[k]) == 1 and 20 * own[k] > (tol_Hz or 0.0) and not partners[k] & resolved:
+                resolved.add(k)
+        mixing = [(0.0 if k in resolved else 2 * own[k]) + sum(2 * own[b] for b in partners[k])
+                  for k in range(len(groups))]
         joined = False
         for k in sorted(range(len(groups)), key=lambda k: -mixing[k]):
             if tol_Hz is None or mixing[k] <= tol_Hz:
@@ -410,8 +423,9 @@ def _joined_split(site_tuple: tuple[Site, ...], J_items: tuple[tuple[tuple[int, 
                 joined = True
                 break
         if not joined:
-            return strong, weak, {s: mixing[root[s]] for s in root}
-    return strong, weak, dict.fromkeys(range(len(sites)), 0.0)
+            return (strong, weak, {s: mixing[root[s]] for s in root},
+                    frozenset(s for k in resolved for s in groups[k]))
+    return strong, weak, dict.fromkeys(range(len(sites)), 0.0), frozenset()
 
 
 def clusters(sites: Any, couplings: Any, observe: str, weak_link_tol_Hz: float | None = None, *,
@@ -449,7 +463,7 @@ def clusters(sites: Any, couplings: Any, observe: str, weak_link_tol_Hz: float |
     _checked_observe(sites, observe)
     if weak_link_tol_Hz is not None:
         weak_link_tol_Hz = _checked_real(weak_link_tol_Hz, "weak_link_tol_Hz")
-    strong, weak, mixing = _weak_split(sites, J, observe, weak_link_tol_Hz, factor_equivalence)
+    strong, weak, mixing, resolved = _weak_split(sites, J, observe, weak_link_tol_Hz, factor_equivalence)
     out = []
     for group in _components(len(sites), strong):
         links = [(i, j, J_ij) for (i, j), J_ij in sorted(weak.items()) if i in group or j in group]
@@ -459,7 +473,8 @@ def clusters(sites: Any, couplings: Any, observe: str, weak_link_tol_Hz: float |
                                              default=1.0)
         mix = mixing[group[0]] if links else 0.0
         out.append({"spins": group, "method": "weak-link" if links else "exact", "error_Hz": flip_flop + mix,
-                    "flip_flop_Hz": flip_flop, "mixing_Hz": mix, "links": links})
+                    "flip_flop_Hz": flip_flop, "mixing_Hz": mix, "links": links,
+                    "partner_field": group[0] in resolved})
     return out
 
 
@@ -643,13 +658,14 @@ def _composition_lines(units: list[_Unit], spins: list[tuple[int, int]], J_units
                        observe: str, weight: float, solve: Solver, emit: Callable[..., None],
                        tick: Callable[[int], None], linked: dict[int, int] | None = None,
                        record: Callable[[float, tuple[float, ...]], None] | None = None,
-                       min_raw: float = 0.0) -> None:
-    """Diagonalize every block of one composition and emit (freq_Hz, raw intensity, site, Δ<I_z>).
+                       min_raw: float = 0.0, keep: dict | None = None) -> None:
+    """Diagonalize every block of one composition and emit (freq_Hz, raw intensity, site, z_i, z_f).
 
     ``linked`` maps every weakly linked site (of all clusters) to a slot; then each line also carries
-    the change of <Σ I_z> of every linked site (final − initial eigenstate) and
+    <Σ I_z> of every linked site in its initial and final eigenstates (z_i, z_f; else empty) and
     ``record(weight, z)`` receives every eigenstate's <Σ I_z> per slot.  Lines whose raw intensity
-    is below ``min_raw`` are dropped by ``emit``, so their site is not worked out.
+    is below ``min_raw`` are dropped by ``emit``, so their site is not worked out.  ``keep``
+    receives every block's (states, index, (E, V)) under its key (per-nuclide total 2M).
     """
     nuclei = list(dict.fromkeys(units[k].nucleus for k, _ in spins))
     nuc_of = [nuclei.index(units[k].nucleus) for k, _ in spins]
@@ -676,6 +692,8 @@ def _composition_lines(units: list[_Unit], spins: list[tuple[int, int]], J_units
             for z in zs:
                 record(weight, z)
         tick(len(states) ** 3)
+    if keep is not None:
+        keep.update(solved)
     obs_spins = [a for a in range(len(spins)) if nuc_of[a] == obs]
     for key, (states, _, (E_i, V_i)) in solved.items():
         target = list(key)
@@ -693,8 +711,7 @@ def _composition_lines(units: list[_Unit], spins: list[tuple[int, int]], J_units
         z_i, z_f = expect[key], expect[tuple(target)]
         for freq, amp, site, fa, ib in _transition_amplitudes(entries, len(f_states), E_i, V_i, E_f, V_f,
                                                                min_raw / (0.25 * weight)):
-            d = () if z_i is None or z_f is None else tuple(x - y for x, y in zip(z_f[fa], z_i[ib]))
-            emit(freq, 0.25 * weight * amp * amp, site, d)
+            emit(freq, 0.25 * weight * amp * amp, site, () if z_i is None else z_i[ib], () if z_f is None else z_f[fa])
 
 
 def _transition_amplitudes(entries: list[tuple[int, int, float, int]], dim_f: int, E_i: Any, V_i: Any, E_f: Any,
@@ -774,6 +791,84 @@ def _partner_shifts(component: set[int], other: set[int], states: list[tuple[flo
     means = [(a, sum(map(mul, column, weights)) / total) for a, column in columns]
     spans = [(a, max(column) - min(column)) for a, column in columns]
     return columns, means, spans, weights
+
+
+class _PartnerField:
+    """A cluster A re-solved in every field its one partner cluster B gives it (``_joined_split``).
+
+    The weak links' I_za I_zb part with B's <I_zb> in each of B's eigenstates β is a shift
+    g_a(β) = Σ_b J_ab <I_zb>_β of each linked site a of A; A is diagonalized with those
+    shifts (exact in A, so A's own level mixing is included), B's states joined in cells
+    of g as in ``_partner_shifts``.  A's lines in cell c carry c's weight.  A line of B from
+    β to β′ moves A from its eigenstates in field g(β) to those in g(β′): it is split into
+    E_A(α′; g(β′)) − E_A(α; g(β)) with weight |<α′(g(β′))|α(g(β))>|² / dim A (``spread``).
+    Neglected: B's eigenstates mixed by A's field (bounded by ``_mixing_bound`` of B) and
+    the flip-flop terms.
+    """
+
+    def __init__(self, component: list[int], units: list[_Unit], partner: set[int],
+                 states: list[tuple[float, tuple[float, ...]]], weak: Links, slot: dict[int, int], sites: list[Site],
+                 tol_Hz: float, full_dim: int) -> None:
+        own = set(component)
+        self.partner = partner
+        self.links = [(a, slot[b], J_ab) for (i, j), J_ab in weak.items()
+                      for a, b in ((i, j), (j, i)) if a in own and b in partner]
+        self.own_sites = sorted({a for a, _, _ in self.links})
+        bound = sum(2 * sites[a].count * float(sites[a].spin) for a in self.own_sites)
+        self.cell = max(tol_Hz, 1e-9) / bound
+        self.tol_Hz, self.full_dim = max(tol_Hz, 1e-9), full_dim
+        sums: dict[tuple[int, ...], list] = {}
+        for p, z in states:
+            g = self.field(z)
+            acc = sums.setdefault(self.key(z), [[0.0] * len(g), 0.0])
+            acc[0] = [u + p * x for u, x in zip(acc[0], g)]
+            acc[1] += p
+        self.weights = {k: w for k, (_, w) in sums.items() if w > 0.0}
+        self.units = {k: [replace(u, offset_Hz=u.offset_Hz + sums[k][0][self.own_sites.index(u.site)] / w)
+                          if u.site in self.own_sites else u for u in units] for k, w in self.weights.items()}
+        self.blocks: dict[tuple[int, ...], list[tuple[int, dict]]] = {}
+        self._spreads: dict[tuple, list[tuple[float, float]]] = {}
+
+    def field(self, z: tuple[float, ...]) -> list[float]:
+        g = [0.0] * len(self.own_sites)
+        for a, b, J_ab in self.links:
+            g[self.own_sites.index(a)] += J_ab * z[b]
+        return g
+
+    def key(self, z: tuple[float, ...]) -> tuple[int, ...]:
+        return tuple(round(x / self.cell) for x in self.field(z))
+
+    def spread(self, z_i: tuple[float, ...], z_f: tuple[float, ...]) -> list[tuple[float, float]]:
+        """(shift, weight) of a line of B whose eigenstates have <I_z> z_i → z_f: A's energy change."""
+        k_i, k_f = self.key(z_i), self.key(z_f)
+        if k_i == k_f:
+            return [(0.0, 1.0)]
+        if (k_i, k_f) not in self._spreads:
+            acc: dict[int, list[float]] = {}
+            for (weight, solved_i), (_, solved_f) in zip(self.blocks[k_i], self.blocks[k_f]):
+                w = weight / self.full_dim
+                for block, (_, _, (E_i, V_i)) in solved_i.items():
+                    E_f, V_f = solved_f[block][2]
+                    for a, b, overlap in _overlaps(V_f, V_i):
+                        shift = float(E_f[a] - E_i[b])
+                        cell = acc.setdefault(round(shift / self.tol_Hz), [0.0, 0.0])
+                        cell[0] += w * overlap * overlap * shift
+                        cell[1] += w * overlap * overlap
+            self._spreads[(k_i, k_f)] = [(sx / sw, sw) for sx, sw in acc.values() if sw > NEGLIGIBLE_INTENSITY]
+        return self._spreads[(k_i, k_f)]
+
+
+def _overlaps(V_f: Any, V_i: Any) -> Iterator[tuple[int, int, float]]:
+    """(a, b, <f_a|i_b>) for the eigenvectors of one block in two fields (rows, or numpy columns)."""
+    if hasattr(V_f, "shape"):
+        O = V_f.T @ V_i
+        for a, row in enumerate(O.tolist()):
+            for b, x in enumerate(row):
+                yield a, b, x
+        return
+    for a, va in enumerate(V_f):
+        for b, vb in enumerate(V_i):
+            yield a, b, dot(va, vb)
 
 
 def _solver(use_numpy: bool | None) -> Solver:
@@ -863,7 +958,7 @@ def transitions(sites: Any, couplings: Any, observe: str, *, use_numpy: bool | N
     solve = _solver(use_numpy)
     if weak_link_tol_Hz is not None:
         weak_link_tol_Hz = _checked_real(weak_link_tol_Hz, "weak_link_tol_Hz")
-    J, weak, _ = _weak_split(sites, J, observe, weak_link_tol_Hz, factor_equivalence)
+    J, weak, _, resolved = _weak_split(sites, J, observe, weak_link_tol_Hz, factor_equivalence)
 
     plan = _plan(sites, J, observe, factor_equivalence)
     largest, total_dim, work = _size_report(plan)
@@ -893,8 +988,10 @@ def transitions(sites: Any, couplings: Any, observe: str, *, use_numpy: bool | N
     raw: list[tuple[float, float, int]] = []
     linked_sites = sorted({s for pair in weak for s in pair})
     slot = {site: k for k, site in enumerate(linked_sites)}
-    held = []  # per weakly linked cluster: (its lines with Δ<I_z>, its eigenstates' weight and <I_z>)
-    for component, units, _ in plan:
+    held = []  # per weakly linked cluster solved once: (its sites, its lines with z_i/z_f, its eigenstates)
+    fields: list[_PartnerField] = []
+    # a cluster re-solved in its partner's fields goes after that partner: it needs its eigenstates
+    for component, units, _ in sorted(plan, key=lambda entry: entry[0][0] in resolved):
         full_dim = math.prod(int(2 * sites[s].spin + 1) ** sites[s].count for s in component)
         scale = 6.0 / (float(full_dim) * sum_rule)
         unit_J = [[0.0] * len(units) for _ in units]
@@ -903,25 +1000,46 @@ def transitions(sites: Any, couplings: Any, observe: str, *, use_numpy: bool | N
                 if ua.site != ub.site:
                     unit_J[a][b] = J.get((min(ua.site, ub.site), max(ua.site, ub.site)), 0.0)
 
+        def J_units(a: int, b: int, unit_J: list[list[float]] = unit_J) -> float:
+            return unit_J[a][b]
+
+        if component[0] in resolved:
+            partner = next(other for other, _, _ in held if any(
+                (min(a, b), max(a, b)) in weak for a in component for b in other))
+            field = _PartnerField(component, units, partner, next(st for o, _, st in held if o is partner), weak,
+                                  slot, sites, merge_tol_Hz, full_dim)
+            for key, cell_units in field.units.items():
+                field.blocks[key] = []
+                cell_scale = scale * field.weights[key]
+
+                def emit_cell(freq: float, inten: float, site: int, *_: tuple, cell_scale: float = cell_scale) -> None:
+                    if inten * cell_scale >= NEGLIGIBLE_INTENSITY:
+                        raw.append((freq, inten * cell_scale, site))
+
+                for spins, weight in _compositions(cell_units):
+                    solved: dict = {}
+                    _composition_lines(cell_units, spins, J_units, observe, float(weight), solve, emit_cell, tick,
+                                       min_raw=NEGLIGIBLE_INTENSITY / cell_scale, keep=solved)
+                    field.blocks[key].append((weight, solved))
+            fields.append(field)
+            continue
+
         linked = {s: slot[s] for s in component if s in slot}
         own: list = []
         states: list = []
 
-        def emit(freq: float, inten: float, site: int, d: tuple[float, ...], scale: float = scale,
-                 own: list = own, linked: dict[int, int] = linked) -> None:
+        def emit(freq: float, inten: float, site: int, z_i: tuple[float, ...], z_f: tuple[float, ...],
+                 scale: float = scale, own: list = own, linked: dict[int, int] = linked) -> None:
             inten *= scale
             if inten < NEGLIGIBLE_INTENSITY:
                 return
             if linked:
-                own.append((freq, inten, site, d))
+                own.append((freq, inten, site, z_i, z_f))
             else:
                 raw.append((freq, inten, site))
 
         def record(weight: float, z: tuple[float, ...], states: list = states, full_dim: int = full_dim) -> None:
             states.append((weight / full_dim, z))
-
-        def J_units(a: int, b: int, unit_J: list[list[float]] = unit_J) -> float:
-            return unit_J[a][b]
 
         for spins, weight in _compositions(units):
             _composition_lines(units, spins, J_units, observe,
@@ -933,10 +1051,16 @@ def transitions(sites: Any, couplings: Any, observe: str, *, use_numpy: bool | N
     for cluster, own, _ in held:
         spreads = [sp for other, _, states in held if other is not cluster
                    if (sp := _partner_shifts(cluster, other, states, weak, slot, sites, merge_tol_Hz)) is not None]
-        for freq, inten, site, d in own:
+        re_solved = [field for field in fields if field.partner is cluster]
+        for freq, inten, site, z_i, z_f in own:
+            xs, ws = [freq], [inten]
+            for field in re_solved:  # a partner re-solved in this cluster's fields: its energy change
+                moves = field.spread(z_i, z_f)
+                xs = [x + u for x in xs for u, _ in moves]
+                ws = [w * p for w in ws for _, p in moves]
             # first order: each eigenstate of another cluster shifts this line by Σ_a d_a g_a; when
             # those shifts span at most merge_tol_Hz they are one line at their weighted mean
-            xs, ws = [freq], [inten]
+            d = tuple(y - x for x, y in zip(z_i, z_f))
             for columns, means, spans, weights in spreads:
                 if sum(abs(d[a]) * width for a, width in spans) <= merge_tol_Hz:
                     centre = sum(d[a] * g_a for a, g_a in means)

@@ -7,18 +7,20 @@ from __future__ import annotations
 
 import functools
 import http.server
+import importlib.util
 import os
 import shutil
-import socket
 import subprocess
 import sys
 import threading
-import time
 from pathlib import Path
 
 import pytest
 
 ROOT = Path(__file__).resolve().parents[2]
+_spec = importlib.util.spec_from_file_location("webkit_driver", ROOT / "build_scripts" / "webkit_driver.py")
+webkit_setup = importlib.util.module_from_spec(_spec)
+_spec.loader.exec_module(webkit_setup)
 DIST = ROOT / "dist"
 SINGLE = DIST / "nmrcalc.html"
 SITE = DIST / "site"
@@ -92,79 +94,22 @@ def firefox(playwright_instance):
     browser.close()
 
 
-def _free_port() -> int:
-    with socket.socket() as probe:
-        probe.bind(("127.0.0.1", 0))
-        return probe.getsockname()[1]
-
-
-def _free_display() -> int:
-    number = 90
-    while Path(f"/tmp/.X{number}-lock").exists() or Path(f"/tmp/.X11-unix/X{number}").exists():
-        number += 1
-    return number
-
-
-def _wait_for_port(port: int, process: subprocess.Popen, what: str, timeout_s: float = 20) -> None:
-    deadline = time.monotonic() + timeout_s
-    while time.monotonic() < deadline:
-        if process.poll() is not None:
-            raise RuntimeError(f"{what} exited with code {process.returncode}")
-        with socket.socket() as probe:
-            if probe.connect_ex(("127.0.0.1", port)) == 0:
-                return
-        time.sleep(0.2)
-    raise RuntimeError(f"{what} did not listen on port {port} within {timeout_s} s")
-
-
-def minibrowser() -> Path | None:
-    found = sorted(Path("/usr/lib").glob("*/webkit2gtk-4.1/MiniBrowser"))
-    return found[0] if found else None
-
-
 @pytest.fixture(scope="session")
-def webkit_driver_url():
-    """WebKitWebDriver on a free port, drawing into a private Xvfb display; both stopped at the end."""
-    driver, xvfb = shutil.which("WebKitWebDriver"), shutil.which("Xvfb")
-    if driver is None:
-        _need("WebKitWebDriver", "webkit2gtk-driver")
-    if minibrowser() is None:
-        _need("WebKitGTK's MiniBrowser", "libwebkit2gtk-4.1-0")
-    if xvfb is None:
-        _need("Xvfb", "xvfb")
-    display = f":{_free_display()}"
-    screen = subprocess.Popen([xvfb, display, "-screen", "0", "1280x1024x24", "-nolisten", "tcp"],
-                              stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
-    port = _free_port()
-    server = subprocess.Popen([driver, f"--port={port}"], env={**os.environ, "DISPLAY": display},
-                              stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+def webkit_driver():
+    """WebKitWebDriver drawing into a private Xvfb display (build_scripts/webkit_driver.py); both stopped at the end."""
+    for what, package in webkit_setup.missing():
+        _need(what, package)
+    driver = webkit_setup.WebKitDriver().start()
     try:
-        _wait_for_port(port, server, "WebKitWebDriver")
-        yield f"http://127.0.0.1:{port}"
+        yield driver
     finally:
-        for process in (server, screen):
-            process.terminate()
-            try:
-                process.wait(timeout=10)
-            except subprocess.TimeoutExpired:
-                process.kill()
+        driver.stop()
 
 
 @pytest.fixture(scope="session")
-def webkit(webkit_driver_url):
+def webkit(webkit_driver):
     """webkit() -> a fresh MiniBrowser session (its own empty storage) through selenium; quit it after use."""
-    from selenium import webdriver
-    from selenium.webdriver.webkitgtk.options import Options
-
-    def new_session():
-        options = Options()
-        options.binary_location = str(minibrowser())
-        options.add_argument("--automation")
-        session = webdriver.Remote(command_executor=webkit_driver_url, options=options)
-        session.set_script_timeout(60)
-        return session
-
-    return new_session
+    return webkit_driver.new_session
 
 
 class _QuietHandler(http.server.SimpleHTTPRequestHandler):

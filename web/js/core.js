@@ -332,10 +332,20 @@ function param(path) {
   }
   return found;
 }
-/** A field named by its declaration (field.param, e.g. 'frequency.min_MHz'): its label with the unit
+/** The op's one_of group that holds "op.key" ({keys, label, help}: one input filling whichever key
+ * its unit names, such as the magnet), or null. */
+function alternatives(path) {
+  const [opName, key] = path.split(".");
+  const op = DECLARED.get(opName);
+  return (op && (op.one_of || []).find((group) => group.keys.includes(key))) || null;
+}
+/** A field named by its declaration (field.param, e.g. 'frequency.min_MHz'; field.either, e.g.
+ * 'spin_system.spectrometer', for one input that fills one key of a one_of group): its label with the unit
  * (", optional" added with optional: true), its default, the request key whose errors it shows, and
  * its hint with hint: true; the field's own entries win. */
 function declaredField(field) {
+  const group = field.either ? alternatives(field.either) : null;
+  if (group) return { label: group.label, keys: group.keys, ...field, hint: field.hint === true ? group.help : field.hint };
   const decl = field.param ? param(field.param) : null;
   if (!decl) return field;
   const notes = [decl.unit, field.optional ? "optional" : null].filter(Boolean).join(", ");

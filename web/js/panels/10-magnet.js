@@ -10,9 +10,7 @@ export default {
     // 0 ppm − bare nucleus, rounded by the API to the precision of the tabulated γ and Ξ
     const diffText = (row) => (row.difference_ppm === null ? "—" : `${fixed(row.difference_ppm, row.difference_decimals)} ± ${fmt(row.difference_precision_ppm, 1)}`);
     const magnet = NMR.sharedField("freqs", {
-      id: "magnet", label: "Magnet (¹H frequency or field)", value: "400.13",
-      units: NMR.MAGNET_UNITS, keys: ["spectrometer", "field"],
-      hint: "The proton frequency printed on the console, or the field strength.",
+      id: "magnet", either: "frequency.spectrometer", value: "400.13", units: NMR.MAGNET_UNITS, hint: true,
     });
     const magnetCard = el("section", { class: "card card-magnet card-wide", "aria-label": "Magnet" }, el("h2", {}, "Magnet"), magnet.wrap);
     const magnetOut = el("p", { class: "magnet-summary", id: "freqs-magnet-summary", "aria-live": "polite" });
@@ -52,7 +50,7 @@ export default {
       fields: [
         { id: "nucleus", param: "ppm_hz.nucleus", value: "1H", list: "nuclide-list" },
         { id: "direction", label: "Convert", kind: "select", options: [["ppm", "ppm → Hz"], ["Hz", "Hz → ppm"]] },
-        { id: "amount", label: "Value", value: "7.26", keys: ["ppm", "Hz"] },
+        { id: "amount", either: "ppm_hz.ppm", value: "7.26" },
         { id: "carrier", param: "ppm_hz.carrier_ppm", optional: true, value: "" },
       ],
       request(v) {

@@ -17,10 +17,10 @@ export default {
       intro: "The energy of one NMR transition at this magnet and temperature, next to an optical photon if you give one.",
       fields: [
         { id: "nucleus", param: "energy.nucleus", value: "1H", list: "nuclide-list", placeholder: "e.g. 1H, 13C, 31P", required: true },
-        { id: "magnet", label: "Magnet", value: "500", units: NMR.MAGNET_UNITS, keys: ["spectrometer", "field"] },
+        { id: "magnet", either: "energy.spectrometer", value: "500", units: NMR.MAGNET_UNITS },
         { id: "temperature", param: "energy.temperature", value: "298" },
         {
-          id: "photon", label: "Photon (optional)", value: "254", hint: "A UV/visible wavelength or an IR wavenumber to compare with.", keys: ["wavelength", "wavenumber"],
+          id: "photon", either: "energy.wavelength", value: "254", hint: true,
           units: [{ unit: "nm", label: "nm" }, { unit: "cm-1", label: "cm⁻¹" }],
         },
       ],

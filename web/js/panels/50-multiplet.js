@@ -74,7 +74,7 @@ export default {
 
     const fixed = {
       observe: NMR.sharedField("mult", { id: "observe", param: "multiplet.observe", value: "13C", list: "nuclide-list" }),
-      magnet: NMR.sharedField("mult", { id: "magnet", label: "Magnet", value: "400", units: NMR.MAGNET_UNITS, keys: ["spectrometer", "field"] }),
+      magnet: NMR.sharedField("mult", { id: "magnet", either: "multiplet.spectrometer", value: "400", units: NMR.MAGNET_UNITS }),
       center: NMR.sharedField("mult", { id: "center", param: "multiplet.center", value: "77.0", keys: ["center"] }),
       linewidth: NMR.sharedField("mult", { id: "linewidth", param: "multiplet.linewidth", value: "0.5", keys: ["linewidth"] }),
       shape: NMR.sharedField("mult", { id: "shape", param: "multiplet.shape", kind: "select", options: [["lorentzian", "Lorentzian"], ["gaussian", "Gaussian"]] }),

@@ -65,20 +65,20 @@ export default {
       submitLabel: "Calculate",
       fields: [
         { id: "positions", param: "deuteration.positions", value: "3", inputmode: "numeric" },
-        { id: "integrals", label: "Isotopologue integrals, k = 0, 1, 2 …", value: "0.2, 3.8, 27.9, 68.1", placeholder: "comma separated", wide: true, keys: ["integrals"] },
+        { id: "integrals", param: "deuteration.integrals", value: "0.2, 3.8, 27.9, 68.1", placeholder: "comma separated", wide: true },
         { id: "observed", param: "deuteration.observed_on", kind: "select", options: [["once_per_molecule", "once per molecule (13C)"], ["site_1H", "the site's own 1H"]] },
         { id: "error", param: "deuteration.integral_error", value: "", placeholder: "1 % of the largest", inputmode: "decimal" },
-        { id: "residual", label: "Residual 1H integral of the site", value: "", inputmode: "decimal", keys: ["residual.integral", "residual"] },
-        { id: "standard", label: "Standard's integral", value: "1", inputmode: "decimal", keys: ["residual.standard_integral"] },
-        { id: "nuclei", label: "Nuclei behind the standard's signal", value: "3", inputmode: "numeric", keys: ["residual.standard_nuclei"] },
-        { id: "ratio", label: "Moles of standard per mole of sample", value: "1", inputmode: "decimal", keys: ["residual.standard_per_analyte"] },
-        { id: "relerr", label: "Relative error of each of the two integrals (%)", value: "", placeholder: "none", inputmode: "decimal", keys: ["residual.relative_error"] },
+        { id: "residual", param: "deuteration.residual.integral", value: "", inputmode: "decimal", keys: ["residual.integral", "residual"] },
+        { id: "standard", param: "deuteration.residual.standard_integral", value: "1", inputmode: "decimal" },
+        { id: "nuclei", param: "deuteration.residual.standard_nuclei", value: "3", inputmode: "numeric" },
+        { id: "ratio", param: "deuteration.residual.standard_per_analyte", value: "1", inputmode: "decimal" },
+        { id: "relerr", param: "deuteration.residual.relative_error", value: "", placeholder: "none", inputmode: "decimal" },
       ],
       request: (v) => {
-        const num = (text) => (text === "" ? null : Number(text));
+        // a number as typed; text that is not one goes to the op as typed, which names the field
+        const num = (text) => (text === "" ? null : Number.isNaN(Number(text)) ? text : Number(text));
         const req = { op: "deuteration", positions: num(v.positions.value), observed_on: v.observed.value };
-        if (Number.isNaN(req.positions)) req.positions = v.positions.value;
-        if (v.integrals.value !== "") req.integrals = v.integrals.value.split(/[,;\s]+/).filter(Boolean).map((t) => (Number.isNaN(Number(t)) ? t : Number(t)));
+        if (v.integrals.value !== "") req.integrals = v.integrals.value;
         if (v.error.value !== "") req.integral_error = num(v.error.value);
         if (v.residual.value !== "") {
           req.residual = { integral: num(v.residual.value), standard_integral: num(v.standard.value), standard_nuclei: num(v.nuclei.value), standard_per_analyte: num(v.ratio.value) };

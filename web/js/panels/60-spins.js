@@ -48,7 +48,7 @@ export default {
 
     const fixed = {
       observe: NMR.sharedField("spins", { id: "observe", param: "spin_system.observe", value: "1H", list: "nuclide-list", keys: ["observe"] }),
-      magnet: NMR.sharedField("spins", { id: "magnet", label: "Magnet", value: "400", units: NMR.MAGNET_UNITS, keys: ["spectrometer", "field"] }),
+      magnet: NMR.sharedField("spins", { id: "magnet", either: "spin_system.spectrometer", value: "400", units: NMR.MAGNET_UNITS }),
       linewidth: NMR.sharedField("spins", { id: "linewidth", param: "spin_system.linewidth", value: "0.8", keys: ["linewidth"] }),
       fields: NMR.sharedField("spins", { id: "fields", param: "spin_system.fields", value: "60, 300, 400, 600, 800, 1200", wide: true }),
       overlay: NMR.sharedField("spins", { id: "overlay", param: "spin_system.first_order", kind: "checkbox", value: true }),
@@ -375,7 +375,7 @@ export default {
       );
       transitionBox.replaceChildren(
         el("h3", { class: "sub-title" }, "Clusters"),
-        el("ul", { id: "spins-clusters" }, ...r.clusters.map((c) => el("li", {}, `${c.labels.join(", ")}: ${c.method === "exact" ? "exact" : `weak links to first order, positions within about ${fmt(c.error_Hz, 2)} Hz`}`))),
+        el("ul", { id: "spins-clusters" }, ...r.clusters.map((c) => el("li", {}, `${c.labels.join(", ")}: ${c.method === "exact" ? "exact" : `weak links to first order${c.partner_field ? " (solved again in each state of its partner)" : ""}, positions within about ${fmt(c.error_Hz, 2)} Hz`}`))),
         ...NMRRows.lineTable({
           id: "spins-lines", title: "Transitions", request: sent, lines: r.transitions, fileName: "spin-system-transitions",
           caption: "Every observed transition, high to low ppm: position, intensity and the spin it mostly belongs to",

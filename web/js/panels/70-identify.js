@@ -50,28 +50,28 @@ export default {
     const fixed = {
       observe: NMR.sharedField("ident", { id: "observe", param: "identify.observe", value: "1H", list: "nuclide-list" }),
       magnet: NMR.sharedField("ident", {
-        id: "magnet", label: "Magnet", value: "400", units: NMR.MAGNET_UNITS, keys: ["spectrometer", "field"],
+        id: "magnet", either: "identify.spectrometer", value: "400", units: NMR.MAGNET_UNITS,
         hint: "Needed for ppm positions; blank for Hz offsets only.",
       }),
       unit: NMR.sharedField("ident", {
-        id: "unit", label: "Positions are in", kind: "select", keys: ["unit"],
+        id: "unit", param: "identify.unit", kind: "select",
         options: [["", "Auto (header or guess)"], ["Hz", "Hz"], ["ppm", "ppm"]],
       }),
       partners: NMR.sharedField("ident", {
-        id: "partners", label: "Allowed partners", value: "", placeholder: "e.g. H, 2H, B, Pt", keys: ["partners"],
+        id: "partners", param: "identify.partners", value: "", placeholder: "e.g. H, 2H, B, Pt",
         hint: "Nuclides, elements or spins (1/2, spin=3/2), comma-separated. Blank: spin 1/2 first on 1H, 13C, 19F and 31P (higher spins only when the intensities need them), and natural-abundance satellites for a weak symmetric pair.",
       }),
       tolerance: NMR.sharedField("ident", {
-        id: "tolerance", param: "identify.tolerance", value: "", placeholder: "from the data", keys: ["tolerance"],
+        id: "tolerance", param: "identify.tolerance", value: "", placeholder: "from the data",
       }),
       linewidth: NMR.sharedField("ident", {
-        id: "linewidth", label: "Line width (Hz), if known", value: "", placeholder: "not known", keys: ["linewidth"],
+        id: "linewidth", param: "identify.linewidth", optional: true, value: "", placeholder: "not known",
       }),
       resolution: NMR.sharedField("ident", {
-        id: "resolution", label: "Digital resolution (Hz per point), if known", value: "", placeholder: "not known", keys: ["digital_resolution"],
+        id: "resolution", param: "identify.digital_resolution", optional: true, value: "", placeholder: "not known",
       }),
       maxGroups: NMR.sharedField("ident", {
-        id: "max_groups", label: "Most groups of partners", kind: "select", keys: ["max_groups"],
+        id: "max_groups", param: "identify.max_groups", kind: "select",
         options: [["3", "3"], ["2", "2"], ["1", "1"]],
       }),
     };
