@@ -59,7 +59,7 @@ def _read(req: dict) -> dict:
         err = req.get("integral_error")
         out["sigma"] = None if err in (None, "") else _number(err, "integral_error", positive=True)
     res = req.get("residual")
-    if res is not None:
+    if res not in (None, "", []):  # absent, as the declaration check reads it
         r = {key: _number(res.get(key), f"residual.{key}", positive=key != "integral") for key in RESIDUAL_KEYS[:4]}
         r["relative_error"] = quantity(res, "relative_error", "percent", default=0.0, prefix="residual.") / 100
         out["residual"] = r
