@@ -86,7 +86,7 @@ class WebKitDriver:
         self.screen = self.server = None
         self.url = ""
 
-    def start(self) -> "WebKitDriver":
+    def start(self) -> WebKitDriver:
         self.screen = subprocess.Popen(["Xvfb", self.display, "-screen", "0", "1280x1024x24", "-nolisten", "tcp"],
                                        stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
         self._start_server()
@@ -120,7 +120,7 @@ class WebKitDriver:
                 continue
             session.set_script_timeout(script_timeout_s)
             return session
-        raise RuntimeError("no MiniBrowser session after %d tries: %s" % (SESSION_TRIES, "; ".join(failures)))
+        raise RuntimeError(f"no MiniBrowser session after {SESSION_TRIES} tries: {'; '.join(failures)}")
 
     def stop(self) -> None:
         _stop(self.server)

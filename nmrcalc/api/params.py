@@ -55,8 +55,8 @@ from typing import Any
 
 from nmrcalc.errors import InputError
 
-KINDS = ("quantity", "quantities", "numbers", "nuclide", "partner", "spin", "integer", "number", "flag", "choice", "text",
-         "texts", "map", "object", "objects", "pair", "value")
+KINDS = ("quantity", "quantities", "numbers", "nuclide", "partner", "spin", "integer", "number", "flag", "choice",
+         "text", "texts", "map", "object", "objects", "pair", "value")
 MAX_LIST_ITEMS = 4096
 MAX_TEXT_CHARS = 1_000_000
 
@@ -149,7 +149,7 @@ def _alternatives(group: tuple[str, ...]) -> dict:
 
 
 # ``one_of`` groups that a front end reads as one input (its unit says which key it fills).
-ALTERNATIVES = {
+ALTERNATIVES: dict[tuple[str, ...], tuple[str, str]] = {
     ("spectrometer", "field"): ("Magnet", "the magnet by its 1H frequency (MHz) or its field (T, kG, G)"),
     ("ppm", "Hz"): ("Value", "a shift in ppm or an offset from 0 ppm in Hz"),
     ("wavelength", "wavenumber"): ("Photon, optional", "a UV/visible wavelength or an IR wavenumber to compare with"),

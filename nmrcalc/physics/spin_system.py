@@ -988,7 +988,8 @@ def transitions(sites: Any, couplings: Any, observe: str, *, use_numpy: bool | N
     raw: list[tuple[float, float, int]] = []
     linked_sites = sorted({s for pair in weak for s in pair})
     slot = {site: k for k, site in enumerate(linked_sites)}
-    held = []  # per weakly linked cluster solved once: (its sites, its lines with z_i/z_f, its eigenstates)
+    # per weakly linked cluster solved once: (its sites, its lines with z_i/z_f, its eigenstates)
+    held: list[tuple[set[int], list, list[tuple[float, tuple[float, ...]]]]] = []
     fields: list[_PartnerField] = []
     # a cluster re-solved in its partner's fields goes after that partner: it needs its eigenstates
     for component, units, _ in sorted(plan, key=lambda entry: entry[0][0] in resolved):
