@@ -103,3 +103,18 @@ def test_fit_refusals():
     assert not r["ok"] and r["error"]["field"] == "lines"
     r = handle({"op": "fit_spin_system", **base, "lines": [], "vary": ["widths"]})
     assert not r["ok"]
+
+
+def test_a_system_too_large_to_fit_is_refused_before_any_work():
+    # 64 equivalent H beside two single spins: 4,356 states after factoring, which one spin_system call solves
+    # (0.4 s) but a fit would solve a few hundred times; refused with the size named (spin_fit.MAX_FIT_STATES)
+    base = _system([1.0, 1.1], [(0, 1, 7.0)], 400)
+    base["spins"][0]["count"] = 64
+    base["spins"].append({"nucleus": "1H", "shift": 2.0})
+    base["couplings"].append({"between": [1, 2], "J": 5.0})
+    lines = [{"position": p, "intensity": 1} for p in (0.99, 1.0, 1.09, 1.1)]
+    trace = {"first_x": 0.9, "last_x": 1.2, "x_unit": "ppm", "y": [0.0] * 300, "linewidth": "1 Hz"}
+    for extra in ({"lines": lines}, trace):
+        r = handle({"op": "fit_spin_system", **base, **extra, "vary": ["shifts"]})
+        assert r["error"] == {**r["error"], "code": "too_large", "field": "spins"}, r
+        assert "4,356 states" in r["error"]["message"]

@@ -38,7 +38,7 @@ from nmrcalc.errors import InputError
 from nmrcalc.physics.jcamp import MAX_POINTS, read_jcamp
 from nmrcalc.physics.peaks import measure, pick
 from nmrcalc.physics.spectrum_text import read_two_column
-from nmrcalc.physics.spin_fit import fit
+from nmrcalc.physics.spin_fit import MAX_FIT_STATES, fit
 from nmrcalc.physics.spin_system import Site, equivalence_caveats, first_order_checks
 from nmrcalc.physics.trace_fit import MAX_POINTS as TRACE_MAX_POINTS
 from nmrcalc.physics.trace_fit import fit_trace
@@ -303,7 +303,7 @@ DECLARED = {
         "fit_spin_system", "fit a spin system's shifts and couplings to measured line positions or to a "
         "region's trace (least squares)",
         cli="fit", one_of=(("spectrometer", "field"), ("lines", "y"), ("lines", "x_unit"), ("lines", "linewidth")),
-        limits=f"{MAX_LINES} lines; {TRACE_POINTS} trace points",
+        limits=f"{MAX_LINES} lines; {TRACE_POINTS} trace points; {MAX_FIT_STATES} states after factoring",
         params=(
             _SPIN_PARAMS["observe"], _SPIN_PARAMS["spins"], _SPIN_PARAMS["couplings"], *MAGNET,
             Param("lines", "objects", max_items=MAX_LINES, label="Measured lines",

@@ -39,7 +39,17 @@ from nmrcalc.errors import InputError
 from nmrcalc.nuclides import Nuclide
 from nmrcalc.physics import lineshape
 from nmrcalc.physics.multiplet import multiplet
-from nmrcalc.physics.spin_system import MAX_COUNT, Site, clusters, equivalence_caveats, first_order_checks, transitions
+from nmrcalc.physics.spin_system import (
+    MAX_BLOCK_DIM,
+    MAX_COUNT,
+    MAX_TOTAL_DIM,
+    MAX_WORK,
+    Site,
+    clusters,
+    equivalence_caveats,
+    first_order_checks,
+    transitions,
+)
 from nmrcalc.units import split_list
 
 MAX_FIELDS = 12
@@ -285,7 +295,9 @@ def op_spin_system(req, warnings):
 
 DECLARED = {"spin_system": Op(
     "spin_system", "exact (second-order) spectrum of a coupled spin system, at one or several magnets", cli="spins",
-    one_of=(("spectrometer", "field"),), limits=f"{MAX_SPINS} spin entries; {MAX_FIELDS} fields", params=(
+    one_of=(("spectrometer", "field"),),
+    limits=f"{MAX_SPINS} spin entries; {MAX_FIELDS} fields; blocks of {MAX_BLOCK_DIM} and {MAX_TOTAL_DIM} states "
+           f"after factoring, Σ dim³ {MAX_WORK:.0e} (about 10 strongly coupled spins-½)", params=(
         Param("observe", "nuclide", default="1H", label="Observed nucleus", help="e.g. 1H", example="1H"),
         Param("spins", "objects", required=True, label="Spins", max_items=MAX_SPINS,
               help="each NUCLEUS,SHIFT_PPM[,COUNT], e.g. 1H,7.10", cli="--spin",

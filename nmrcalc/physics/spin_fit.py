@@ -21,7 +21,7 @@ from dataclasses import replace
 from typing import Any
 
 from nmrcalc.errors import InputError
-from nmrcalc.physics.spin_system import Site, simulate
+from nmrcalc.physics.spin_system import Site, problem_size, simulate
 
 MIN_ASSIGN = 0.02
 TOL_HZ = 1e-7
@@ -29,6 +29,18 @@ MAX_ASSIGNMENTS = 6   # outer passes: assign, then fit with the assignment fixed
 MAX_ITER = 20         # Levenberg–Marquardt steps per pass
 MAX_TRIES = 8         # damping increases (×10 each) before a step is given up
 STEP_HZ = 1e-4
+# A fit solves its spin system a few hundred times (passes × steps × parameters): at most this
+# many states after equivalence factoring (one solve then takes well under 0.05 s in CPython).
+MAX_FIT_STATES = 1024
+
+
+def check_fit_size(sites: Sequence[Site], couplings: Sequence[tuple[int, int, float]], observe: str) -> None:
+    """InputError (field "spins", code "too_large") for a system too large to solve a few hundred times."""
+    total = problem_size(sites, couplings, observe)["total_dim"]
+    if total > MAX_FIT_STATES:
+        raise InputError(f"This spin system has {total:,} states after factoring; a fit solves it a few hundred "
+                         f"times, so at most {MAX_FIT_STATES:,}: fit fewer spins or smaller groups of equivalent "
+                         "spins, or simulate it once in the spin-system op.", "spins", "too_large")
 
 
 def _solve(a: list[list[float]], b: list[float]) -> list[float] | None:
@@ -129,6 +141,7 @@ def fit(sites: Sequence[Site], couplings: Sequence[tuple[int, int, float]], obse
     ``measured``: [(position_Hz, intensity)].  Returns {"params", "errors" (None if
     undefined), "rms_Hz", "residuals_Hz", "assigned_Hz", "iterations", "converged" (the
     assignment stopped changing within MAX_ASSIGNMENTS passes)}."""
+    check_fit_size(sites, couplings, observe)
     model = _Model(sites, couplings, observe, shift_sites, coupling_idx)
     p = model.params()
     n, m = len(p), len(measured)

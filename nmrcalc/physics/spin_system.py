@@ -57,7 +57,7 @@ Public interface::
     total_spin_multiplicities(n, spin) -> list[tuple[Fraction, int]]
     problem_size(sites, couplings, observe, *, factor_equivalence=True)
         -> dict(largest_block=int | None, total_dim=int)
-    MAX_BLOCK_DIM, MAX_TOTAL_DIM   # size limits (after factoring): InputError "too_large"
+    MAX_BLOCK_DIM, MAX_TOTAL_DIM, MAX_WORK   # size limits (after factoring): InputError "too_large"
     MAX_SPIN, MAX_COUNT            # input bounds on Site.spin and Site.count
 
 ``couplings`` is a list of ``(i, j, J_Hz)`` with i, j site indices (i ≠ j); a
@@ -70,6 +70,7 @@ the same frame.
 import functools
 import itertools
 import math
+from array import array
 from collections.abc import Callable, Iterable, Iterator
 from dataclasses import dataclass, replace
 from fractions import Fraction
@@ -81,10 +82,13 @@ from nmrcalc.physics.eigen import eigh
 from nmrcalc.physics.lanczos import dot
 
 # Size limits, applied after factoring (per connected component).  A 10-spin-1/2
-# like-nuclide system has a largest block of 252 (about 20 s in pure CPython,
-# under 1 s with numpy); 8 spins-1/2 (largest block 70) take about 0.3 s.
+# like-nuclide system has a largest block of 252 and Σ block dim³ = 3.8e7 (about 4 s in
+# pure CPython 3.13, under 1 s with numpy); 8 spins-1/2 (largest block 70) take about
+# 0.3 s.  MAX_WORK bounds Σ block dim³ over every composition, the eigensolver's work:
+# a CH3(CH2)5 chain (13 H, 6144 states after factoring) needs 2.5e7.
 MAX_BLOCK_DIM = 252
-MAX_TOTAL_DIM = 4096
+MAX_TOTAL_DIM = 8192
+MAX_WORK = 40_000_000
 # Input bounds that keep the size check itself instant (nuclear ground-state
 # spins stay below 10; a site of more than 64 equivalent spins is not chemistry).
 MAX_SPIN = 10
@@ -362,14 +366,14 @@ def _weak_split(sites: list[Site], J: Links, observe: str, tol_Hz: float | None,
     """``_joined_split`` (its docstring), remembered for the last few systems (and size limits):
     ``clusters`` and ``transitions`` of one request ask for the same split."""
     strong, weak, mixing, resolved = _joined_split(tuple(sites), tuple(sorted(J.items())), observe, tol_Hz,
-                                                   factor_equivalence, (MAX_BLOCK_DIM, MAX_TOTAL_DIM))
+                                                   factor_equivalence, (MAX_BLOCK_DIM, MAX_TOTAL_DIM, MAX_WORK))
     return dict(strong), dict(weak), dict(mixing), resolved
 
 
 @functools.lru_cache(maxsize=4)
 def _joined_split(site_tuple: tuple[Site, ...], J_items: tuple[tuple[tuple[int, int], float], ...], observe: str,
                   tol_Hz: float | None, factor_equivalence: bool,
-                  limits: tuple[int, int]) -> tuple[Links, Links, dict[int, float], frozenset[int]]:
+                  limits: tuple[int, int, int]) -> tuple[Links, Links, dict[int, float], frozenset[int]]:
     """(strong, weak, mixing error per site's cluster, sites of the clusters re-solved in their
     partner's field): ``_split_links``, then the second-order check.
 
@@ -384,15 +388,14 @@ def _joined_split(site_tuple: tuple[Site, ...], J_items: tuple[tuple[tuple[int, 
     B's states at once are neglected there, and on random systems (tests/test_spin_clusters.py)
     they exceed B's own part.  A cluster whose bound still exceeds
     ``tol_Hz`` is joined to its partners (its links solved exactly) when the joined
-    cluster fits MAX_BLOCK_DIM / MAX_TOTAL_DIM; otherwise it stays split and its bound is
+    cluster fits MAX_BLOCK_DIM / MAX_TOTAL_DIM / MAX_WORK; otherwise it stays split and its bound is
     reported.  Repeated until nothing changes.  When the split clusters themselves exceed
     the size limits the bound is not worked out (math.inf).
     """
     sites, solve = list(site_tuple), _solver(None)
     strong, weak = _split_links(sites, dict(J_items), observe, tol_Hz)
     while weak:
-        largest, total_dim, _ = _size_report(_plan(sites, strong, observe, factor_equivalence))
-        if largest is None or largest > limits[0] or total_dim > limits[1]:
+        if _too_large(*_size_report(_plan(sites, strong, observe, factor_equivalence)), limits):
             return strong, weak, dict.fromkeys(range(len(sites)), math.inf), frozenset()  # too large
         groups = _components(len(sites), strong)
         root = {s: k for k, group in enumerate(groups) for s in group}
@@ -416,8 +419,7 @@ def _joined_split(site_tuple: tuple[Site, ...], J_items: tuple[tuple[tuple[int, 
             joins = {p: J_p for p, J_p in weak.items() if k in (root[p[0]], root[p[1]])}
             trial = {**strong, **joins}
             plan = [entry for entry in _plan(sites, trial, observe, factor_equivalence) if groups[k][0] in entry[0]]
-            largest, total_dim, _ = _size_report(plan)
-            if largest is not None and largest <= limits[0] and total_dim <= limits[1]:
+            if not _too_large(*_size_report(plan), limits):
                 strong = trial
                 weak = {p: J_p for p, J_p in weak.items() if p not in joins}
                 joined = True
@@ -572,6 +574,19 @@ def _size_report(plan: list[Planned]) -> tuple[int | None, int, int]:
     return largest, total_dim, work
 
 
+def _too_large(largest: int | None, total_dim: int, work: int, limits: tuple[int, int, int]) -> str | None:
+    """What exceeds the size limits (block, total, work), in words; None when the system fits."""
+    if total_dim > limits[1]:
+        return f"{_count_text(total_dim)} states after factoring (limit {limits[1]})"
+    if largest is None:
+        return "too many states to count"
+    if largest > limits[0]:
+        return f"a block of {largest} states (limit {limits[0]})"
+    if work > limits[2]:
+        return f"eigensolver work Σ dim³ = {work:.2g} (limit {limits[2]:.2g}, about 10 strongly coupled spins-½)"
+    return None
+
+
 def problem_size(sites: Any, couplings: Any, observe: str, *, factor_equivalence: bool = True) -> dict:
     """Largest block and largest total dimension (per component) that ``simulate`` would meet.
 
@@ -715,12 +730,13 @@ def _composition_lines(units: list[_Unit], spins: list[tuple[int, int]], J_units
 
 
 def _transition_amplitudes(entries: list[tuple[int, int, float, int]], dim_f: int, E_i: Any, V_i: Any, E_f: Any,
-                           V_f: Any, min_amp2: float = 0.0) -> Iterator[tuple[float, float, int, int, int]]:
+                           V_f: Any, min_amp2: float = 0.0) -> Iterator[tuple[float, float, "int | _Owner", int, int]]:
     """Yield (E_f[a] − E_i[b], <f_a|F_+|i_b>, site, a, b) for every eigenpair across two blocks.
 
     ``site`` is the observed site whose own I_+ gives the largest part
     |<f_a|Σ_site I_+|i_b>|² of the amplitude: the spin the line "mostly belongs to".  Lines with
-    amplitude² below ``min_amp2`` (which the caller drops) get the first site without the shares.
+    amplitude² below ``min_amp2`` (which the caller drops) are not yielded by the pure-Python path;
+    on it the site is an ``_Owner``, worked out only when asked (most lines are dropped or merged).
     """
     sites = sorted({tag for *_, tag in entries})
     if not sites:
@@ -743,18 +759,48 @@ def _transition_amplitudes(entries: list[tuple[int, int, float, int]], dim_f: in
             yield f, a, sites[o], k // n_i, k % n_i
         return
     for ib, (Eb, vb) in enumerate(zip(E_i, V_i)):
-        ws = {site: [0.0] * dim_f for site in sites}
         every = [0.0] * dim_f
-        for si, ti, c, tag in entries:
-            ws[tag][ti] += c * vb[si]
+        for si, ti, c, _ in entries:
             every[ti] += c * vb[si]
-        for fa, (Ea, va) in enumerate(zip(E_f, V_f)):
-            amp = dot(va, every)
-            if len(sites) == 1 or amp * amp < min_amp2:  # one site, or a line the caller drops
-                yield Ea - Eb, amp, sites[0], fa, ib
+        shares = _SiteShares(entries, vb, dim_f, sites) if len(sites) > 1 else None
+        for fa, amp in enumerate(map(dot, V_f, itertools.repeat(every))):
+            if amp * amp < min_amp2:  # a line the caller drops
                 continue
-            share = {site: dot(va, w) for site, w in ws.items()}
-            yield Ea - Eb, amp, max(share, key=lambda k: share[k] ** 2), fa, ib
+            yield E_f[fa] - Eb, amp, sites[0] if shares is None else _Owner(shares, V_f[fa]), fa, ib
+
+
+class _SiteShares:
+    """The vectors Σ_site I_+ |i_b> of one initial eigenvector, one per observed site, built on
+    first use: most lines are dropped or merged into a stronger one, and only the lines kept
+    need their site (``_Owner``; ``transitions`` asks at the end)."""
+
+    __slots__ = ("entries", "vb", "dim_f", "sites", "ws")
+
+    def __init__(self, entries: list[tuple[int, int, float, int]], vb: Any, dim_f: int, sites: list[int]) -> None:
+        self.entries, self.vb, self.dim_f, self.sites = entries, vb, dim_f, sites
+        self.ws: list[Any] | None = None
+
+    def owner(self, va: Any) -> int:
+        if self.ws is None:
+            ws = {site: array("d", bytes(8 * self.dim_f)) for site in self.sites}
+            vb = self.vb
+            for si, ti, c, tag in self.entries:
+                ws[tag][ti] += c * vb[si]
+            self.ws = [ws[site] for site in self.sites]
+        share = [dot(va, w) for w in self.ws]
+        return self.sites[max(range(len(share)), key=lambda k: share[k] ** 2)]
+
+
+class _Owner:
+    """The observed site a line mostly belongs to, worked out when asked (``_SiteShares``)."""
+
+    __slots__ = ("shares", "va")
+
+    def __init__(self, shares: _SiteShares, va: Any) -> None:
+        self.shares, self.va = shares, va
+
+    def __call__(self) -> int:
+        return self.shares.owner(self.va)
 
 
 def _partner_shifts(component: set[int], other: set[int], states: list[tuple[float, tuple[float, ...]]],
@@ -942,7 +988,7 @@ def transitions(sites: Any, couplings: Any, observe: str, *, use_numpy: bool | N
     intensity-weighted mean; merged lines weaker than ``min_rel_intensity`` times
     the strongest are dropped.  ``progress(done_fraction)`` is called after each
     block.  Raises InputError (code "too_large", field "spins") beyond
-    MAX_BLOCK_DIM / MAX_TOTAL_DIM.
+    MAX_BLOCK_DIM / MAX_TOTAL_DIM / MAX_WORK.
     """
     sites = _checked_sites(sites)
     J = _checked_couplings(couplings, len(sites))
@@ -962,14 +1008,7 @@ def transitions(sites: Any, couplings: Any, observe: str, *, use_numpy: bool | N
 
     plan = _plan(sites, J, observe, factor_equivalence)
     largest, total_dim, work = _size_report(plan)
-    if total_dim > MAX_TOTAL_DIM:
-        size = f"{_count_text(total_dim)} states after factoring (limit {MAX_TOTAL_DIM})"
-    elif largest is None:
-        size = "too many states to count"
-    elif largest > MAX_BLOCK_DIM:
-        size = f"a block of {largest} states (limit {MAX_BLOCK_DIM})"
-    else:
-        size = None
+    size = _too_large(largest, total_dim, work, (MAX_BLOCK_DIM, MAX_TOTAL_DIM, MAX_WORK))
     if size:
         raise InputError(
             f"spin system too large for the exact calculation: {size}; use the first-order "
@@ -1079,7 +1118,8 @@ def transitions(sites: Any, couplings: Any, observe: str, *, use_numpy: bool | N
         progress(1.0)
     lines = _merge(raw, merge_tol_Hz)
     strongest = max((i for _, i, _ in lines), default=0.0)
-    return [(f, i, site) for f, i, site in lines if i > 0.0 and i >= min_rel_intensity * strongest]
+    return [(f, i, site() if isinstance(site, _Owner) else site) for f, i, site in lines
+            if i > 0.0 and i >= min_rel_intensity * strongest]
 
 
 # ------------------------------------------------------------ diagnostics

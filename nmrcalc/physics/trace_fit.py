@@ -39,7 +39,7 @@ from dataclasses import replace
 from typing import Any
 
 from nmrcalc.errors import InputError
-from nmrcalc.physics.spin_fit import covariance_errors, levenberg_marquardt
+from nmrcalc.physics.spin_fit import check_fit_size, covariance_errors, levenberg_marquardt
 from nmrcalc.physics.spin_system import Site, simulate
 
 TOL = 1e-7          # stop when every step component is below this (Hz, or relative for s)
@@ -150,6 +150,7 @@ def fit_trace(sites: Sequence[Site], couplings: Sequence[tuple[int, int, float]]
         raise InputError("A trace fit needs at least 3 points.", "y")
     if len(y) > MAX_POINTS:
         raise InputError(f"At most {MAX_POINTS} points in a trace fit: choose a narrower region.", "y", "too_large")
+    check_fit_size(sites, couplings, observe)
     model = _TraceModel(sites, couplings, observe, shift_sites, coupling_idx, fit_width, x_Hz, baseline, width_Hz)
     start = [sites[i].offset_Hz for i in shift_sites] + [couplings[k][2] for k in coupling_idx]
     best = _stage(model, y, start + ([width_Hz] if fit_width else []), TOL)
