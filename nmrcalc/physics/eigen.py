@@ -28,7 +28,7 @@ returns them as columns).
 
 import math
 import random
-from operator import mul
+from operator import mul, sub
 
 from nmrcalc.errors import InputError
 from nmrcalc.physics.lanczos import dot, multiplier, tridiagonalize
@@ -82,7 +82,7 @@ def _krylov_eigh(a: list[list[float]]) -> tuple[list[float], list[list[float]]] 
         z = [dot(y, col) for col in cols]
         az = times(z)
         lam = dot(z, az)
-        if max(abs(p - lam * q) for p, q in zip(az, z)) > tol:
+        if max(map(abs, map(sub, az, map(lam.__mul__, z)))) > tol:
             return None
         values.append(lam + shift)
         vectors.append(z)

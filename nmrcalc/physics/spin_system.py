@@ -70,7 +70,6 @@ the same frame.
 import functools
 import itertools
 import math
-from array import array
 from collections.abc import Callable, Iterable, Iterator
 from dataclasses import dataclass, replace
 from fractions import Fraction
@@ -763,10 +762,10 @@ def _transition_amplitudes(entries: list[tuple[int, int, float, int]], dim_f: in
         for si, ti, c, _ in entries:
             every[ti] += c * vb[si]
         shares = _SiteShares(entries, vb, dim_f, sites) if len(sites) > 1 else None
-        for fa, amp in enumerate(map(dot, V_f, itertools.repeat(every))):
-            if amp * amp < min_amp2:  # a line the caller drops
-                continue
-            yield E_f[fa] - Eb, amp, sites[0] if shares is None else _Owner(shares, V_f[fa]), fa, ib
+        amps = list(map(dot, V_f, itertools.repeat(every)))
+        # the lines the caller keeps (amplitude² >= min_amp2), picked without a Python-level loop
+        for fa in itertools.compress(itertools.count(), map(math.sqrt(min_amp2).__le__, map(abs, amps))):
+            yield E_f[fa] - Eb, amps[fa], sites[0] if shares is None else _Owner(shares, V_f[fa]), fa, ib
 
 
 class _SiteShares:
@@ -782,7 +781,7 @@ class _SiteShares:
 
     def owner(self, va: Any) -> int:
         if self.ws is None:
-            ws = {site: array("d", bytes(8 * self.dim_f)) for site in self.sites}
+            ws = {site: [0.0] * self.dim_f for site in self.sites}
             vb = self.vb
             for si, ti, c, tag in self.entries:
                 ws[tag][ti] += c * vb[si]
