@@ -104,6 +104,7 @@ def test_spectrum_traces_sum_to_total():
     r = run({"observe": "1H", "spectrometer": "400 MHz", "center": 2.0, "linewidth": "1 Hz", "spectrum": True,
              "groups": [{"partner": "Pt", "count": 1, "J": "80 Hz"}]})["result"]["spectrum"]
     assert len(r["x_ppm"]) == len(r["y"]) and r["x_ppm"] == sorted(r["x_ppm"])
+    assert all(len(t["y"]) == len(r["y"]) for t in r["traces"])  # one x axis for every trace
     total = [sum(t["y"][i] for t in r["traces"]) for i in range(len(r["y"]))]
     assert max(abs(a - b) for a, b in zip(total, r["y"])) < 1e-12 * max(r["y"]) + 1e-15
 

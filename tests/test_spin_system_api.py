@@ -65,6 +65,19 @@ def test_spectrum_with_first_order_overlay():
     assert len(r["x_ppm"]) == len(r["y"]) == len(r["first_order_y"])
 
 
+def test_first_order_overlay_shares_the_exact_traces_x_values_on_a_dense_spectrum():
+    # the 16-nucleus molecule's thousands of exact lines make the sampler drop to its lowest density, which
+    # the few first-order lines alone would not: the overlay must still be sampled on the same x values.
+    # The tallest point of both traces is the methyl doublet at 0.94 ppm (first-order n+1 rule; common
+    # practice, no source)
+    spins, couplings = _benchmark_molecule()
+    r = run({"op": "spin_system", "observe": "1H", "spectrometer": "400 MHz", "spins": spins, "couplings": couplings,
+             "spectrum": True, "first_order": True, "linewidth": "0.5 Hz"})["spectrum"]
+    assert len(r["x_ppm"]) == len(r["y"]) == len(r["first_order_y"])
+    tallest = [r["x_ppm"][max(range(len(y)), key=y.__getitem__)] for y in (r["y"], r["first_order_y"])]
+    assert all(abs(x - 0.94) < 0.02 for x in tallest), tallest
+
+
 def test_aa_xx_caveat():
     # AA′XX′: chemically equivalent, magnetically inequivalent: never first order (PSB 1959)
     spins = [{"nucleus": "1H", "shift": 7.0}, {"nucleus": "1H", "shift": 7.0},

@@ -389,7 +389,8 @@ def op_multiplet(req: dict, warnings: list[str]) -> dict:
                 total = _collapsed(total, others, relaxing[0], width, shape)
             window = (total.x_Hz[0], total.x_Hz[-1])
             traces = [{"label": lab, "share": share,
-                       "y": [share * v for v in lineshape.sample_spectrum(ls, width, shape, window_Hz=window).y]}
+                       "y": [share * v for v in lineshape.sample_spectrum(ls, width, shape, window_Hz=window,
+                                                                           points=len(total.x_Hz)).y]}
                       for lab, share, ls in species_traces]
         except InputError as e:
             renamed: dict[str | None, str | None] = {"fwhm_Hz": "linewidth"}

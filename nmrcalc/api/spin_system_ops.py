@@ -259,7 +259,8 @@ def _block(spins, labels, couplings, observe, field_T, proton_MHz, req, warnings
             exact = lineshape.sample_spectrum(lines, width, shape)
             spectrum = {"x_ppm": [x / ref for x in exact.x_Hz], "y": exact.y, "linewidth_Hz": width}
             if flag(req, "first_order"):
-                fo = lineshape.sample_spectrum(first, width, shape, window_Hz=(exact.x_Hz[0], exact.x_Hz[-1]))
+                fo = lineshape.sample_spectrum(first, width, shape, window_Hz=(exact.x_Hz[0], exact.x_Hz[-1]),
+                                               points=len(exact.x_Hz))
                 spectrum["first_order_y"] = fo.y
         except InputError as e:
             if e.field == "fwhm_Hz":

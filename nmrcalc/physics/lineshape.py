@@ -151,12 +151,15 @@ def sample_spectrum(
     margin_fwhm: float = DEFAULT_MARGIN_FWHM,
     window_Hz: tuple[float, float] | None = None,
     max_points: int = MAX_POINTS,
+    points: int | None = None,
 ) -> SampledSpectrum:
     """Sample ``sticks`` = ``[(offset_Hz, intensity), ...]`` as Lorentzian or Gaussian lines.
 
     ``window_Hz = (low, high)`` overrides the automatic window (stick extent
     +- ``margin_fwhm * fwhm_Hz``); ``max_points`` may lower, not raise,
-    ``MAX_POINTS``.  Returns ``SampledSpectrum(x_Hz, y, step_Hz)`` with ``x_Hz``
+    ``MAX_POINTS``; ``points`` (with ``window_Hz``) takes exactly that many points,
+    the grid of another spectrum sampled over the same window, so that two traces
+    share their x values.  Returns ``SampledSpectrum(x_Hz, y, step_Hz)`` with ``x_Hz``
     ascending and evenly spaced, first and last points on the window edges.
     """
     lines = _check_sticks(sticks)
@@ -197,10 +200,15 @@ def sample_spectrum(
                 field="fwhm_Hz",
                 code="too_large",
             )
+    if points is not None:
+        if (window_Hz is None or isinstance(points, bool) or not isinstance(points, int)
+                or not 2 <= points <= MAX_POINTS):
+            raise InputError(f"points must be a whole number from 2 to {MAX_POINTS}, with window_Hz", field="points")
+        count = points
     if shape == "lorentzian":
         lines = sorted((x0, a * fwhm / (2.0 * math.pi)) for x0, a in lines)  # L = scale / (d² + (w/2)²)
     work, plan = _evaluations(lines, count, low, span / (count - 1), fwhm, shape)
-    if work > DENSE_EVALUATIONS and density > MIN_POINTS_PER_FWHM:
+    if work > DENSE_EVALUATIONS and density > MIN_POINTS_PER_FWHM and points is None:
         # fewer points per line width before refusing (never below MIN_POINTS_PER_FWHM)
         count = min(count, math.ceil(span / fwhm * MIN_POINTS_PER_FWHM) + 1)
         work, plan = _evaluations(lines, count, low, span / (count - 1), fwhm, shape)

@@ -27,6 +27,14 @@ export default {
       },
       { name: "Ethyl group", magnet: "60", spins: [spin("CH₃", "1H", "1.22", "3"), spin("CH₂", "1H", "3.65", "2")], couplings: [J(0, 1, "7.1")] },
       { name: "¹H–¹⁹F pair (made-up fluoromethyl group)", magnet: "400", spins: [spin("H", "1H", "4.48", "2"), spin("F", "19F", "-215", "1")], couplings: [J(0, 1, "47.5")] },
+      {
+        name: "Aryl ring + 3-methylbutyl chain (made-up, 16 H, two clusters joined by weak links)", magnet: "400",
+        spins: [spin("H-2", "1H", "7.17", "1"), spin("H-6", "1H", "7.17", "1"), spin("H-3", "1H", "7.27", "1"), spin("H-5", "1H", "7.27", "1"),
+          spin("H-4", "1H", "7.16", "1"), spin("H-1′", "1H", "2.62", "2"), spin("H-2′", "1H", "1.50", "2"), spin("H-3′", "1H", "1.60", "1"),
+          spin("H-4′", "1H", "0.94", "6")],
+        couplings: [J(0, 2, "7.6"), J(1, 3, "7.6"), J(2, 4, "7.4"), J(3, 4, "7.4"), J(0, 4, "1.2"), J(1, 4, "1.2"), J(0, 1, "1.8"),
+          J(2, 3, "1.4"), J(0, 3, "0.6"), J(1, 2, "0.6"), J(5, 6, "7.9"), J(6, 7, "6.8"), J(7, 8, "6.6"), J(0, 5, "0.6"), J(1, 5, "0.6")],
+      },
     ];
 
     const card = NMRRows.card({
@@ -247,7 +255,11 @@ export default {
     const stack = NMRPlot.create(stackBox, { label: "The system at several fields", height: 460, fileName: "spin-system-fields" });
     stack.node.id = "spins-stack";
     const stackError = el("p", { class: "form-error", id: "spins-stack-error", "aria-live": "polite" });
-    out.append(warn, spectrumTitle, spectrumBox, insetBox, checkBox, transitionBox, el("h3", { class: "sub-title" }, "Several fields on one ppm axis"), stackError, stackBox);
+    // a large system at several fields takes long: then that view waits for a tap, and the main result
+    // is never held back by it (calls run one after another in the worker)
+    const stackLater = el("button", { type: "button", class: "small-button", id: "spins-stack-run", hidden: true });
+    const stackNote = el("p", { class: "hint", id: "spins-stack-note", hidden: true });
+    out.append(warn, spectrumTitle, spectrumBox, insetBox, checkBox, transitionBox, el("h3", { class: "sub-title" }, "Several fields on one ppm axis"), stackNote, stackLater, stackError, stackBox);
     card.append(out);
     // bench notebook: pin / share this result (web/js/notebook.js)
     const pin = NMR.pinSource({
@@ -390,6 +402,8 @@ export default {
       stack.setXLabel(`δ(${r.observe}) / ppm`);
     }
 
+    let stackSequence = 0; // a tap's several-fields reply is shown only if no newer result came meanwhile
+    const STACK_WAIT_S = 4; // the several-fields view is computed at once when it takes less (estimated)
     const { run, schedule } = NMR.calculation({
       form: formNode, fields: Object.values(fixed), delayMs: 500, busy, cancelButton: cancel, formError,
       cancelText: "Cancelled. Change an input or press Simulate to try again.",
@@ -397,13 +411,22 @@ export default {
         const overlay = fixed.overlay.read().value;
         const single = { ...baseRequest(), ...NMR.magnetRequest(fixed.magnet.read()), first_order: true };
         const several = { ...baseRequest(), fields: fixed.fields.read().value };
+        const started = performance.now();
+        const one = await NMR.api(single);
+        const seconds = (performance.now() - started) / 1000;
         // an empty list of several fields: no several-fields view (not an error about the magnet)
-        const [one, many] = await Promise.all([NMR.api(single), several.fields === "" ? null : NMR.api(several)]);
+        const count = several.fields === "" ? 0 : String(several.fields).split(/[,;\s]+/).filter(Boolean).length;
+        let many = null;
+        if (count && one.ok && seconds * count > STACK_WAIT_S) many = { later: true, several, seconds: seconds * count };
+        else if (count) many = await NMR.api(several);
         return { overlay, single, one, many };
       },
       show: ({ overlay, single, one, many }) => {
         report.clear();
         stackError.textContent = "";
+        stackSequence += 1;
+        stackLater.hidden = true;
+        stackNote.hidden = true;
         card.classList.toggle("is-error", !one.ok);
         if (!one.ok) {
           report.show(one.error.field, one.error.message);
@@ -414,18 +437,40 @@ export default {
         out.classList.remove("stale");
         renderSingle(one.result, one.warnings || [], overlay, single);
         pin.update({ request: single, result: one.result });
-        if (!many) {
+        if (many && many.later) {
           stack.node.hidden = true;
-        } else if (many.ok) {
-          renderFields(many.result);
-          stack.node.hidden = false;
+          stackNote.hidden = false;
+          stackNote.textContent = `This system takes about ${Math.ceil(many.seconds)} s at all the fields listed above, so that view waits for you.`;
+          stackLater.hidden = false;
+          stackLater.textContent = "Draw it at those fields";
+          stackLater.onclick = async () => {
+            const mine = ++stackSequence;
+            stackLater.disabled = true;
+            stackNote.textContent = "Working out the other fields…";
+            const reply = await NMR.api(many.several);
+            stackLater.disabled = false;
+            if (mine !== stackSequence) return;
+            stackLater.hidden = true;
+            stackNote.hidden = true;
+            showFields(reply);
+          };
         } else {
-          if (many.error.field && many.error.field.startsWith("fields")) fixed.fields.setError(many.error.message);
-          else stackError.textContent = many.error.message;
-          stack.node.hidden = true;
+          showFields(many);
         }
       },
     });
+    function showFields(many) {
+      if (!many) {
+        stack.node.hidden = true;
+      } else if (many.ok) {
+        renderFields(many.result);
+        stack.node.hidden = false;
+      } else {
+        if (many.error.field && many.error.field.startsWith("fields")) fixed.fields.setError(many.error.message);
+        else stackError.textContent = many.error.message;
+        stack.node.hidden = true;
+      }
+    }
 
     drawRows();
     NMR.whenShown(card, run);
