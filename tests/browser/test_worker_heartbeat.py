@@ -63,10 +63,12 @@ def test_silently_stopped_worker_is_noticed_and_restarted(dist, open_page):
 
     # stopped in the middle of a calculation (after it answered the heartbeat and started): the
     # silence is noticed (the limit shortened from 180 s to 3 s for the test), the call fails, Python restarts
+    # (10 spins, every pair coupled: several seconds in the page on any machine, so still running at 1.5 s)
     page.evaluate("nmrcalcTest.setSilentLimit(3000)")
     page.evaluate("""() => { window.__midCall = nmrcalcTest.api({op: "spin_system", observe: "1H", spectrometer: "400 MHz",
-        spins: Array.from({length: 9}, (_, k) => ({nucleus: "1H", shift: `${1 + 0.11 * k} ppm`})),
-        couplings: Array.from({length: 8}, (_, k) => ({between: [k, k + 1], J: "7 Hz"}))}); }""")
+        spins: Array.from({length: 10}, (_, k) => ({nucleus: "1H", shift: `${1 + 0.2 * k} ppm`})),
+        couplings: Array.from({length: 10}, (_, i) => Array.from({length: 9 - i}, (_, d) => (
+          {between: [i, i + d + 1], J: `${2 + ((7 * i + 3 * d) % 8)} Hz`}))).flat()}); }""")
     page.wait_for_timeout(1500)
     page.evaluate("nmrcalcTest.worker().terminate()")
     reply = page.evaluate("() => window.__midCall")
