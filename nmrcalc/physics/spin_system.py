@@ -431,7 +431,8 @@ def _joined_split(site_tuple: tuple[Site, ...], J_items: tuple[tuple[tuple[int, 
 
 def clusters(sites: Any, couplings: Any, observe: str, weak_link_tol_Hz: float | None = None, *,
              factor_equivalence: bool = True) -> list[dict]:
-    """Clusters solved apart: {"spins", "method", "error_Hz", "flip_flop_Hz", "mixing_Hz", "links"}.
+    """Clusters solved apart: {"spins", "method", "error_Hz", "flip_flop_Hz", "mixing_Hz", "links",
+    "partner_field"} (true: re-solved in each field of its one partner's eigenstates, ``_PartnerField``).
 
     Sites joined by no coupling path are exact apart.  With ``weak_link_tol_Hz``
     a coupling between like observed sites with |Δν| >= 20 |J| and J²/|Δν| <=
