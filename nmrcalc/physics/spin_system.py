@@ -803,37 +803,61 @@ class _Owner:
         return self.shares.owner(self.va)
 
 
+class _JoinedFields:
+    """A partner cluster's eigenstates as the field each gives the linked sites of ``component``.
+
+    An eigenstate of ``other`` with <Σ I_zb> = z_b acts on each linked site a of
+    ``component`` as an extra shift g_a = Σ_b J_ab z_b (first order in the weak links).
+    States with g equal within a cell of tol_Hz / D per site, D = Σ_a 2 n_a I_a bounding
+    Σ |d_a| of a line, are joined at their weighted mean g (``joined``: cell key → (mean g
+    per site of ``own_sites``, weight)): the shifts they give a line differ by at most
+    tol_Hz, the tolerance at which lines are merged anyway.
+    """
+
+    def __init__(self, component: Iterable[int], other: set[int], states: list[tuple[float, tuple[float, ...]]],
+                 weak: Links, slot: dict[int, int], sites: list[Site], tol_Hz: float) -> None:
+        own = set(component)
+        self.links = [(a, slot[b], J_ab) for (i, j), J_ab in weak.items()
+                      for a, b in ((i, j), (j, i)) if a in own and b in other]
+        self.own_sites = sorted({a for a, _, _ in self.links})
+        bound = sum(2 * sites[a].count * float(sites[a].spin) for a in self.own_sites)
+        self.cell = max(tol_Hz, 1e-9) / (bound or 1.0)
+        sums: dict[tuple[int, ...], list] = {}
+        for p, z in states:
+            g = self.field(z)
+            acc = sums.setdefault(self.key(z), [[0.0] * len(g), 0.0])
+            acc[0] = [u + p * x for u, x in zip(acc[0], g)]
+            acc[1] += p
+        self.joined = {k: ([u / w for u in total], w) for k, (total, w) in sums.items() if w > 0.0}
+
+    def field(self, z: tuple[float, ...]) -> list[float]:
+        """g per site of ``own_sites`` in a partner state with <Σ I_z> z (per slot)."""
+        g = [0.0] * len(self.own_sites)
+        for a, b, J_ab in self.links:
+            g[self.own_sites.index(a)] += J_ab * z[b]
+        return g
+
+    def key(self, z: tuple[float, ...]) -> tuple[int, ...]:
+        return tuple(round(x / self.cell) for x in self.field(z))
+
+
 def _partner_shifts(component: set[int], other: set[int], states: list[tuple[float, tuple[float, ...]]],
                     weak: Links, slot: dict[int, int], sites: list[Site], tol_Hz: float) -> Spread | None:
     """The other cluster's eigenstates as the shifts they give this cluster's lines.
 
     A line of ``component`` whose linked sites change <Σ I_z> by d moves by Σ_a d_a g_a in
-    an eigenstate of ``other`` with g_a = Σ_b J_ab <I_zb> (first order in the weak links).
-    States with g equal within a cell of tol_Hz / D per slot, D = Σ_a 2 n_a I_a bounding
-    Σ |d_a|, are joined at their weighted mean g: the shifts they give differ by at most
-    tol_Hz, the tolerance at which lines are merged anyway.  Returns None without links,
-    else (columns, means, spans, weights): per slot a the g_a of every joined state, the
-    weighted mean g_a and the max − min of g_a; and the joined states' weights.
+    an eigenstate of ``other`` (``_JoinedFields``, which joins states with nearly equal g).
+    Returns None without links, else (columns, means, spans, weights): per slot a the g_a
+    of every joined state, the weighted mean g_a and the max − min of g_a; and the joined
+    states' weights.
     """
-    links = [(slot[a], slot[b], J_ab) for (i, j), J_ab in weak.items()
-             for a, b in ((i, j), (j, i)) if a in component and b in other]
-    if not links:
+    fields = _JoinedFields(component, other, states, weak, slot, sites, tol_Hz)
+    if not fields.links:
         return None
-    own_slots = sorted({a for a, _, _ in links})
-    bound = sum(2 * sites[s].count * float(sites[s].spin) for s in slot if slot[s] in own_slots)
-    cell = max(tol_Hz, 1e-9) / bound
-    cells: dict[tuple, list] = {}
-    for p, z in states:
-        g = [0.0] * len(own_slots)
-        for a, b, J_ab in links:
-            g[own_slots.index(a)] += J_ab * z[b]
-        acc = cells.setdefault(tuple(round(x / cell) for x in g), [[0.0] * len(g), 0.0])
-        acc[0] = [u + p * x for u, x in zip(acc[0], g)]
-        acc[1] += p
-    joined = [([u / w for u in sums], w) for sums, w in cells.values() if w > 0.0]
+    joined = list(fields.joined.values())
     weights = [w for _, w in joined]
     total = sum(weights)
-    columns = [(a, [g[k] for g, _ in joined]) for k, a in enumerate(own_slots)]
+    columns = [(slot[a], [g[k] for g, _ in joined]) for k, a in enumerate(fields.own_sites)]
     means = [(a, sum(map(mul, column, weights)) / total) for a, column in columns]
     spans = [(a, max(column) - min(column)) for a, column in columns]
     return columns, means, spans, weights
@@ -845,7 +869,7 @@ class _PartnerField:
     The weak links' I_za I_zb part with B's <I_zb> in each of B's eigenstates β is a shift
     g_a(β) = Σ_b J_ab <I_zb>_β of each linked site a of A; A is diagonalized with those
     shifts (exact in A, so A's own level mixing is included), B's states joined in cells
-    of g as in ``_partner_shifts``.  A's lines in cell c carry c's weight.  A line of B from
+    of g (``_JoinedFields``).  A's lines in cell c carry c's weight.  A line of B from
     β to β′ moves A from its eigenstates in field g(β) to those in g(β′): it is split into
     E_A(α′; g(β′)) − E_A(α; g(β)) with weight |<α′(g(β′))|α(g(β))>|² / dim A (``spread``).
     Neglected: B's eigenstates mixed by A's field (bounded by ``_mixing_bound`` of B) and
@@ -855,38 +879,19 @@ class _PartnerField:
     def __init__(self, component: list[int], units: list[_Unit], partner: set[int],
                  states: list[tuple[float, tuple[float, ...]]], weak: Links, slot: dict[int, int], sites: list[Site],
                  tol_Hz: float, full_dim: int) -> None:
-        own = set(component)
         self.partner = partner
-        self.links = [(a, slot[b], J_ab) for (i, j), J_ab in weak.items()
-                      for a, b in ((i, j), (j, i)) if a in own and b in partner]
-        self.own_sites = sorted({a for a, _, _ in self.links})
-        bound = sum(2 * sites[a].count * float(sites[a].spin) for a in self.own_sites)
-        self.cell = max(tol_Hz, 1e-9) / bound
+        self.fields = _JoinedFields(component, partner, states, weak, slot, sites, tol_Hz)
         self.tol_Hz, self.full_dim = max(tol_Hz, 1e-9), full_dim
-        sums: dict[tuple[int, ...], list] = {}
-        for p, z in states:
-            g = self.field(z)
-            acc = sums.setdefault(self.key(z), [[0.0] * len(g), 0.0])
-            acc[0] = [u + p * x for u, x in zip(acc[0], g)]
-            acc[1] += p
-        self.weights = {k: w for k, (_, w) in sums.items() if w > 0.0}
-        self.units = {k: [replace(u, offset_Hz=u.offset_Hz + sums[k][0][self.own_sites.index(u.site)] / w)
-                          if u.site in self.own_sites else u for u in units] for k, w in self.weights.items()}
+        own = self.fields.own_sites
+        self.weights = {k: w for k, (_, w) in self.fields.joined.items()}
+        self.units = {k: [replace(u, offset_Hz=u.offset_Hz + g[own.index(u.site)]) if u.site in own else u
+                          for u in units] for k, (g, _) in self.fields.joined.items()}
         self.blocks: dict[tuple[int, ...], list[tuple[int, dict]]] = {}
         self._spreads: dict[tuple, list[tuple[float, float]]] = {}
 
-    def field(self, z: tuple[float, ...]) -> list[float]:
-        g = [0.0] * len(self.own_sites)
-        for a, b, J_ab in self.links:
-            g[self.own_sites.index(a)] += J_ab * z[b]
-        return g
-
-    def key(self, z: tuple[float, ...]) -> tuple[int, ...]:
-        return tuple(round(x / self.cell) for x in self.field(z))
-
     def spread(self, z_i: tuple[float, ...], z_f: tuple[float, ...]) -> list[tuple[float, float]]:
         """(shift, weight) of a line of B whose eigenstates have <I_z> z_i → z_f: A's energy change."""
-        k_i, k_f = self.key(z_i), self.key(z_f)
+        k_i, k_f = self.fields.key(z_i), self.fields.key(z_f)
         if k_i == k_f:
             return [(0.0, 1.0)]
         if (k_i, k_f) not in self._spreads:

@@ -257,7 +257,7 @@ export default {
     const stackError = el("p", { class: "form-error", id: "spins-stack-error", "aria-live": "polite" });
     // a large system at several fields takes long: then that view waits for a tap, and the main result
     // is never held back by it (calls run one after another in the worker)
-    const stackLater = el("button", { type: "button", class: "small-button", id: "spins-stack-run", hidden: true });
+    const stackLater = el("button", { type: "button", class: "small-button", id: "spins-stack-run", hidden: true }, "Draw it at those fields");
     const stackNote = el("p", { class: "hint", id: "spins-stack-note", hidden: true });
     out.append(warn, spectrumTitle, spectrumBox, insetBox, checkBox, transitionBox, el("h3", { class: "sub-title" }, "Several fields on one ppm axis"), stackNote, stackLater, stackError, stackBox);
     card.append(out);
@@ -442,7 +442,6 @@ export default {
           stackNote.hidden = false;
           stackNote.textContent = `This system takes about ${Math.ceil(many.seconds)} s at all the fields listed above, so that view waits for you.`;
           stackLater.hidden = false;
-          stackLater.textContent = "Draw it at those fields";
           stackLater.onclick = async () => {
             const mine = ++stackSequence;
             stackLater.disabled = true;
