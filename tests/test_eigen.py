@@ -90,3 +90,19 @@ def test_sparse_and_split_matrices_take_the_krylov_route(n):
     # reference: numpy.linalg.eigvalsh
     assert numpy.allclose(values, numpy.linalg.eigvalsh(A), rtol=0, atol=1e-11 * numpy.abs(A).max() * n)
     _check_decomposition(A, values, vectors)
+
+
+def test_sparse_rows_apply_like_a_dense_product():
+    # rows with 0, 1, 2 and many non-zero entries (the getters pad fewer than two); reference numpy
+    from nmrcalc.physics.lanczos import multiplier, row_applier, sparse_part
+
+    rng = numpy.random.default_rng(7)
+    n = 30
+    A = numpy.zeros((n, n))
+    for i in range(n):
+        cols = rng.choice(n, size=[0, 1, 2, 5, 25][i % 5], replace=False)
+        A[i, cols] = rng.normal(size=len(cols))
+    x = rng.normal(size=n)
+    assert numpy.allclose(multiplier(A.tolist())(x.tolist()), A @ x, rtol=0, atol=1e-13)
+    rows = [sparse_part(A[i, A[i] != 0].tolist(), numpy.flatnonzero(A[i]).tolist()) for i in range(n)]
+    assert numpy.allclose(row_applier(rows)(x.tolist()), A @ x, rtol=0, atol=1e-13)

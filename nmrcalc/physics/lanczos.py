@@ -23,11 +23,14 @@ import math
 import random
 import sys
 from collections.abc import Callable, Sequence
-from operator import itemgetter, mul
+from itertools import repeat
+from operator import call, itemgetter, mul, sub
 
 _EPS = sys.float_info.epsilon  # IEEE-754 double: 2.22e-16
 
 Vector = list[float]
+Getter = Callable[[Sequence[float]], Sequence[float]]  # a vector ↦ the entries a row uses
+_WHOLE: Getter = itemgetter(slice(None))  # a dense row's getter: the whole vector
 
 
 def _dot_python(a: Sequence[float], b: Sequence[float]) -> float:
@@ -38,23 +41,38 @@ def _dot_python(a: Sequence[float], b: Sequence[float]) -> float:
 dot: Callable[[Sequence[float], Sequence[float]], float] = getattr(math, "sumprod", _dot_python)
 
 
+def sparse_part(values: list[float], idx: list[int]) -> tuple[list[float], Getter]:
+    """(coefficients, getter) with dot(coefficients, getter(x)) = Σ_k values[k] x[idx[k]].
+
+    ``itemgetter`` returns a tuple only from two indices on, so fewer entries are padded
+    with index 0 and coefficient 0 (x must be non-empty).
+    """
+    pad = max(0, 2 - len(idx))
+    return list(values) + [0.0] * pad, itemgetter(*idx, *[0] * pad)
+
+
+def row_applier(parts: list[tuple[Vector, Getter]]) -> Callable[[Vector], Vector]:
+    """x ↦ [dot(coefficients, getter(x)) for each (coefficients, getter) in ``parts``].
+
+    The loop over rows runs in C (``map`` with ``operator.call``), which matters in
+    WebAssembly, where each Python-level step costs several times what it costs natively.
+    """
+    coefs = [c for c, _ in parts]
+    picks = [p for _, p in parts]
+
+    def apply(x: Vector) -> Vector:
+        return list(map(dot, coefs, map(call, picks, repeat(x))))
+    return apply
+
+
 def multiplier(rows: list[Vector]) -> Callable[[Vector], Vector]:
     """x ↦ A x for the square matrix ``rows``, using only its non-zero entries."""
     n = len(rows)
-    parts: list[tuple[Vector, Callable[[Vector], Sequence[float]] | None]] = []
+    parts = []
     for row in rows:
         idx = [j for j, x in enumerate(row) if x != 0.0]
-        if len(idx) > n // 2:
-            parts.append((row, None))
-        elif len(idx) >= 2:
-            parts.append(([row[j] for j in idx], itemgetter(*idx)))
-        else:
-            # one entry: the getter needs two indices to return a tuple, so pair it with a 0
-            parts.append(([row[j] for j in idx] + [0.0], itemgetter(*idx, *idx) if idx else lambda x: [0.0]))
-
-    def times(x: Vector) -> Vector:
-        return [dot(vals, pick(x)) if pick else dot(vals, x) for vals, pick in parts]
-    return times
+        parts.append((row, _WHOLE) if len(idx) > n // 2 else sparse_part([row[j] for j in idx], idx))
+    return row_applier(parts)
 
 
 def tridiagonalize(rows: list[Vector], rng: random.Random) -> tuple[Vector, Vector, list[Vector]]:
@@ -101,8 +119,8 @@ def _orthogonalized(w: Vector, Q: list[Vector], cols: list[Vector]) -> Vector:
     """w minus its part along every row of Q (classical Gram–Schmidt, twice when needed)."""
     norm = math.sqrt(dot(w, w))
     for _ in range(2):
-        c = [dot(q, w) for q in Q]
-        w = [x - dot(c, col) for x, col in zip(w, cols)]
+        c = list(map(dot, Q, repeat(w)))
+        w = list(map(sub, w, map(dot, repeat(c), cols)))
         new = math.sqrt(dot(w, w))
         if new > 0.7071 * norm:
             break
