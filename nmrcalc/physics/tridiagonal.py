@@ -25,6 +25,8 @@ import random
 import sys
 from operator import mul
 
+from nmrcalc.physics.lanczos import uniform_draws
+
 _EPS = sys.float_info.epsilon  # IEEE-754 double: 2.22e-16
 _MAX_QL_ITERATIONS = 60  # per eigenvalue; 2-3 are typical
 _MAX_STEPS = 5  # inverse-iteration steps per vector (dstein: MAXITS)
@@ -131,7 +133,7 @@ def _piece_pairs(d: list[float], e: list[float], rng: random.Random) -> tuple[li
                 cluster = []
         previous = x
         solve = _factor(d, e, x, tiny)
-        b = [rng.uniform(-1.0, 1.0) for _ in range(m)]
+        b = uniform_draws(rng, m)
         checks = 0
         for _ in range(_MAX_STEPS):
             scale = m * norm1 * max(_EPS, abs(solve.last_pivot)) / sum(map(abs, b))
@@ -201,3 +203,4 @@ class _factor:
         for i in range(m - 3, -1, -1):
             b[i] = (b[i] - sup[i] * b[i + 1] - sup2[i] * b[i + 2]) / diag[i]
         return b
+
