@@ -460,6 +460,7 @@ def spin_section(bench: Bench) -> list:
     """Exact spectra of coupled spins: 8 all-coupled in the page and on CPython; largest within 5 s."""
     from nmrcalc.physics.spin_system import Site, simulate
 
+    gauge = _gauge_s()
     base = {"op": "spin_system", "observe": "1H", "spectrometer": "400 MHz"}
     spins, couplings = _all_coupled(8)
     request = {**base, "spins": spins, "couplings": couplings}
@@ -517,7 +518,23 @@ def spin_section(bench: Bench) -> list:
     out.append(f"  largest chain within {SPIN_LIMIT_S:g} s: factored {best[True]} nuclei"
                + (" (still under the limit at k = 8, the largest tried)" if going[True] else "")
                + f", expanded {best[False]} nuclei")
-    return out + _molecule_rows(bench, base)
+    return [_gauge("at start", gauge)] + out + _molecule_rows(bench, base) + [_gauge("at end")]
+
+
+def _gauge(when: str, seconds: float | None = None) -> str:
+    """One line: a fixed CPython workload's time, so that runs on a machine of varying speed compare."""
+    return f"  machine gauge {when}: 10^7 CPython additions in {seconds if seconds is not None else _gauge_s():.3f} s"
+
+
+def _gauge_s() -> float:
+    """Seconds of a fixed pure-CPython loop (10^7 integer additions), the best of three."""
+    best = float("inf")
+    for _ in range(3):
+        t0, total = time.perf_counter(), 0
+        for i in range(10 ** 7):
+            total += i
+        best = min(best, time.perf_counter() - t0)
+    return best
 
 
 def _phenyl_isopentyl() -> tuple[list, list]:

@@ -211,7 +211,7 @@ def sample_spectrum(
     if work > DENSE_EVALUATIONS and density > MIN_POINTS_PER_FWHM and points is None:
         # fewer points per line width before refusing (never below MIN_POINTS_PER_FWHM)
         count = min(count, math.ceil(span / fwhm * MIN_POINTS_PER_FWHM) + 1)
-        work, plan = _evaluations(lines, count, low, span / (count - 1), fwhm, shape)
+        work, plan = _evaluations(lines, count, low, span / (count - 1), fwhm, shape, plan)
     if work > MAX_EVALUATIONS:
         raise InputError(
             f"{len(lines)} lines on {count} points need about {work} evaluations, above the limit of "
@@ -240,11 +240,12 @@ def sample_spectrum(
 
 
 def _evaluations(lines: list[tuple[float, float]], count: int, low: float, step: float, fwhm: float,
-                 shape: str) -> tuple[int, _LorentzianPlan | None]:
-    """Profile evaluations the sampling will make, and the Lorentzian plan that makes them."""
+                 shape: str, earlier: _LorentzianPlan | None = None) -> tuple[int, _LorentzianPlan | None]:
+    """Profile evaluations the sampling will make, and the Lorentzian plan that makes them
+    (reusing the bin tree of an ``earlier`` plan of the same lines on another grid)."""
     if shape == "gaussian":
         return len(lines) * min(count, 2 * math.ceil(GAUSS_CUTOFF_SIGMA * fwhm * _FWHM_TO_SIGMA / step) + 1), None
-    plan = _LorentzianPlan(lines, count, low, step, fwhm)
+    plan = _LorentzianPlan(lines, count, low, step, fwhm, None if earlier is None else earlier.levels)
     return plan.work, plan
 
 
@@ -268,10 +269,12 @@ class _LorentzianPlan:
     """Knots, the bin tree and the evaluation count of one Lorentzian sampling (module docstring).
 
     ``lines`` = sorted (position, scale) with L = scale / (d² + (w/2)²).  ``direct`` is True
-    on grids of at most ``DIRECT_FWHM`` widths: every line on every point.
+    on grids of at most ``DIRECT_FWHM`` widths: every line on every point.  ``levels``: the bin
+    tree of the same lines and width (``_bin_levels``), which does not depend on the grid.
     """
 
-    def __init__(self, lines: list[tuple[float, float]], count: int, low: float, step: float, fwhm: float):
+    def __init__(self, lines: list[tuple[float, float]], count: int, low: float, step: float, fwhm: float,
+                 levels: list[list[_Bin]] | None = None):
         positions = [x for x, _ in lines]
         n = len(positions)
         # every point is a knot where the spacing rule gives under 2 steps: within D of a line
@@ -301,22 +304,7 @@ class _LorentzianPlan:
             knots.append(k)
         self.knots = knots
         self.xk = [low + k * step for k in knots]
-        self.levels: list[list[_Bin]] = [[_Bin(x, x, x, a, 0.0, 0.0, i, i + 1) for i, (x, a) in enumerate(lines)]]
-        extent = BIN_FWHM * fwhm
-        while len(self.levels[-1]) > 1 and extent < 4 * (positions[-1] - positions[0] + fwhm):
-            below, level, start = self.levels[-1], [], 0
-            for i in range(1, len(below) + 1):
-                if i == len(below) or below[i].hi - below[start].lo > extent:
-                    part = below[start:i]
-                    total = sum(b.scale for b in part)
-                    centre = sum(b.centre * b.scale for b in part) / total if total > 0 else part[0].centre
-                    spread = sum(b.spread + b.scale * (b.centre - centre) ** 2 for b in part)
-                    # (3/4) (var/w²) (w/d)⁴ <= BIN_ERROR with var = spread / total
-                    reach = fwhm * (0.75 * spread / (total * fwhm * fwhm) / BIN_ERROR) ** 0.25 if total > 0 else 0.0
-                    level.append(_Bin(part[0].lo, part[-1].hi, centre, total, spread, reach, start, i))
-                    start = i
-            self.levels.append(level)
-            extent *= 4
+        self.levels = _bin_levels(lines, fwhm) if levels is None else levels
         self.work = 0
         for b in self.levels[-1]:
             self._walk(len(self.levels) - 1, b, 0, len(knots), None, None)
@@ -350,6 +338,28 @@ class _LorentzianPlan:
         if level and z > a:
             for part in self.levels[level - 1][b.first:b.end]:
                 self._walk(level - 1, part, a, z, total, half2)
+
+
+def _bin_levels(lines: list[tuple[float, float]], fwhm: float) -> list[list[_Bin]]:
+    """The bin tree of sorted Lorentzian ``lines``: level 0 the lines, each level above joins bins
+    spanning up to ``BIN_FWHM`` line widths times 4 per level (module docstring)."""
+    levels = [[_Bin(x, x, x, a, 0.0, 0.0, i, i + 1) for i, (x, a) in enumerate(lines)]]
+    extent = BIN_FWHM * fwhm
+    while len(levels[-1]) > 1 and extent < 4 * (lines[-1][0] - lines[0][0] + fwhm):
+        below, level, start = levels[-1], [], 0
+        for i in range(1, len(below) + 1):
+            if i == len(below) or below[i].hi - below[start].lo > extent:
+                part = below[start:i]
+                total = sum(b.scale for b in part)
+                centre = sum(b.centre * b.scale for b in part) / total if total > 0 else part[0].centre
+                spread = sum(b.spread + b.scale * (b.centre - centre) ** 2 for b in part)
+                # (3/4) (var/w²) (w/d)⁴ <= BIN_ERROR with var = spread / total
+                reach = fwhm * (0.75 * spread / (total * fwhm * fwhm) / BIN_ERROR) ** 0.25 if total > 0 else 0.0
+                level.append(_Bin(part[0].lo, part[-1].hi, centre, total, spread, reach, start, i))
+                start = i
+        levels.append(level)
+        extent *= 4
+    return levels
 
 
 def _lorentzian_sum(lines: list[tuple[float, float]], fwhm: float, x_Hz: list[float],
