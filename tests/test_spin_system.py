@@ -19,6 +19,7 @@ from nmrcalc.physics.spin_system import (
     problem_size,
     simulate,
     total_spin_multiplicities,
+    transitions,
 )
 
 HALF = Fraction(1, 2)
@@ -237,6 +238,21 @@ def test_random_groups_factor_like_expanded(seed):
     # reference: the same Hamiltonian over individual spins, diagonalized by numpy.linalg.eigh
     expanded = simulate(sites, couplings, "1H", use_numpy=True, factor_equivalence=False)
     same_lines(simulate(sites, couplings, "1H", use_numpy=False), expanded)
+
+
+@pytest.mark.parametrize("seed, factor", [(71, True), (72, False), (73, False)])
+def test_pure_python_names_the_same_spin_as_numpy(seed, factor):
+    # the pure path stops working out a line's per-site parts once the best exceeds the next
+    # Cauchy–Schwarz bound; reference: every part computed by numpy matrix products (numpy.linalg.eigh)
+    rng = random.Random(seed)
+    sites = [H1(rng.uniform(0, 40), rng.choice([1, 1, 2])) for _ in range(4)] + [Site("19F", HALF, 300.0)]
+    couplings = [(i, j, rng.uniform(-12, 12)) for i in range(5) for j in range(i + 1, 5) if rng.random() < 0.9]
+    kwargs = {"factor_equivalence": factor, "merge_tol_Hz": 1e-6}
+    pure = transitions(sites, couplings, "1H", use_numpy=False, **kwargs)
+    ref = transitions(sites, couplings, "1H", use_numpy=True, **kwargs)
+    assert len(pure) == len(ref) > 20
+    same_lines([(f, i) for f, i, _ in pure], [(f, i) for f, i, _ in ref])
+    assert [site for *_, site in pure] == [site for *_, site in ref]
 
 
 def test_total_spin_multiplicities():
