@@ -806,7 +806,8 @@ class _SiteShares:
         grouped: dict[int, list[tuple[int, int, float]]] = {site: [] for site in sites}
         for si, ti, c, tag in entries:
             grouped[tag].append((si, ti, c))
-        # per site: (c_e, pick i_b[s_e], (c_e², pick i_b[s_e]²) for the norm, (1, pick f_a[t_e]) likewise)
+        # per site: the c_e; (c_e², getter of the s_e) for ‖c_e i_b[s_e]‖ from i_b²; (1, getter of the t_e)
+        # for ‖f_a[t_e]‖ from f_a²; the same getters pick i_b[s_e] and f_a[t_e] for the part itself
         self.by_site = []
         for site in sites:
             rows_i = [e[0] for e in grouped[site]]
