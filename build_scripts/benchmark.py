@@ -518,12 +518,12 @@ def spin_section(bench: Bench) -> list:
     out.append(f"  largest chain within {SPIN_LIMIT_S:g} s: factored {best[True]} nuclei"
                + (" (still under the limit at k = 8, the largest tried)" if going[True] else "")
                + f", expanded {best[False]} nuclei")
-    return [_gauge("at start", gauge)] + out + _molecule_rows(bench, base) + [_gauge("at end")]
+    return [_gauge("at start", gauge)] + out + _molecule_rows(bench, base) + [_gauge("at end", _gauge_s())]
 
 
-def _gauge(when: str, seconds: float | None = None) -> str:
-    """One line: a fixed CPython workload's time, so that runs on a machine of varying speed compare."""
-    return f"  machine gauge {when}: 10^7 CPython additions in {seconds if seconds is not None else _gauge_s():.3f} s"
+def _gauge(when: str, seconds: float) -> str:
+    """One line: a fixed CPython workload's time (``_gauge_s``), so that runs on a machine of varying speed compare."""
+    return f"  machine gauge {when}: 10^7 CPython additions in {seconds:.3f} s"
 
 
 def _gauge_s() -> float:
