@@ -12,9 +12,8 @@ Two methods, one answer:
 * from ``KRYLOV_MIN`` rows on: Lanczos tridiagonalization with full reorthogonalization
   (``lanczos``), eigenvalues of T by QL without vectors and its eigenvectors by inverse
   iteration (``tridiagonal.eigenpairs``), then y ↦ Q y and a Rayleigh quotient per
-  vector.  Nearly all the work is inner products of whole lists, which ``math.sumprod``
-  does in C (10 all-coupled spins: 5.0 s of eigensolves on CPython 3.13, where the
-  first way made the whole calculation take about 50 s).
+  vector.  The O(n³) work is big-integer linear combinations of whole vectors
+  (``packed``), done in C.
   The result is accepted only after it is checked: every residual ‖A z − λ z‖∞ and the
   orthogonality ‖(ZᵀZ − I) u‖ for three random u must stay within ``_TOL`` · n · max|A|;
   otherwise (or when an inverse iteration does not converge) the first way is used.
@@ -33,12 +32,12 @@ from operator import add, mul, sub
 
 from nmrcalc.errors import InputError
 from nmrcalc.physics.lanczos import dot, multiplier, tridiagonalize
+from nmrcalc.physics.packed import combine
 from nmrcalc.physics.tridiagonal import eigenpairs, implicit_ql
 
 KRYLOV_MIN = 24  # rows from which the Lanczos route is tried
 _TOL = 1e-13  # accepted residual and loss of orthogonality, times n · max|A|
 _SEED = 20261202  # start vectors: the same matrix always gives the same vectors
-_copy = (0.0).__add__  # x ↦ a new float equal to x
 
 
 def eigh(matrix: list[list[float]]) -> tuple[list[float], list[list[float]]]:
@@ -73,18 +72,15 @@ def _krylov_eigh(a: list[list[float]]) -> tuple[list[float], list[list[float]]] 
     for i in range(n):
         rows[i][i] -= shift
     rng = random.Random(_SEED)
-    alpha, beta, cols = tridiagonalize(rows, rng)
+    alpha, beta, basis = tridiagonalize(rows, rng)
     pairs = eigenpairs(alpha, beta, rng)
     if pairs is None:
         return None
     times = multiplier(rows)
     tol = _TOL * n * size
-    # fresh copies: a column's entries were made at n different steps, scattered in memory, and
-    # the n² inner products below run measurably faster on entries that lie together
-    cols = [list(map(_copy, col)) for col in cols]
     values, vectors = [], []
     for y in pairs[1]:
-        z = list(map(dot, repeat(y), cols))
+        z = combine(basis, n, y)
         az = times(z)
         lam = dot(z, az)
         if max(map(abs, map(sub, az, map(lam.__mul__, z)))) > tol:

@@ -14,9 +14,9 @@ Math. Comp. 30, 772-795 (1976)), so Q stays orthonormal to rounding.  When β_k 
 orthogonal to all earlier ones continues the run and β_k = 0 splits T.
 
 Why here: a spin Hamiltonian block is sparse (a row has one entry per flip-flop pair), so
-A q costs one short inner product per row, and every other step is an inner product of
-whole lists, which ``math.sumprod`` (Python ≥ 3.12) does in C.  The columns of Q are kept
-beside its rows so that the Gram–Schmidt update is also a list of inner products.
+A q costs one short inner product per row (``math.sumprod``, Python ≥ 3.12, in C).  The
+Gram–Schmidt products Q w and Qᵀ c, the O(n³) part, are big-integer linear combinations
+(``packed``): the rows of Q are packed as they come, and so, every 32 rows, are its columns.
 """
 
 import math
@@ -25,6 +25,8 @@ import sys
 from collections.abc import Callable, Sequence
 from itertools import repeat
 from operator import call, itemgetter, mul, sub
+
+from nmrcalc.physics.packed import combine, pack
 
 _EPS = sys.float_info.epsilon  # IEEE-754 double: 2.22e-16
 
@@ -75,65 +77,90 @@ def multiplier(rows: list[Vector]) -> Callable[[Vector], Vector]:
     return row_applier(parts)
 
 
-def tridiagonalize(rows: list[Vector], rng: random.Random) -> tuple[Vector, Vector, list[Vector]]:
-    """(α, β, columns of Q) with Qᵀ A Q = tridiagonal(α, β); ``cols[t][k]`` is entry t of q_k.
+def tridiagonalize(rows: list[Vector], rng: random.Random) -> tuple[Vector, Vector, list[int]]:
+    """(α, β, the rows of Q, each ``packed``) with Qᵀ A Q = tridiagonal(α, β).
 
-    ``β[k]`` couples k and k+1; ``β[n−1] = 0``.
+    ``β[k]`` couples k and k+1; ``β[n−1] = 0``.  ``packed.combine(result, n, y)`` is Qᵀ y.
     """
     n = len(rows)
     times = multiplier(rows)
     scale = math.sqrt(sum(x * x for row in rows for x in row))
     breakdown = n * _EPS * scale
-    Q: list[Vector] = []
-    cols: list[Vector] = [[] for _ in range(n)]
+    basis = _Basis(n)
     alpha: Vector = []
     beta: Vector = []
-    q = _fresh(rng, Q, cols, n)
+    q = _fresh(rng, basis)
     for k in range(n):
-        Q.append(q)
-        for col, x in zip(cols, q):
-            col.append(x)
+        basis.append(q)
         w = times(q)
         a = dot(q, w)
         alpha.append(a)
         if k == n - 1:
             break
         if k:
-            b_prev, q_prev = beta[-1], Q[-2]
+            b_prev, q_prev = beta[-1], basis.rows[-2]
             w = [x - a * y - b_prev * z for x, y, z in zip(w, q, q_prev)]
         else:
             w = [x - a * y for x, y in zip(w, q)]
-        w = _orthogonalized(w, Q, cols)
+        w = basis.orthogonalized(w)
         b = math.sqrt(dot(w, w))
         if b <= breakdown:
             beta.append(0.0)
-            q = _fresh(rng, Q, cols, n)
+            q = _fresh(rng, basis)
         else:
             beta.append(b)
             q = [x / b for x in w]
     beta.append(0.0)
-    return alpha, beta, cols
+    return alpha, beta, basis.packed_rows
 
 
-def _orthogonalized(w: Vector, Q: list[Vector], cols: list[Vector]) -> Vector:
-    """w minus its part along every row of Q (classical Gram–Schmidt, twice when needed)."""
-    norm = math.sqrt(dot(w, w))
-    for _ in range(2):
-        c = list(map(dot, Q, repeat(w)))
-        w = list(map(sub, w, map(dot, repeat(c), cols)))
-        new = math.sqrt(dot(w, w))
-        if new > 0.7071 * norm:
-            break
-        norm = new
-    return w
+class _Basis:
+    """Orthonormal rows q₀, q₁, … of length n, kept as floats and ``packed`` two ways.
+
+    ``packed_rows[k]`` is P(q_k): Qᵀ c = Σ_k c_k q_k is one ``combine``.  ``packed_cols[t]`` packs
+    entry t of the first ``frozen`` rows: Q w over those rows is Σ_t w_t (column t), another
+    ``combine``; the rows since then (fewer than ``_BATCH``) take one inner product each, and
+    every ``_BATCH`` rows the columns are extended at once.
+    """
+
+    _BATCH = 32
+
+    def __init__(self, n: int) -> None:
+        self.rows: list[Vector] = []
+        self.packed_rows: list[int] = []
+        self.packed_cols = [0] * n
+        self.frozen = 0
+
+    def append(self, q: Vector) -> None:
+        self.rows.append(q)
+        self.packed_rows.append(pack(q))
+        if len(self.rows) - self.frozen == self._BATCH:
+            shift = 120 * self.frozen
+            self.packed_cols = [c + (pack(list(col)) << shift)
+                                for c, col in zip(self.packed_cols, zip(*self.rows[self.frozen:]))]
+            self.frozen = len(self.rows)
+
+    def orthogonalized(self, w: Vector) -> Vector:
+        """w minus its part along every row (classical Gram–Schmidt, twice when needed)."""
+        norm = math.sqrt(dot(w, w))
+        for _ in range(2):
+            c = combine(self.packed_cols, self.frozen, w) if self.frozen else []
+            c += map(dot, self.rows[self.frozen:], repeat(w))
+            w = list(map(sub, w, combine(self.packed_rows, len(w), c)))
+            new = math.sqrt(dot(w, w))
+            if new > 0.7071 * norm:
+                break
+            norm = new
+        return w
 
 
-def _fresh(rng: random.Random, Q: list[Vector], cols: list[Vector], n: int) -> Vector:
-    """A random unit vector orthogonal to every row of Q (which has fewer than n rows)."""
+def _fresh(rng: random.Random, basis: _Basis) -> Vector:
+    """A random unit vector orthogonal to every row of ``basis`` (which has fewer than n rows)."""
+    n = len(basis.packed_cols)
     while True:
         w = uniform_draws(rng, n)
-        if Q:
-            w = _orthogonalized(_orthogonalized(w, Q, cols), Q, cols)
+        if basis.rows:
+            w = basis.orthogonalized(basis.orthogonalized(w))
         norm = math.sqrt(dot(w, w))
         if norm > 1e-3:
             return [x / norm for x in w]

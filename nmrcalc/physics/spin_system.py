@@ -73,12 +73,13 @@ import math
 from collections.abc import Callable, Iterable, Iterator
 from dataclasses import dataclass, replace
 from fractions import Fraction
-from operator import itemgetter, mul
+from operator import add, itemgetter, mul
 from typing import Any
 
 from nmrcalc.errors import InputError
 from nmrcalc.physics.eigen import eigh
-from nmrcalc.physics.lanczos import dot, row_applier, sparse_part
+from nmrcalc.physics.lanczos import dot, sparse_part
+from nmrcalc.physics.packed import combine, pack
 
 # Size limits, applied after factoring (per connected component).  A 10-spin-1/2
 # like-nuclide system has a largest block of 252 and Σ block dim³ = 3.8e7 (about 4 s in
@@ -735,7 +736,7 @@ def _transition_amplitudes(entries: list[tuple[int, int, float, int]], dim_f: in
     |<f_a|Σ_site I_+|i_b>|² of the amplitude: the spin the line "mostly belongs to".  Lines with
     amplitude² below ``min_amp2`` (which the caller drops) are not yielded by the pure-Python path;
     on it the site is an ``_Owner``, worked out only when asked (most lines are dropped or merged),
-    and each amplitude is one inner product over the smaller of the two blocks.
+    and the amplitudes of each eigenvector of the smaller block are one ``packed`` combination.
     """
     sites = sorted({tag for *_, tag in entries})
     if not sites:
@@ -760,30 +761,34 @@ def _transition_amplitudes(entries: list[tuple[int, int, float, int]], dim_f: in
     floor = math.sqrt(min_amp2).__le__
     shares = _SiteShares(entries, V_i, V_f, sites) if len(sites) > 1 else None
     # the lines the caller keeps (amplitude² >= min_amp2) are picked without a Python-level loop
-    if len(E_f) <= len(E_i):  # <f_a|F_+|i_b> = f_a · (F_+ i_b): inner products over the f block
-        push = _sparse_rows(entries, dim_f, True)
-        for ib, vb in enumerate(V_i):
-            pushed = push(vb)
-            amps = list(map(dot, V_f, itertools.repeat(pushed)))
-            for fa in itertools.compress(itertools.count(), map(floor, map(abs, amps))):
-                yield E_f[fa] - E_i[ib], amps[fa], sites[0] if shares is None else _Owner(shares, fa, ib), fa, ib
+    if len(E_f) <= len(E_i):  # <f_a|F_+|i_b> = Σ_t f_a[t] (F_+ i_b)[t]: per f_a, one combination of m_f terms
+        packed, scale = _ladder_columns(entries, V_i, lambda e: e[1], lambda e: e[0], len(E_f))
+        for fa, va in enumerate(V_f):
+            amps = combine(packed, len(E_i), va, scale)
+            for ib in itertools.compress(itertools.count(), map(floor, map(abs, amps))):
+                yield E_f[fa] - E_i[ib], amps[ib], sites[0] if shares is None else _Owner(shares, fa, ib), fa, ib
         return
-    pull = _sparse_rows(entries, len(E_i), False)
-    for fa, va in enumerate(V_f):  # = (F_− f_a) · i_b: inner products over the smaller i block
-        pulled = pull(va)
-        amps = list(map(dot, V_i, itertools.repeat(pulled)))
-        for ib in itertools.compress(itertools.count(), map(floor, map(abs, amps))):
-            yield E_f[fa] - E_i[ib], amps[ib], sites[0] if shares is None else _Owner(shares, fa, ib), fa, ib
+    packed, scale = _ladder_columns(entries, V_f, lambda e: e[0], lambda e: e[1], len(E_i))
+    for ib, vb in enumerate(V_i):  # = Σ_s i_b[s] (F_− f_a)[s]: per i_b, one combination of m_i terms
+        amps = combine(packed, len(E_f), vb, scale)
+        for fa in itertools.compress(itertools.count(), map(floor, map(abs, amps))):
+            yield E_f[fa] - E_i[ib], amps[fa], sites[0] if shares is None else _Owner(shares, fa, ib), fa, ib
 
 
-def _sparse_rows(entries: list[tuple[int, int, float, int]], dim: int, raising: bool) -> Callable[[Any], list[float]]:
-    """v ↦ F_+ v (``raising``: v in the i block, rows in the f block) or F_− v, from the entries."""
-    cells: list[tuple[list[float], list[int]]] = [([], []) for _ in range(dim)]
-    for si, ti, c, _ in entries:
-        coefs, cols = cells[ti if raising else si]
-        coefs.append(c)
-        cols.append(si if raising else ti)
-    return row_applier([sparse_part(coefs, cols) for coefs, cols in cells])
+def _ladder_columns(entries: list[tuple[int, int, float, int]], V: Any, row: Callable[[tuple], int],
+                    col: Callable[[tuple], int], dim: int) -> tuple[list[int], float]:
+    """The ``packed`` vectors G_r = Σ_{entries e with row(e) = r} c_e (column col(e) of V), r < dim, and their scale.
+
+    With V the i block's eigenvectors, rows in the f block: G_t[b] = (F_+ i_b)[t], so that
+    <f_a|F_+|i_b> = Σ_t f_a[t] G_t[b]; with V the f block's, rows in the i block: G_s[a] = (F_− f_a)[s].
+    """
+    columns = list(zip(*V))
+    G: list[list[float]] = [[0.0] * len(V) for _ in range(dim)]
+    for e in entries:
+        r = row(e)
+        G[r] = list(map(add, G[r], map(e[2].__mul__, columns[col(e)])))
+    scale = max(max(map(abs, g)) for g in G) or 1.0
+    return [pack(g, scale) for g in G], scale
 
 
 class _SiteShares:
