@@ -106,3 +106,36 @@ def test_sparse_rows_apply_like_a_dense_product():
     assert numpy.allclose(multiplier(A.tolist())(x.tolist()), A @ x, rtol=0, atol=1e-13)
     rows = [sparse_part(A[i, A[i] != 0].tolist(), numpy.flatnonzero(A[i]).tolist()) for i in range(n)]
     assert numpy.allclose(row_applier(rows)(x.tolist()), A @ x, rtol=0, atol=1e-13)
+
+
+@pytest.mark.parametrize("n", [60, 130])
+def test_close_eigenvalue_clusters_stay_orthogonal_on_the_krylov_route(n):
+    # most eigenvalues within 1e-4 of each other (relative to the norm): inverse iteration must
+    # orthogonalize each cluster (tridiagonal.eigenpairs); reference numpy.linalg.eigvalsh
+    rng = numpy.random.default_rng(n)
+    Q, _ = numpy.linalg.qr(rng.normal(size=(n, n)))
+    lam = numpy.concatenate([1000.0 + 1e-2 * rng.normal(size=n - 10), rng.normal(size=10) * 800.0])
+    A = Q @ numpy.diag(lam) @ Q.T
+    A = 0.5 * (A + A.T)
+    from nmrcalc.physics.eigen import _checked_copy, _krylov_eigh
+    found = _krylov_eigh(_checked_copy(A.tolist()))
+    assert found is not None  # the checked fast route was accepted, not the fallback
+    values, vectors = found
+    assert numpy.allclose(values, numpy.linalg.eigvalsh(A), rtol=0, atol=1e-11 * numpy.abs(A).max() * n)
+    _check_decomposition(A, values, vectors)
+
+
+@pytest.mark.parametrize("size, terms, scale", [(1, 1, 1.0), (7, 3, 2.5), (252, 252, 1.0), (40, 300, 1e-6)])
+def test_packed_combinations_match_a_dense_product(size, terms, scale):
+    # Σ_j w_j x_j by big-integer fields (packed) against numpy's matrix product (reference: numpy)
+    from nmrcalc.physics.packed import combine, pack
+
+    rng = numpy.random.default_rng(size + terms)
+    X = rng.uniform(-scale, scale, size=(terms, size))
+    w = rng.normal(size=terms) * 1e-7
+    got = combine([pack(x.tolist(), scale) for x in X], size, w.tolist(), scale)
+    assert type(got) is list and len(got) == size
+    # error bound of the fixed-point fields (packed docstring): 2⁻⁵³ per term and 2⁻⁴⁹ for the result
+    bound = (terms * 2.0 ** -53 + 2.0 ** -49) * numpy.abs(w).max() * scale
+    assert numpy.abs(numpy.array(got) - w @ X).max() <= bound
+    assert combine([pack(x.tolist(), scale) for x in X], size, [0.0] * terms, scale) == [0.0] * size

@@ -11,12 +11,14 @@ Two methods, one answer:
   comprehensions.
 * from ``KRYLOV_MIN`` rows on: Lanczos tridiagonalization with full reorthogonalization
   (``lanczos``), eigenvalues of T by QL without vectors and its eigenvectors by inverse
-  iteration (``tridiagonal.eigenpairs``), then y ↦ Q y and a Rayleigh quotient per
-  vector.  The O(n³) work is big-integer linear combinations of whole vectors
-  (``packed``), done in C.
-  The result is accepted only after it is checked: every residual ‖A z − λ z‖∞ and the
-  orthogonality ‖(ZᵀZ − I) u‖ for three random u must stay within ``_TOL`` · n · max|A|;
-  otherwise (or when an inverse iteration does not converge) the first way is used.
+  iteration (``tridiagonal.eigenpairs``), then y ↦ Q y.  The O(n³) work is big-integer
+  linear combinations of whole vectors (``packed``), done in C.
+  The result is accepted only after it is checked with three random probe vectors u
+  (R. Freivalds, "Fast probabilistic algorithms", MFCS 1979, LNCS 74, 57-69): the
+  residual ‖(A Z − Z Λ) u‖ must stay within ``_TOL`` · n · max|A| · √n ‖u‖ and the
+  orthogonality ‖(ZᵀZ − I) u‖ within ``_TOL`` · n · √n (Z: the eigenvectors as columns);
+  a vector with a larger residual escapes a probe only when its entry of u is tiny.
+  Otherwise (or when an inverse iteration does not converge) the first way is used.
   A shift by the mean diagonal entry keeps T well scaled.
 
 Public function: ``eigh(matrix) -> (values, vectors)`` with ``values`` ascending
@@ -64,7 +66,7 @@ def eigh(matrix: list[list[float]]) -> tuple[list[float], list[list[float]]]:
 def _krylov_eigh(a: list[list[float]]) -> tuple[list[float], list[list[float]]] | None:
     """The Lanczos route, checked; None when a check fails.  ``a`` is left unchanged."""
     n = len(a)
-    size = max(abs(x) for row in a for x in row)
+    size = max(max(map(abs, row)) for row in a)
     if size == 0.0:
         return None
     shift = sum(a[i][i] for i in range(n)) / n
@@ -77,22 +79,20 @@ def _krylov_eigh(a: list[list[float]]) -> tuple[list[float], list[list[float]]] 
     if pairs is None:
         return None
     times = multiplier(rows)
-    tol = _TOL * n * size
-    values, vectors = [], []
-    for y in pairs[1]:
-        z = combine(basis, n, y)
-        az = times(z)
-        lam = dot(z, az)
-        if max(map(abs, map(sub, az, map(lam.__mul__, z)))) > tol:
-            return None
-        values.append(lam + shift)
-        vectors.append(z)
+    values, ys = pairs
+    vectors = [combine(basis, n, y) for y in ys]
     by_entry = list(zip(*vectors))
-    for _ in range(3):
+    for _ in range(3):  # random probes u: ‖(A Z − Z Λ) u‖ and ‖(Zᵀ Z − I) u‖ (Z: eigenvectors as columns)
         u = [rng.gauss(0.0, 1.0) for _ in range(n)]
+        bound = math.sqrt(dot(u, u) * n)
+        moved = times([dot(entry, u) for entry in by_entry])
+        scaled = list(map(mul, values, u))
+        if math.sqrt(sum((x - dot(entry, scaled)) ** 2 for x, entry in zip(moved, by_entry))) > _TOL * n * size * bound:
+            return None
         s = list(map(dot, vectors, repeat(u)))
         if math.sqrt(sum((dot(s, c) - x) ** 2 for c, x in zip(by_entry, u))) > _TOL * n * math.sqrt(n):
             return None
+    values = [lam + shift for lam in values]
     order = sorted(range(n), key=values.__getitem__)
     return [values[k] for k in order], [vectors[k] for k in order]
 

@@ -23,9 +23,9 @@ last entry is unused and left 0).
 import math
 import random
 import sys
-from operator import mul
+from operator import sub
 
-from nmrcalc.physics.lanczos import uniform_draws
+from nmrcalc.physics.lanczos import dot, uniform_draws
 
 _EPS = sys.float_info.epsilon  # IEEE-754 double: 2.22e-16
 _MAX_QL_ITERATIONS = 60  # per eigenvalue; 2-3 are typical
@@ -137,21 +137,19 @@ def _piece_pairs(d: list[float], e: list[float], rng: random.Random) -> tuple[li
         checks = 0
         for _ in range(_MAX_STEPS):
             scale = m * norm1 * max(_EPS, abs(solve.last_pivot)) / sum(map(abs, b))
-            b = solve([scale * t for t in b])
+            b = solve(list(map(scale.__mul__, b)))
             for u in cluster:
-                c = sum(map(mul, u, b))
-                b = [t - c * w for t, w in zip(b, u)]
+                b = list(map(sub, b, map(dot(u, b).__mul__, u)))
             if max(map(abs, b)) >= growth:
                 checks += 1
                 if checks > _EXTRA_STEPS:
                     break
         else:
             return None
-        norm = math.sqrt(sum(t * t for t in b))
+        norm = math.sqrt(dot(b, b))
         if not norm > 0.0:
             return None
-        k = max(range(m), key=lambda i: abs(b[i]))
-        v = [math.copysign(1.0 / norm, b[k]) * t for t in b]
+        v = list(map(math.copysign(1.0 / norm, max(b, key=abs)).__mul__, b))
         vectors.append(v)
         cluster.append(v)
     return lam, vectors
