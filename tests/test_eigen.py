@@ -135,7 +135,29 @@ def test_packed_combinations_match_a_dense_product(size, terms, scale):
     w = rng.normal(size=terms) * 1e-7
     got = combine([pack(x.tolist(), scale) for x in X], size, w.tolist(), scale)
     assert type(got) is list and len(got) == size
-    # error bound of the fixed-point fields (packed docstring): 2⁻⁵³ per term and 2⁻⁴⁹ for the result
-    bound = (terms * 2.0 ** -53 + 2.0 ** -49) * numpy.abs(w).max() * scale
+    # error bound of the fixed-point fields (packed docstring): 2⁻⁵² per term and 2⁻⁴⁹ for the result
+    bound = (terms * 2.0 ** -52 + 2.0 ** -49) * numpy.abs(w).max() * scale
     assert numpy.abs(numpy.array(got) - w @ X).max() <= bound
     assert combine([pack(x.tolist(), scale) for x in X], size, [0.0] * terms, scale) == [0.0] * size
+
+
+def test_krylov_route_refuses_an_inexact_eigenvector(monkeypatch):
+    # the random-probe check (eigen docstring) must catch one eigenvector of the tridiagonal
+    # matrix perturbed by 1e-9, so that eigh falls back to the other method
+    import nmrcalc.physics.eigen as eigen
+
+    rng = numpy.random.default_rng(5)
+    A = rng.normal(size=(40, 40))
+    A = (A + A.T).tolist()
+    assert eigen._krylov_eigh(eigen._checked_copy(A)) is not None
+    exact = eigen.eigenpairs
+
+    def perturbed(alpha, beta, r):
+        values, vectors = exact(alpha, beta, r)
+        vectors = [list(v) for v in vectors]
+        vectors[7][3] += 1e-9
+        return values, vectors
+    monkeypatch.setattr(eigen, "eigenpairs", perturbed)
+    assert eigen._krylov_eigh(eigen._checked_copy(A)) is None
+    values, vectors = eigen.eigh(A)  # the fallback still gives the decomposition
+    _check_decomposition(numpy.array(A), values, vectors)

@@ -14,7 +14,8 @@ which decoding undoes) as long as no field reaches 2¹¹⁹ in size: with at mos
 integers in C, so a combination of n vectors of n entries costs a few nanoseconds per entry
 (in WebAssembly about five times less than n inner products with ``math.sumprod``, which
 rounds each one as if exactly, in software).  The error is that of the fixed-point inputs:
-at most 2⁻⁵³ · max|c| · s per term and 2⁻⁴⁹ · max|c| · s for the final rounding (D. E. Knuth,
+at most 2⁻⁵² · max|c| · s per term (both factors rounded to 2⁻⁵³ of their bound) and
+2⁻⁴⁹ · max|c| · s for the final rounding (D. E. Knuth,
 *The Art of Computer Programming*, vol. 2, 3rd ed., sec. 4.2.2 and 4.3.1).
 
 ``pack(values, scale)`` stores a vector; ``combine(packed, size, weights, scale)`` returns

@@ -84,7 +84,8 @@ from nmrcalc.physics.packed import combine, pack
 # Size limits, applied after factoring (per connected component).  A 10-spin-1/2
 # like-nuclide system has a largest block of 252 and Σ block dim³ = 3.8e7 (with its
 # spectrum about 5.5 s in pure CPython 3.11 and 9 s in the page, under 1 s with numpy:
-# bench_results/spins.txt); 8 spins-1/2 (largest block 70) take about 0.4 s.  MAX_WORK bounds Σ block dim³ over every composition, the eigensolver's work:
+# bench_results/spins.txt); 8 spins-1/2 (largest block 70) take about 0.4 s.
+# MAX_WORK bounds Σ block dim³ over every composition, the eigensolver's work:
 # a CH3(CH2)5 chain (13 H, 6144 states after factoring) needs 2.5e7.
 MAX_BLOCK_DIM = 252
 MAX_TOTAL_DIM = 8192
