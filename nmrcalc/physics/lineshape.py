@@ -270,7 +270,9 @@ class _LorentzianPlan:
 
     ``lines`` = sorted (position, scale) with L = scale / (d² + (w/2)²).  ``direct`` is True
     on grids of at most ``DIRECT_FWHM`` widths: every line on every point.  ``levels``: the bin
-    tree of the same lines and width (``_bin_levels``), which does not depend on the grid.
+    tree of the same lines and width (``_bin_levels``), which does not depend on the grid;
+    ``tasks``: the walk of that tree over the knots, made once, which gives ``work`` and which
+    ``_lorentzian_sum`` evaluates.
     """
 
     def __init__(self, lines: list[tuple[float, float]], count: int, low: float, step: float, fwhm: float,
@@ -305,39 +307,36 @@ class _LorentzianPlan:
         self.knots = knots
         self.xk = [low + k * step for k in knots]
         self.levels = _bin_levels(lines, fwhm) if levels is None else levels
-        self.work = 0
+        # (first, end, centre, scale): knots first:end take the line or bin at centre, of that scale
+        self.tasks: list[tuple[int, int, float, float]] = []
+        top = len(self.levels) - 1
         for b in self.levels[-1]:
-            self._walk(len(self.levels) - 1, b, 0, len(knots), None, None)
+            self._walk(top, b, 0, len(knots))
+        self.work = sum(end - first for first, end, _, _ in self.tasks)
         # decided by the grid alone, so that spectra summed line by line equal the spectrum of all lines
         self.direct = (count - 1) * step <= DIRECT_FWHM * fwhm
         if self.direct:
             self.work = n * count
 
-    def _walk(self, level: int, b: _Bin, first: int, end: int, total: list[float] | None,
-              half2: float | None) -> None:
-        """Add bin ``b`` on knots ``first:end``: at its centroid beyond its reach, else through its parts.
-
-        With ``total`` None only count the evaluations.
-        """
+    def _walk(self, level: int, b: _Bin, first: int, end: int) -> None:
+        """Plan bin ``b`` on knots ``first:end``: at its centroid beyond its reach, else through its parts
+        (the lines of a level-1 bin each on all its near knots)."""
         if level == 0:
-            a, z = first, end
-        else:
-            a = max(first, bisect.bisect_left(self.xk, b.lo - b.reach, first, end))
-            z = min(end, bisect.bisect_right(self.xk, b.hi + b.reach, a, end))
-        far = (a - first) + (end - z)
-        if total is None:
-            self.work += far if level else z - a
-        elif half2 is not None:
-            xk, c, s = self.xk, b.centre, b.scale
-            if a > first:
-                total[first:a] = [v + s / ((x - c) * (x - c) + half2) for v, x in zip(total[first:a], xk[first:a])]
-            if end > z:
-                total[z:end] = [v + s / ((x - c) * (x - c) + half2) for v, x in zip(total[z:end], xk[z:end])]
-            if level == 0:
-                total[a:z] = [v + s / ((x - c) * (x - c) + half2) for v, x in zip(total[a:z], xk[a:z])]
-        if level and z > a:
-            for part in self.levels[level - 1][b.first:b.end]:
-                self._walk(level - 1, part, a, z, total, half2)
+            self.tasks.append((first, end, b.centre, b.scale))
+            return
+        a = max(first, bisect.bisect_left(self.xk, b.lo - b.reach, first, end))
+        z = min(end, bisect.bisect_right(self.xk, b.hi + b.reach, a, end))
+        if a > first:
+            self.tasks.append((first, a, b.centre, b.scale))
+        if end > z:
+            self.tasks.append((z, end, b.centre, b.scale))
+        if z > a:
+            parts = self.levels[level - 1][b.first:b.end]
+            if level == 1:
+                self.tasks.extend((a, z, part.centre, part.scale) for part in parts)
+            else:
+                for part in parts:
+                    self._walk(level - 1, part, a, z)
 
 
 def _bin_levels(lines: list[tuple[float, float]], fwhm: float) -> list[list[_Bin]]:
@@ -376,10 +375,10 @@ def _lorentzian_sum(lines: list[tuple[float, float]], fwhm: float, x_Hz: list[fl
             y = [v + scale / ((x - x0) * (x - x0) + half2) for v, x in zip(y, x_Hz)]
         return y
     knots = plan.knots
-    plan.xk = [x_Hz[k] for k in knots]
+    xk = [x_Hz[k] for k in knots]
     total = [0.0] * len(knots)
-    for b in plan.levels[-1]:
-        plan._walk(len(plan.levels) - 1, b, 0, len(knots), total, half2)
+    for a, z, c, s in plan.tasks:
+        total[a:z] = [v + s / ((x - c) * (x - c) + half2) for v, x in zip(total[a:z], xk[a:z])]
     y = []
     for s in range(len(knots) - 1):
         k0, v0 = knots[s], total[s]
