@@ -23,8 +23,8 @@ SY = numpy.array([[0, -0.5j], [0.5j, 0]])
 SZ = numpy.array([[0.5, 0], [0, -0.5]])
 
 
-def dense_lines(offsets, couplings, merge_Hz=1e-4):
-    """(freq_Hz, intensity) of n spins-½ (one nuclide), intensities summing to 1; numpy.linalg.eigh."""
+def dense_solution(offsets, couplings):
+    """(E, V, X, Y, Z) of n spins-½ (one nuclide): eigenpairs (numpy.linalg.eigh) and the spin matrices."""
     n = len(offsets)
 
     def op(single, k):
@@ -38,6 +38,12 @@ def dense_lines(offsets, couplings, merge_Hz=1e-4):
     for i, j, J in couplings:
         H = H + J * (X[i] @ X[j] + Y[i] @ Y[j] + Z[i] @ Z[j])
     E, V = numpy.linalg.eigh(H)
+    return E, V, X, Y, Z
+
+
+def dense_lines(offsets, couplings, merge_Hz=1e-4):
+    """(freq_Hz, intensity) of n spins-½ (one nuclide), intensities summing to 1; numpy.linalg.eigh."""
+    E, V, X, Y, _ = dense_solution(offsets, couplings)
     Fplus = sum(X) + 1j * sum(Y)
     A = V.conj().T @ Fplus @ V  # A[f, i] = <f|F_+|i>
     inten = numpy.abs(A) ** 2
@@ -215,3 +221,31 @@ def test_random_weak_links_stay_within_error_Hz(seed, monkeypatch):
                 k = bisect.bisect(exact, x)
                 off = min(abs(x - exact[j]) for j in (k - 1, k) if 0 <= j < len(exact))
                 assert off <= c["error_Hz"] + 2e-5, (x, off, c)
+
+
+@pytest.mark.parametrize("seed", range(6))
+def test_each_line_is_named_after_the_spin_whose_z_changes_most(seed):
+    # reference: the dense Hamiltonian (numpy.linalg.eigh); for every line f ← i the spin k with the largest
+    # Δ_k = <f|I_zk|f> − <i|I_zk|i> (Σ_k Δ_k = 1 as F_+ raises F_z by one).  With two spins this is also the
+    # spin with the larger share |<f|I_+k|i>|² of the amplitude (AB analysis, PSB 1959: sin²θ against cos²θ)
+    rng = numpy.random.default_rng(100 + seed)
+    n = 2 if seed < 2 else int(rng.integers(3, 6))
+    offsets = [float(x) for x in rng.uniform(-25.0, 25.0, n)]
+    J = [(i, j, float(rng.uniform(-12.0, 12.0))) for i in range(n) for j in range(i + 1, n)]
+    E, V, X, Y, Z = dense_solution(offsets, J)
+    z = numpy.stack([numpy.einsum("si,st,ti->i", V, Zk, V) for Zk in Z])  # z[k, state]
+    amp = numpy.abs(V.T @ (sum(X) + 1j * sum(Y)) @ V) ** 2
+    f_idx, i_idx = numpy.nonzero(amp > 1e-6 * amp.max())
+    reference = sorted((float(E[f] - E[i]), float(amp[f, i]), int(numpy.argmax(z[:, f] - z[:, i])),
+                        int(numpy.argmax([abs(complex(V[:, f] @ (X[k] + 1j * Y[k]) @ V[:, i])) for k in range(n)])))
+                       for f, i in zip(f_idx, i_idx))
+    sites = [Site("1H", HALF, x) for x in offsets]
+    for use_numpy in (False, True):
+        ours = transitions(sites, J, "1H", merge_tol_Hz=1e-7, min_rel_intensity=1e-3, use_numpy=use_numpy)
+        assert len(ours) >= 4 * (n - 1)
+        for x, _, site in ours:
+            x_ref, _, by_z, by_share = min(reference, key=lambda line: abs(line[0] - x))
+            assert abs(x - x_ref) < 1e-6
+            assert site == by_z
+            if n == 2:
+                assert site == by_share

@@ -242,8 +242,8 @@ def test_random_groups_factor_like_expanded(seed):
 
 @pytest.mark.parametrize("seed, factor", [(71, True), (72, False), (73, False)])
 def test_pure_python_names_the_same_spin_as_numpy(seed, factor):
-    # the pure path stops working out a line's per-site parts once the best exceeds the next
-    # Cauchy–Schwarz bound; reference: every part computed by numpy matrix products (numpy.linalg.eigh)
+    # the pure path takes <Σ I_z> per site from its own eigenvectors (dot products);
+    # reference: the same changes from numpy matrix products of numpy.linalg.eigh's eigenvectors
     rng = random.Random(seed)
     sites = [H1(rng.uniform(0, 40), rng.choice([1, 1, 2])) for _ in range(4)] + [Site("19F", HALF, 300.0)]
     couplings = [(i, j, rng.uniform(-12, 12)) for i in range(5) for j in range(i + 1, 5) if rng.random() < 0.9]

@@ -7,7 +7,8 @@ Spins carry chemists' labels: ``label`` per spin (e.g. "H-3", at most
 page name spins by label, and ``between`` accepts labels or 0-based indices.
 
 Result: ``lines`` (observed transitions, merged), ``transitions`` (the same
-lines with ``spin``, the index of the observed spin each mostly belongs to, and
+lines with ``spin``, the index of the observed spin each mostly belongs to (the one whose
+<Σ I_z> changes most in the transition), and
 its label), ``clusters`` (sites joined by coupling paths, each solved alone and
 summed — exact, since their Hamiltonians commute; clusters joined only by weak
 links, |Δν| >= 20 |J| and J²/|Δν| <= ``WEAK_LINK_TOL_HZ`` in Hz at the chosen

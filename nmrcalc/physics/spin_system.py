@@ -73,12 +73,12 @@ import math
 from collections.abc import Callable, Iterable, Iterator
 from dataclasses import dataclass, replace
 from fractions import Fraction
-from operator import add, itemgetter, mul
+from operator import add, itemgetter, mul, sub
 from typing import Any
 
 from nmrcalc.errors import InputError
 from nmrcalc.physics.eigen import eigh
-from nmrcalc.physics.lanczos import dot, sparse_part
+from nmrcalc.physics.lanczos import dot
 from nmrcalc.physics.packed import combine, pack
 
 # Size limits, applied after factoring (per connected component).  A 10-spin-1/2
@@ -696,12 +696,18 @@ def _composition_lines(units: list[_Unit], spins: list[tuple[int, int]], J_units
             if Jab != 0.0:
                 pairs.append((a, b, Jab, nuc_of[a] == nuc_of[b]))
     link_pos = [(a, linked[units[k].site]) for a, (k, _) in enumerate(spins) if linked and units[k].site in linked]
+    obs_spins = [a for a in range(len(spins)) if nuc_of[a] == obs]
+    # the observed sites, and per eigenvector <Σ I_z> of each, which names the site a line belongs to
+    obs_sites = sorted({units[spins[a][0]].site for a in obs_spins})
+    obs_pos = [(a, obs_sites.index(units[spins[a][0]].site)) for a in obs_spins] if len(obs_sites) > 1 else []
     solved: dict[State, tuple[list[State], dict[State, int], tuple[Any, Any]]] = {}
     expect: dict[State, list[tuple[float, ...]] | None] = {}
+    on_site: dict[State, list[tuple[float, ...]] | None] = {}
     for key, states in _blocks(two_fs, nuc_of, len(nuclei)).items():
         index = {s: i for i, s in enumerate(states)}
         solved[key] = (states, index, solve(_block_hamiltonian(states, index, nu, two_fs, pairs)))
         expect[key] = _expectations(states, solved[key][2][1], link_pos, len(linked or ()))
+        on_site[key] = _expectations(states, solved[key][2][1], obs_pos, len(obs_pos) and len(obs_sites))
         zs = expect[key]
         if record is not None and zs is not None:
             for z in zs:
@@ -709,74 +715,69 @@ def _composition_lines(units: list[_Unit], spins: list[tuple[int, int]], J_units
         tick(len(states) ** 3)
     if keep is not None:
         keep.update(solved)
-    obs_spins = [a for a in range(len(spins)) if nuc_of[a] == obs]
     for key, (states, _, (E_i, V_i)) in solved.items():
         target = list(key)
         target[obs] += 2
         if tuple(target) not in solved:
             continue
         f_states, f_index, (E_f, V_f) = solved[tuple(target)]
-        entries = []  # (row in i block, row in f block, <t|I_+a|s>, site of spin a)
+        entries = []  # (row in i block, row in f block, <t|I_+a|s>)
         for si, s in enumerate(states):
             for a in obs_spins:
                 if s[a] < two_fs[a]:
                     t = list(s)
                     t[a] += 2
-                    entries.append((si, f_index[tuple(t)], _ladder(two_fs[a], s[a], True), units[spins[a][0]].site))
+                    entries.append((si, f_index[tuple(t)], _ladder(two_fs[a], s[a], True)))
+        if not entries:
+            continue
         z_i, z_f = expect[key], expect[tuple(target)]
-        for freq, amp, site, fa, ib in _transition_amplitudes(entries, len(f_states), E_i, V_i, E_f, V_f,
+        names = _SiteNames(obs_sites, on_site[key], on_site[tuple(target)])
+        for freq, amp, site, fa, ib in _transition_amplitudes(entries, len(f_states), E_i, V_i, E_f, V_f, names,
                                                                min_raw / (0.25 * weight)):
             emit(freq, 0.25 * weight * amp * amp, site, () if z_i is None else z_i[ib], () if z_f is None else z_f[fa])
 
 
-def _transition_amplitudes(entries: list[tuple[int, int, float, int]], dim_f: int, E_i: Any, V_i: Any, E_f: Any,
-                           V_f: Any, min_amp2: float = 0.0) -> Iterator[tuple[float, float, "int | _Owner", int, int]]:
+def _transition_amplitudes(entries: list[tuple[int, int, float]], dim_f: int, E_i: Any, V_i: Any, E_f: Any,
+                           V_f: Any, names: "_SiteNames", min_amp2: float = 0.0
+                           ) -> Iterator[tuple[float, float, "int | _Owner", int, int]]:
     """Yield (E_f[a] − E_i[b], <f_a|F_+|i_b>, site, a, b) for every eigenpair across two blocks.
 
-    ``site`` is the observed site whose own I_+ gives the largest part
-    |<f_a|Σ_site I_+|i_b>|² of the amplitude: the spin the line "mostly belongs to".  Lines with
+    ``site`` is the observed site the line mostly belongs to (``_SiteNames``).  Lines with
     amplitude² below ``min_amp2`` (which the caller drops) are not yielded by the pure-Python path;
     on it the site is an ``_Owner``, worked out only when asked (most lines are dropped or merged),
     and the amplitudes of each eigenvector of the smaller block are one ``packed`` combination.
     """
-    sites = sorted({tag for *_, tag in entries})
-    if not sites:
-        return
     if hasattr(V_i, "shape"):  # numpy arrays: columns are eigenvectors
         import numpy
 
-        parts = []
-        for site in sites:
-            P = numpy.zeros((dim_f, len(E_i)))
-            for si, ti, c, tag in entries:
-                if tag == site:
-                    P[ti, si] += c
-            parts.append(V_f.T @ P @ V_i)
-        A = sum(parts)
-        owner = numpy.argmax(numpy.stack([p * p for p in parts]), axis=0)
+        P = numpy.zeros((dim_f, len(E_i)))
+        for si, ti, c in entries:
+            P[ti, si] += c
+        A = V_f.T @ P @ V_i
         freqs = E_f[:, None] - E_i[None, :]
         n_i = len(E_i)
-        for k, (f, a, o) in enumerate(zip(freqs.ravel().tolist(), A.ravel().tolist(), owner.ravel().tolist())):
-            yield f, a, sites[o], k // n_i, k % n_i
+        owner = names.all_pairs(len(E_f), n_i)
+        for k, (f, a) in enumerate(zip(freqs.ravel().tolist(), A.ravel().tolist())):
+            yield f, a, owner[k], k // n_i, k % n_i
         return
     floor = math.sqrt(min_amp2).__le__
-    shares = _SiteShares(entries, V_i, V_f, sites) if len(sites) > 1 else None
+    single = names.single
     # the lines the caller keeps (amplitude² >= min_amp2) are picked without a Python-level loop
     if len(E_f) <= len(E_i):  # <f_a|F_+|i_b> = Σ_t f_a[t] (F_+ i_b)[t]: per f_a, one combination of m_f terms
         packed, scale = _ladder_columns(entries, V_i, lambda e: e[1], lambda e: e[0], len(E_f))
         for fa, va in enumerate(V_f):
             amps = combine(packed, len(E_i), va, scale)
             for ib in itertools.compress(itertools.count(), map(floor, map(abs, amps))):
-                yield E_f[fa] - E_i[ib], amps[ib], sites[0] if shares is None else _Owner(shares, fa, ib), fa, ib
+                yield E_f[fa] - E_i[ib], amps[ib], single if single is not None else _Owner(names, fa, ib), fa, ib
         return
     packed, scale = _ladder_columns(entries, V_f, lambda e: e[0], lambda e: e[1], len(E_i))
     for ib, vb in enumerate(V_i):  # = Σ_s i_b[s] (F_− f_a)[s]: per i_b, one combination of m_i terms
         amps = combine(packed, len(E_f), vb, scale)
         for fa in itertools.compress(itertools.count(), map(floor, map(abs, amps))):
-            yield E_f[fa] - E_i[ib], amps[fa], sites[0] if shares is None else _Owner(shares, fa, ib), fa, ib
+            yield E_f[fa] - E_i[ib], amps[fa], single if single is not None else _Owner(names, fa, ib), fa, ib
 
 
-def _ladder_columns(entries: list[tuple[int, int, float, int]], V: Any, row: Callable[[tuple], int],
+def _ladder_columns(entries: list[tuple[int, int, float]], V: Any, row: Callable[[tuple], int],
                     col: Callable[[tuple], int], dim: int) -> tuple[list[int], float]:
     """The ``packed`` vectors G_r = Σ_{entries e with row(e) = r} c_e (column col(e) of V), r < dim, and their scale.
 
@@ -792,76 +793,49 @@ def _ladder_columns(entries: list[tuple[int, int, float, int]], V: Any, row: Cal
     return [pack(g, scale) for g in G], scale
 
 
-class _SiteShares:
-    """Which observed site j has the largest part s_j = <f_a|I_+ of j|i_b> of a line's amplitude.
+class _SiteNames:
+    """The observed site a line f_a ← i_b mostly belongs to: the one whose <Σ I_z> grows most.
 
-    s_j = Σ_e c_e i_b[s_e] f_a[t_e] over the entries e = (s, t, c) of F_+ that raise a spin of j,
-    so |s_j| <= ‖(c_e i_b[s_e])_e‖ · ‖(f_a[t_e])_e‖ (Cauchy–Schwarz).  The parts are worked out in
-    descending order of that bound and only until the largest found exceeds the next bound: the
-    answer of computing every part, for a fraction of the work (a weakly coupled line has one site
-    with a bound near 1, the others near 0).  The norms per initial and per final eigenvector,
-    and the coefficients c_e i_b[s_e] per initial eigenvector and site, are built on first use:
-    most lines are dropped or merged into a stronger one, and only the lines kept need their
-    site (``_Owner``; ``transitions`` asks at the end).
+    F_+ raises Σ_j <I_zj> by exactly 1 from i_b to f_a; the site j with the largest change
+    Δ_j = <f_a|I_zj|f_a> − <i_b|I_zj|i_b> is the spin that flips (Δ_j → 1 for it and 0 for the
+    others as the couplings become weak against the shift differences; in an AB pair the
+    larger share of an inner or outer line).  Ties go to the site listed first.  ``z_i`` and
+    ``z_f``: <Σ I_z> per site of ``sites`` in every eigenvector of the two blocks (None with
+    one observed site, which is then ``single``).
     """
 
-    __slots__ = ("V_i", "V_f", "sites", "by_site", "norms_i", "norms_f", "coefs")
+    __slots__ = ("sites", "z_i", "z_f", "single")
 
-    def __init__(self, entries: list[tuple[int, int, float, int]], V_i: Any, V_f: Any, sites: list[int]) -> None:
-        self.V_i, self.V_f, self.sites = V_i, V_f, sites
-        grouped: dict[int, list[tuple[int, int, float]]] = {site: [] for site in sites}
-        for si, ti, c, tag in entries:
-            grouped[tag].append((si, ti, c))
-        # per site: the c_e; (c_e², getter of the s_e) for ‖c_e i_b[s_e]‖ from i_b²; (1, getter of the t_e)
-        # for ‖f_a[t_e]‖ from f_a²; the same getters pick i_b[s_e] and f_a[t_e] for the part itself
-        self.by_site = []
-        for site in sites:
-            rows_i = [e[0] for e in grouped[site]]
-            rows_f = [e[1] for e in grouped[site]]
-            ladder = [e[2] for e in grouped[site]]
-            self.by_site.append((ladder, sparse_part([x * x for x in ladder], rows_i),
-                                 sparse_part([1.0] * len(rows_f), rows_f)))
-        self.norms_i: dict[int, list[float]] = {}
-        self.norms_f: dict[int, list[float]] = {}
-        self.coefs: dict[tuple[int, int], tuple[list[float], Callable[[Any], Any]]] = {}
+    def __init__(self, sites: list[int], z_i: list[tuple[float, ...]] | None,
+                 z_f: list[tuple[float, ...]] | None) -> None:
+        self.sites, self.z_i, self.z_f = sites, z_i, z_f
+        self.single = sites[0] if z_i is None or z_f is None else None
 
-    @staticmethod
-    def _norms(v: Any, parts: Iterable[tuple[list[float], Callable[[Any], Any]]]) -> list[float]:
-        squares = [x * x for x in v]
-        return [math.sqrt(dot(weights, pick(squares))) for weights, pick in parts]
+    def __call__(self, fa: int, ib: int) -> int:
+        assert self.z_i is not None and self.z_f is not None
+        change = list(map(sub, self.z_f[fa], self.z_i[ib]))
+        return self.sites[change.index(max(change))]
 
-    def owner(self, fa: int, ib: int) -> int:
-        if ib not in self.norms_i:
-            self.norms_i[ib] = self._norms(self.V_i[ib], (part for _, part, _ in self.by_site))
-        if fa not in self.norms_f:
-            self.norms_f[fa] = self._norms(self.V_f[fa], (part for _, _, part in self.by_site))
-        bounds = list(map(mul, self.norms_i[ib], self.norms_f[fa]))
-        va = self.V_f[fa]
-        best, best_k = -1.0, 0
-        for k in sorted(range(len(bounds)), key=bounds.__getitem__, reverse=True):
-            if best > bounds[k] * (1.0 + 1e-9):  # every part left is smaller than the one found
-                break
-            if (ib, k) not in self.coefs:
-                ladder, (_, pick_s), (_, pick_t) = self.by_site[k]
-                self.coefs[(ib, k)] = (list(map(mul, ladder, pick_s(self.V_i[ib]))) + [0.0] * max(0, 2 - len(ladder)),
-                                       pick_t)
-            coef, pick = self.coefs[(ib, k)]
-            share = abs(dot(coef, pick(va)))
-            if share > best or (share == best and k < best_k):
-                best, best_k = share, k
-        return self.sites[best_k]
+    def all_pairs(self, n_f: int, n_i: int) -> list[int]:
+        """The site of every pair (a, b), a-major, as ``__call__`` gives it (numpy path)."""
+        if self.single is not None:
+            return [self.single] * (n_f * n_i)
+        import numpy
+
+        change = numpy.array(self.z_f)[:, None, :] - numpy.array(self.z_i)[None, :, :]
+        return [self.sites[k] for k in numpy.argmax(change, axis=2).ravel().tolist()]  # first of equal maxima
 
 
 class _Owner:
-    """The observed site a line mostly belongs to, worked out when asked (``_SiteShares``)."""
+    """The observed site a line mostly belongs to, worked out when asked (``_SiteNames``)."""
 
-    __slots__ = ("shares", "fa", "ib")
+    __slots__ = ("names", "fa", "ib")
 
-    def __init__(self, shares: _SiteShares, fa: int, ib: int) -> None:
-        self.shares, self.fa, self.ib = shares, fa, ib
+    def __init__(self, names: _SiteNames, fa: int, ib: int) -> None:
+        self.names, self.fa, self.ib = names, fa, ib
 
     def __call__(self) -> int:
-        return self.shares.owner(self.fa, self.ib)
+        return self.names(self.fa, self.ib)
 
 
 class _JoinedFields:
@@ -1047,7 +1021,7 @@ def transitions(sites: Any, couplings: Any, observe: str, *, use_numpy: bool | N
     the other cluster's eigenstates, module docstring) and the rest exactly.
 
     ``site`` is the index of the observed site the line mostly belongs to
-    (largest share of its transition amplitude, ``_transition_amplitudes``).
+    (the one whose <Σ I_z> changes most in the transition, ``_SiteNames``).
 
     ``use_numpy``: None = numpy.linalg.eigh when importable, False = pure Python,
     True = require numpy.  Lines closer than ``merge_tol_Hz`` are merged at their
