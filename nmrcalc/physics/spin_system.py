@@ -70,6 +70,7 @@ the same frame.
 import functools
 import itertools
 import math
+from collections import Counter
 from collections.abc import Callable, Iterable, Iterator
 from dataclasses import dataclass, replace
 from fractions import Fraction
@@ -783,8 +784,20 @@ def _ladder_columns(entries: list[tuple[int, int, float]], V: Any, row: Callable
 
     With V the i block's eigenvectors, rows in the f block: G_t[b] = (F_+ i_b)[t], so that
     <f_a|F_+|i_b> = Σ_t f_a[t] G_t[b]; with V the f block's, rows in the i block: G_s[a] = (F_− f_a)[s].
+    With every c_e = 1 (spins-½) G_r is a sum of columns, added as packed integers (exact; the
+    scale is the largest column entry times the most columns one G_r sums).
     """
     columns = list(zip(*V))
+    if all(e[2] == 1.0 for e in entries):  # spins-½: each G_r a sum of packed columns, in exact integers
+        used = {col(e) for e in entries}
+        # up to ``most`` columns are summed, so each is packed with that many times its size as scale
+        most = max(Counter(map(row, entries)).values())
+        scale = most * max(max(map(abs, columns[c])) for c in used) or 1.0
+        packed_columns = {c: pack(list(columns[c]), scale) for c in used}
+        sums = [0] * dim
+        for e in entries:
+            sums[row(e)] += packed_columns[col(e)]
+        return sums, scale
     G: list[list[float]] = [[0.0] * len(V) for _ in range(dim)]
     for e in entries:
         r = row(e)
