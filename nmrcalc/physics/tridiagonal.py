@@ -14,7 +14,9 @@ last entry is unused and left 0).
   the matrix is split where an off-diagonal is negligible; in each unreduced piece
   (T − λI) x = b is solved by Gaussian elimination with partial pivoting, tiny pivots
   replaced by ε‖T‖₁; an iterate is accepted after its ∞-norm has reached √(0.1/m) for
-  three steps (at most five); eigenvalues closer than 10⁻³‖T‖₁ form a cluster whose
+  two steps (at most five; dstein takes three, but with eigenvalues from the QL algorithm
+  the third step leaves residual and orthogonality as they were, and ``eigen`` checks both);
+  one random start vector per piece serves all its eigenvalues; eigenvalues closer than 10⁻³‖T‖₁ form a cluster whose
   vectors are orthogonalized against each other (modified Gram–Schmidt) at every step.
   Returns ``None`` when a vector fails to converge, so that the caller can fall back
   to a method that always converges (the QL algorithm with vectors).
@@ -30,7 +32,7 @@ from nmrcalc.physics.lanczos import dot, uniform_draws
 _EPS = sys.float_info.epsilon  # IEEE-754 double: 2.22e-16
 _MAX_QL_ITERATIONS = 60  # per eigenvalue; 2-3 are typical
 _MAX_STEPS = 5  # inverse-iteration steps per vector (dstein: MAXITS)
-_EXTRA_STEPS = 2  # steps taken after the growth criterion first holds (dstein: EXTRA)
+_EXTRA_STEPS = 1  # steps taken after the growth criterion first holds (dstein: EXTRA = 2)
 _CLUSTER = 1e-3  # eigenvalues closer than this times ‖T‖₁ are orthogonalized (dstein: ORTOL)
 
 
@@ -125,6 +127,7 @@ def _piece_pairs(d: list[float], e: list[float], rng: random.Random) -> tuple[li
     cluster: list[list[float]] = []
     vectors = []
     previous = None
+    start = uniform_draws(rng, m)
     for x in lam:
         if previous is not None:
             if x - previous < 10.0 * tiny:  # dstein: keep the shifts apart so the solves differ
@@ -133,7 +136,7 @@ def _piece_pairs(d: list[float], e: list[float], rng: random.Random) -> tuple[li
                 cluster = []
         previous = x
         solve = _factor(d, e, x, tiny)
-        b = uniform_draws(rng, m)
+        b = start
         checks = 0
         for _ in range(_MAX_STEPS):
             scale = m * norm1 * max(_EPS, abs(solve.last_pivot)) / sum(map(abs, b))
