@@ -5,18 +5,24 @@ side in 120-bit fields (Kronecker substitution: L. Kronecker, J. reine angew. Ma
 (1882); its use for products of many numbers at once, D. Harvey, J. Symbolic Comput. 44,
 1502-1510 (2009)):
 
-    P(x) = Σᵢ round(2⁵² xᵢ / s) · 2^(120 i).
+    P(x) = Σᵢ round(u xᵢ / s) · 2^(120 i),   u = 2⁵¹ (1 − 2⁻²⁰).
 
-A linear combination Σⱼ cⱼ P(xⱼ) with integer weights cⱼ = round(2⁵² cⱼ / max|c|) is then, in
+A linear combination Σⱼ cⱼ P(xⱼ) with integer weights cⱼ = round(u cⱼ / max|c|) is then, in
 exact integer arithmetic, P of Σⱼ cⱼ xⱼ (fields of either sign borrow from their neighbours,
 which decoding undoes) as long as no field reaches 2¹¹⁹ in size: with at most 2¹⁴ terms,
-|Σ| ≤ 2¹⁴ · 2¹⁰⁴ = 2¹¹⁸.  Python multiplies a long integer by a two-digit one and adds long
+|Σ| < 2¹⁴ · 2¹⁰² = 2¹¹⁶.  Python multiplies a long integer by a two-digit one and adds long
 integers in C, so a combination of n vectors of n entries costs a few nanoseconds per entry
 (in WebAssembly about five times less than n inner products with ``math.sumprod``, which
 rounds each one as if exactly, in software).  The error is that of the fixed-point inputs:
-at most 2⁻⁵² · max|c| · s per term (both factors rounded to 2⁻⁵³ of their bound) and
-2⁻⁴⁹ · max|c| · s for the final rounding (D. E. Knuth,
-*The Art of Computer Programming*, vol. 2, 3rd ed., sec. 4.2.2 and 4.3.1).
+at most 2⁻⁵⁰ · max|c| · s per term (both factors rounded to half a unit, 2⁻⁵² of their bound,
+and the result converted back to a float) and 2⁻⁴⁷ · max|c| · s for the final rounding to the
+top 64 bits of each field (D. E. Knuth, *The Art of Computer Programming*, vol. 2, 3rd ed.,
+sec. 4.2.2 and 4.3.1).
+
+Floats become integers without a Python-level call per entry, which WebAssembly makes dear:
+t + 1.5 · 2⁵² for |t| < 2⁵¹ is a double of fixed exponent whose 64 bits, read as an unsigned
+integer, are 0x4338… + round(t) (round half to even; IEEE 754-2008, sec. 4.3), so ``struct``
+turns a whole vector at once.
 
 ``pack(values, scale)`` stores a vector; ``combine(packed, size, weights, scale)`` returns
 Σⱼ weightⱼ xⱼ as ``size`` floats, for vectors packed with the same ``scale``.
@@ -24,29 +30,34 @@ at most 2⁻⁵² · max|c| · s per term (both factors rounded to 2⁻⁵³ of 
 
 import struct
 from functools import lru_cache
-from operator import mul
 
 _FIELD = 15  # bytes per field (120 bits)
 _TOP = 8  # bytes read back per field: its top 64 bits
-_ONE = 2.0 ** 52  # fixed-point unit of the inputs
-_IN = 1 << 62  # inputs are stored offset by this, as unsigned 64-bit numbers
-_BACK = 2.0 ** -48  # a field read back (its top 64 bits) in units of 2⁻¹⁰⁴ · 2⁵⁶
+_UNIT = 2.0 ** 51 - 2.0 ** 31  # fixed-point unit of inputs and weights: |x| <= s gives |u x / s| < 2⁵¹
+_MAGIC = 1.5 * 2.0 ** 52  # t + _MAGIC has the bits _BIAS + round(t) for |t| < 2⁵¹
+_BIAS = 0x4338000000000000
+_BACK = 2.0 ** 56 / (_UNIT * _UNIT)  # a field's top 64 bits in units of the inputs times the weights
+_FLIP = bytes(b ^ 0x80 for b in range(256))  # flips the top bit of a byte: takes off the 2¹¹⁹ of decoding
 MAX_TERMS = 1 << 14  # terms a combination may have before a field could overflow
 
 
 @lru_cache(maxsize=64)
 def _offsets(size: int) -> tuple[int, int]:
     """(what packing adds to each field, what decoding adds: 2¹¹⁹ and half of the dropped bits)."""
-    packing = bytes(7) + b"\x40" + bytes(7)  # 2⁶² within a field
+    packing = _BIAS.to_bytes(8, "little") + bytes(7)
     reading = bytes(6) + b"\x80" + bytes(7) + b"\x80"  # 2⁵⁵ + 2¹¹⁹
     return int.from_bytes(packing * size, "little"), int.from_bytes(reading * size, "little")
+
+
+def _fixed(values: list[float], unit: float) -> bytes:
+    """round(unit · v) + _BIAS for each v (|unit · v| < 2⁵¹), as little-endian unsigned 64-bit numbers."""
+    return struct.pack(f"<{len(values)}d", *[v * unit + _MAGIC for v in values])
 
 
 def pack(values: list[float], scale: float = 1.0) -> int:
     """P(x) for floats with |xᵢ| ≤ ``scale`` (> 0)."""
     size = len(values)
-    unit = _ONE / scale
-    raw = struct.pack(f"<{size}Q", *map(_IN.__add__, map(round, map(unit.__mul__, values))))
+    raw = _fixed(values, _UNIT / scale)
     fields = bytearray(_FIELD * size)
     for k in range(_TOP):
         fields[k::_FIELD] = raw[k::_TOP]
@@ -57,14 +68,15 @@ def combine(packed: list[int], size: int, weights: list[float], scale: float = 1
     """Σⱼ weightsⱼ xⱼ (``size`` entries) for the vectors xⱼ packed as ``packed`` with ``scale``."""
     if len(packed) > MAX_TERMS:
         raise ValueError(f"{len(packed)} terms: at most {MAX_TERMS}")
-    biggest = max(map(abs, weights), default=0.0)
+    biggest = max(max(weights, default=0.0), -min(weights, default=0.0))
     if biggest == 0.0 or size == 0:
         return [0.0] * size
-    unit = _ONE / biggest
-    total = sum(map(mul, packed, map(round, map(unit.__mul__, weights))))
+    ints = struct.unpack(f"<{len(weights)}Q", _fixed(weights, _UNIT / biggest))
+    total = sum([p * (c - _BIAS) for p, c in zip(packed, ints)])
     raw = (total + _offsets(size)[1]).to_bytes(_FIELD * size, "little")
     top = bytearray(_TOP * size)
     for k in range(_TOP):
         top[k::_TOP] = raw[_FIELD - _TOP + k::_FIELD]
+    top[_TOP - 1::_TOP] = top[_TOP - 1::_TOP].translate(_FLIP)
     back = _BACK * biggest * scale
-    return list(map(back.__mul__, map((-(1 << 63)).__add__, struct.unpack(f"<{size}Q", top))))
+    return [back * q for q in struct.unpack(f"<{size}q", top)]
