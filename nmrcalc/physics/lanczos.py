@@ -24,7 +24,7 @@ import random
 import sys
 from collections.abc import Callable, Sequence
 from itertools import repeat
-from operator import call, itemgetter, mul, sub
+from operator import itemgetter, mul
 
 from nmrcalc.physics.packed import combine, pack
 
@@ -56,14 +56,13 @@ def sparse_part(values: list[float], idx: list[int]) -> tuple[list[float], Gette
 def row_applier(parts: list[tuple[Vector, Getter]]) -> Callable[[Vector], Vector]:
     """x ↦ [dot(coefficients, getter(x)) for each (coefficients, getter) in ``parts``].
 
-    The loop over rows runs in C (``map`` with ``operator.call``), which matters in
-    WebAssembly, where each Python-level step costs several times what it costs natively.
+    One comprehension over the rows: under WebAssembly a call of a built-in function through
+    ``map`` costs more than the bytecode of a comprehension that makes the same calls.
     """
-    coefs = [c for c, _ in parts]
-    picks = [p for _, p in parts]
+    rows = list(parts)
 
     def apply(x: Vector) -> Vector:
-        return list(map(dot, coefs, map(call, picks, repeat(x))))
+        return [dot(coefficients, pick(x)) for coefficients, pick in rows]
     return apply
 
 
@@ -146,7 +145,7 @@ class _Basis:
         for _ in range(2):
             c = combine(self.packed_cols, self.frozen, w) if self.frozen else []
             c += map(dot, self.rows[self.frozen:], repeat(w))
-            w = list(map(sub, w, combine(self.packed_rows, len(w), c)))
+            w = [x - y for x, y in zip(w, combine(self.packed_rows, len(w), c))]
             new = math.sqrt(dot(w, w))
             if new > 0.7071 * norm:
                 break

@@ -74,7 +74,7 @@ from collections import Counter
 from collections.abc import Callable, Iterable, Iterator
 from dataclasses import dataclass, replace
 from fractions import Fraction
-from operator import add, itemgetter, mul, sub
+from operator import itemgetter, mul, sub
 from typing import Any
 
 from nmrcalc.errors import InputError
@@ -308,7 +308,7 @@ def _level_mixing(E: Any, V: Any, diag: list[float]) -> list[float]:
         total = 0.0
         for l, (El, vl) in enumerate(zip(E, V)):
             if l != k:
-                w, d = sum(map(mul, vk, vl)), abs(Ek - El)
+                w, d = dot(vk, vl), abs(Ek - El)
                 total += (math.sqrt(d * d + 4 * w * w) - d) / 2
         out.append(total)
     return out
@@ -761,20 +761,20 @@ def _transition_amplitudes(entries: list[tuple[int, int, float]], dim_f: int, E_
         for k, (f, a) in enumerate(zip(freqs.ravel().tolist(), A.ravel().tolist())):
             yield f, a, owner[k], k // n_i, k % n_i
         return
-    floor = math.sqrt(min_amp2).__le__
+    floor = math.sqrt(min_amp2)
     single = names.single
-    # the lines the caller keeps (amplitude² >= min_amp2) are picked without a Python-level loop
+    # the lines the caller keeps (amplitude² >= min_amp2) are picked by a comprehension, no call per entry
     if len(E_f) <= len(E_i):  # <f_a|F_+|i_b> = Σ_t f_a[t] (F_+ i_b)[t]: per f_a, one combination of m_f terms
         packed, scale = _ladder_columns(entries, V_i, lambda e: e[1], lambda e: e[0], len(E_f))
         for fa, va in enumerate(V_f):
             amps = combine(packed, len(E_i), va, scale)
-            for ib in itertools.compress(itertools.count(), map(floor, map(abs, amps))):
+            for ib in [k for k, amp in enumerate(amps) if amp >= floor or -amp >= floor]:
                 yield E_f[fa] - E_i[ib], amps[ib], single if single is not None else _Owner(names, fa, ib), fa, ib
         return
     packed, scale = _ladder_columns(entries, V_f, lambda e: e[0], lambda e: e[1], len(E_i))
     for ib, vb in enumerate(V_i):  # = Σ_s i_b[s] (F_− f_a)[s]: per i_b, one combination of m_i terms
         amps = combine(packed, len(E_f), vb, scale)
-        for fa in itertools.compress(itertools.count(), map(floor, map(abs, amps))):
+        for fa in [k for k, amp in enumerate(amps) if amp >= floor or -amp >= floor]:
             yield E_f[fa] - E_i[ib], amps[fa], single if single is not None else _Owner(names, fa, ib), fa, ib
 
 
@@ -801,7 +801,8 @@ def _ladder_columns(entries: list[tuple[int, int, float]], V: Any, row: Callable
     G: list[list[float]] = [[0.0] * len(V) for _ in range(dim)]
     for e in entries:
         r = row(e)
-        G[r] = list(map(add, G[r], map(e[2].__mul__, columns[col(e)])))
+        c = e[2]
+        G[r] = [g + c * x for g, x in zip(G[r], columns[col(e)])]
     scale = max(max(map(abs, g)) for g in G) or 1.0
     return [pack(g, scale) for g in G], scale
 

@@ -25,7 +25,6 @@ last entry is unused and left 0).
 import math
 import random
 import sys
-from operator import sub
 
 from nmrcalc.physics.lanczos import dot, uniform_draws
 
@@ -47,7 +46,10 @@ def implicit_ql(d: list[float], e: list[float], z: list[list[float]] | None = No
         iterations = 0
         while True:
             m = l
-            while m < n - 1 and abs(e[m]) > _EPS * (abs(d[m]) + abs(d[m + 1])):
+            while m < n - 1:  # |e[m]| > ε (|d[m]| + |d[m+1]|), without a call per entry
+                em, dm, dn = e[m], d[m], d[m + 1]
+                if not (em if em >= 0.0 else -em) > _EPS * ((dm if dm >= 0.0 else -dm) + (dn if dn >= 0.0 else -dn)):
+                    break
                 m += 1
             if m == l:
                 break
@@ -139,11 +141,12 @@ def _piece_pairs(d: list[float], e: list[float], rng: random.Random) -> tuple[li
         b = start
         checks = 0
         for _ in range(_MAX_STEPS):
-            scale = m * norm1 * max(_EPS, abs(solve.last_pivot)) / sum(map(abs, b))
-            b = solve(list(map(scale.__mul__, b)))
+            scale = m * norm1 * max(_EPS, abs(solve.last_pivot)) / sum([x if x >= 0.0 else -x for x in b])
+            b = solve([scale * x for x in b])
             for u in cluster:
-                b = list(map(sub, b, map(dot(u, b).__mul__, u)))
-            if max(map(abs, b)) >= growth:
+                c = dot(u, b)
+                b = [x - c * y for x, y in zip(b, u)]
+            if max(b) >= growth or -min(b) >= growth:
                 checks += 1
                 if checks > _EXTRA_STEPS:
                     break
@@ -152,7 +155,9 @@ def _piece_pairs(d: list[float], e: list[float], rng: random.Random) -> tuple[li
         norm = math.sqrt(dot(b, b))
         if not norm > 0.0:
             return None
-        v = list(map(math.copysign(1.0 / norm, max(b, key=abs)).__mul__, b))
+        high, low = max(b), min(b)
+        factor = math.copysign(1.0 / norm, high if high >= -low else low)  # the largest entry made positive
+        v = [factor * x for x in b]
         vectors.append(v)
         cluster.append(v)
     return lam, vectors
@@ -169,9 +174,10 @@ class _factor:
         sup2 = [0.0] * m
         swapped = [False] * m
         for i in range(m - 1):
-            if abs(diag[i]) >= abs(sub[i]):
-                if abs(diag[i]) < tiny:
-                    diag[i] = math.copysign(tiny, diag[i])
+            p, q = diag[i], sub[i]
+            if (p if p >= 0.0 else -p) >= (q if q >= 0.0 else -q):
+                if -tiny < p < tiny:
+                    diag[i] = math.copysign(tiny, p)
                 f = sub[i] / diag[i]
                 sub[i] = f
                 diag[i + 1] -= f * sup[i]
