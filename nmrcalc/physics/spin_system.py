@@ -1166,7 +1166,7 @@ def transitions(sites: Any, couplings: Any, observe: str, *, use_numpy: bool | N
                     shift = [u + da * g for u, g in zip(shift, column)]
                 xs = [x + u for x in xs for u in shift]
                 ws = [w * p for w in ws for p in weights]
-            raw.extend(zip(xs, ws, itertools.repeat(site)))
+            raw.extend([(x, w, site) for x, w in zip(xs, ws) if w >= NEGLIGIBLE_INTENSITY])  # as emit() drops
 
     if progress is not None:
         progress(1.0)
