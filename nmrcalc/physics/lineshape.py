@@ -24,9 +24,11 @@ points the step widens, but never below ``MIN_POINTS_PER_FWHM`` points per
 width; past that ``InputError(code="too_large")`` is raised.  The work is
 counted as the profile evaluations actually made (each line on every point, or,
 for Lorentzians on a long grid, the knots and bins below; for Gaussians on its
-``GAUSS_CUTOFF_SIGMA`` reach); above ``DENSE_EVALUATIONS`` the density drops to
-``MIN_POINTS_PER_FWHM`` first, and above ``MAX_EVALUATIONS`` at that density
-the request is refused, with the size and the remedy in the message.  The
+``GAUSS_CUTOFF_SIGMA`` reach).  It is first counted at ``MIN_POINTS_PER_FWHM``;
+when the requested density would take more than ``DENSE_EVALUATIONS`` (the
+count at the minimum density times their ratio) the minimum density is used,
+and above ``MAX_EVALUATIONS`` at that density the request is refused, with the
+size and the remedy in the message.  The
 automatic window is the stick extent plus ``margin_fwhm`` widths on each side.
 Pure Python lists, ascending in Hz.  Gaussian tails beyond
 ``GAUSS_CUTOFF_SIGMA`` standard deviations (a relative height below 1e-31) are
@@ -76,7 +78,7 @@ MIN_POINTS_PER_FWHM = 5
 DEFAULT_MARGIN_FWHM = 10.0
 MAX_POINTS = 100_000
 MAX_EVALUATIONS = 5_000_000
-DENSE_EVALUATIONS = 500_000  # above this the density drops to MIN_POINTS_PER_FWHM first
+DENSE_EVALUATIONS = 500_000  # the requested density needing more evaluations gives way to MIN_POINTS_PER_FWHM
 GAUSS_CUTOFF_SIGMA = 12.0
 KNOT_SPREAD = 0.25  # knot spacing at most this fraction of the distance to the nearest line
 INTERP_ERROR = 1.5e-6  # linear-interpolation error per line, relative to its peak height
@@ -207,11 +209,17 @@ def sample_spectrum(
         count = points
     if shape == "lorentzian":
         lines = sorted((x0, a * fwhm / (2.0 * math.pi)) for x0, a in lines)  # L = scale / (d² + (w/2)²)
-    work, plan = _evaluations(lines, count, low, span / (count - 1), fwhm, shape)
-    if work > DENSE_EVALUATIONS and density > MIN_POINTS_PER_FWHM and points is None:
-        # fewer points per line width before refusing (never below MIN_POINTS_PER_FWHM)
-        count = min(count, math.ceil(span / fwhm * MIN_POINTS_PER_FWHM) + 1)
-        work, plan = _evaluations(lines, count, low, span / (count - 1), fwhm, shape, plan)
+    least = min(count, math.ceil(span / fwhm * MIN_POINTS_PER_FWHM) + 1)
+    if points is None and least < count:
+        # planned at MIN_POINTS_PER_FWHM first: the requested density takes about density / MIN as many
+        # evaluations, and above DENSE_EVALUATIONS it is not used (fewer points per width before refusing)
+        work, plan = _evaluations(lines, least, low, span / (least - 1), fwhm, shape)
+        if work * density / MIN_POINTS_PER_FWHM > DENSE_EVALUATIONS:
+            count = least
+        else:
+            work, plan = _evaluations(lines, count, low, span / (count - 1), fwhm, shape, plan)
+    else:
+        work, plan = _evaluations(lines, count, low, span / (count - 1), fwhm, shape)
     if work > MAX_EVALUATIONS:
         raise InputError(
             f"{len(lines)} lines on {count} points need about {work} evaluations, above the limit of "
@@ -386,7 +394,7 @@ def _lorentzian_sum(lines: list[tuple[float, float]], fwhm: float, x_Hz: list[fl
             y.append(v0)
             continue
         slope = (total[s + 1] - v0) / (knots[s + 1] - k0)
-        y.extend(v0 + slope * (i - k0) for i in range(k0, knots[s + 1]))
+        y += [v0 + slope * i for i in range(knots[s + 1] - k0)]
     y.append(total[-1])
     return y
 
