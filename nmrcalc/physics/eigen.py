@@ -30,7 +30,7 @@ returns them as columns).
 import math
 import random
 from itertools import repeat
-from operator import add, mul, sub
+from operator import mul
 
 from nmrcalc.errors import InputError
 from nmrcalc.physics.lanczos import dot, multiplier, tridiagonalize
@@ -66,7 +66,7 @@ def eigh(matrix: list[list[float]]) -> tuple[list[float], list[list[float]]]:
 def _krylov_eigh(a: list[list[float]]) -> tuple[list[float], list[list[float]]] | None:
     """The Lanczos route, checked; None when a check fails.  ``a`` is left unchanged."""
     n = len(a)
-    size = max(max(map(abs, row)) for row in a)
+    size = max(max(max(row), -min(row)) for row in a)
     if size == 0.0:
         return None
     shift = sum(a[i][i] for i in range(n)) / n
@@ -106,17 +106,25 @@ def _checked_copy(matrix: list[list[float]]) -> list[list[float]]:
     n = len(rows)
     if any(len(row) != n for row in rows):
         raise InputError("matrix must be square", field="matrix")
-    if not all(all(map(math.isfinite, row)) for row in rows):
+    if not all(_finite(row) for row in rows):
         raise InputError("matrix entries must be finite", field="matrix")
-    scale = max((max(map(abs, row)) for row in rows if row), default=0.0)
+    scale = max((max(max(row), -min(row)) for row in rows if row), default=0.0)
     columns = list(zip(*rows))
     for i, (row, column) in enumerate(zip(rows, columns)):
-        gaps = list(map(abs, map(sub, row, column)))
-        if max(gaps, default=0.0) > 1e-9 * scale:
-            j = next(j for j, gap in enumerate(gaps) if gap > 1e-9 * scale)
+        gaps = [a - b for a, b in zip(row, column)]
+        if gaps and (max(gaps) > 1e-9 * scale or -min(gaps) > 1e-9 * scale):
+            j = next(j for j, gap in enumerate(gaps) if abs(gap) > 1e-9 * scale)
             raise InputError(f"matrix is not symmetric at ({max(i, j)}, {min(i, j)})", field="matrix")
     # the symmetric part, (A + Aᵀ)/2 entry by entry
-    return [list(map(mul, map(add, row, column), repeat(0.5))) for row, column in zip(rows, columns)]
+    return [[(a + b) * 0.5 for a, b in zip(row, column)] for row, column in zip(rows, columns)]
+
+
+def _finite(row: list[float]) -> bool:
+    """Every entry finite: their exact sum is (math.fsum; inf and nan propagate), else entry by entry."""
+    try:
+        return math.isfinite(math.fsum(row))
+    except (OverflowError, ValueError):  # finite entries whose sum overflows, or inf − inf
+        return all(map(math.isfinite, row))
 
 
 def _householder_tridiagonal(a: list[list[float]]) -> tuple[list[float], list[float], list[list[float]]]:
