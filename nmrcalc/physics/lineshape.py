@@ -356,6 +356,11 @@ def _bin_levels(lines: list[tuple[float, float]], fwhm: float) -> list[list[_Bin
         below, level, start = levels[-1], [], 0
         for i in range(1, len(below) + 1):
             if i == len(below) or below[i].hi - below[start].lo > extent:
+                if i == start + 1:  # a bin of one part: the same lines, moments and reach
+                    b = below[start]
+                    level.append(_Bin(b.lo, b.hi, b.centre, b.scale, b.spread, b.reach, start, i))
+                    start = i
+                    continue
                 part = below[start:i]
                 total = sum(b.scale for b in part)
                 centre = sum(b.centre * b.scale for b in part) / total if total > 0 else part[0].centre
