@@ -871,6 +871,7 @@ class _JoinedFields:
         self.own_sites = sorted({a for a, _, _ in self.links})
         bound = sum(2 * sites[a].count * float(sites[a].spin) for a in self.own_sites)
         self.cell = max(tol_Hz, 1e-9) / (bound or 1.0)
+        self._keys: dict[tuple[float, ...], tuple[int, ...]] = {}  # many lines share an eigenstate
         sums: dict[tuple[int, ...], list] = {}
         for p, z in states:
             g = self.field(z)
@@ -887,7 +888,11 @@ class _JoinedFields:
         return g
 
     def key(self, z: tuple[float, ...]) -> tuple[int, ...]:
-        return tuple(round(x / self.cell) for x in self.field(z))
+        """The cell of a partner state with <Σ I_z> z: g in units of ``cell``, rounded."""
+        found = self._keys.get(z)
+        if found is None:
+            found = self._keys[z] = tuple(round(x / self.cell) for x in self.field(z))
+        return found
 
 
 def _partner_shifts(component: set[int], other: set[int], states: list[tuple[float, tuple[float, ...]]],
