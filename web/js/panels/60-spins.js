@@ -390,7 +390,7 @@ export default {
         el("ul", { id: "spins-clusters" }, ...r.clusters.map((c) => el("li", {}, `${c.labels.join(", ")}: ${c.method === "exact" ? "exact" : `weak links to first order${c.partner_field ? " (solved again in each state of its partner)" : ""}, positions within about ${fmt(c.error_Hz, 2)} Hz`}`))),
         ...NMRRows.lineTable({
           id: "spins-lines", title: "Transitions", request: sent, lines: r.transitions, fileName: "spin-system-transitions",
-          caption: "Every observed transition, high to low ppm: position, intensity and the spin it mostly belongs to",
+          caption: "Every observed transition, high to low ppm: position, intensity and the spin it mostly belongs to (the one whose ⟨I_z⟩ changes most, the spin that flips)",
           places: { ppm: 4, Hz: 3 }, hzLabel: "ν from 0 ppm (Hz)", note: "offset from 0 ppm of the observed nucleus",
           columns: [{ key: "spin", label: "Mostly spin", value: (t) => t.label, show: (t) => t.label }],
         }),
