@@ -136,8 +136,8 @@ def test_packed_combinations_match_a_dense_product(size, terms, scale):
     w = rng.normal(size=terms) * 1e-7
     got = combine([pack(x.tolist(), scale) for x in X], size, w.tolist(), scale)
     assert type(got) is list and len(got) == size
-    # error bound of the fixed-point fields (packed docstring): 2⁻⁵⁰ per term and 2⁻⁴⁷ for the result
-    bound = (terms * 2.0 ** -50 + 2.0 ** -47) * numpy.abs(w).max() * scale
+    # error bound of the fixed-point fields (packed docstring): 2⁻⁴⁹ per term and 2⁻⁵³ for the result
+    bound = (terms * 2.0 ** -49 + 2.0 ** -53) * numpy.abs(w).max() * scale
     assert numpy.abs(numpy.array(got) - w @ X).max() <= bound
     assert combine([pack(x.tolist(), scale) for x in X], size, [0.0] * terms, scale) == [0.0] * size
 

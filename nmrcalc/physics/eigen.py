@@ -9,7 +9,7 @@ Two methods, one answer:
   G. H. Golub, C. F. Van Loan, *Matrix Computations*, sec. 8.3).  For A = Q T Qᵀ and
   T = Z Λ Zᵀ the eigenvectors of A are the columns of Q Z.  O(n³) work in list
   comprehensions.
-* from ``KRYLOV_MIN`` rows on: Lanczos tridiagonalization with full reorthogonalization
+* from ``KRYLOV_MIN`` rows on (to ``packed.MAX_TERMS``): Lanczos tridiagonalization with full reorthogonalization
   (``lanczos``), eigenvalues of T by QL without vectors and its eigenvectors by inverse
   iteration (``tridiagonal.eigenpairs``), then y ↦ Q y.  The O(n³) work is big-integer
   linear combinations of whole vectors (``packed``), done in C.
@@ -34,7 +34,7 @@ from operator import mul
 
 from nmrcalc.errors import InputError
 from nmrcalc.physics.lanczos import dot, multiplier, tridiagonalize
-from nmrcalc.physics.packed import combine
+from nmrcalc.physics.packed import MAX_TERMS, combine
 from nmrcalc.physics.tridiagonal import eigenpairs, implicit_ql
 
 KRYLOV_MIN = 24  # rows from which the Lanczos route is tried
@@ -53,7 +53,7 @@ def eigh(matrix: list[list[float]]) -> tuple[list[float], list[list[float]]]:
     n = len(a)
     if n == 0:
         return [], []
-    if n >= KRYLOV_MIN:
+    if KRYLOV_MIN <= n <= MAX_TERMS:  # its big-integer combinations take at most MAX_TERMS vectors
         found = _krylov_eigh(a)
         if found is not None:
             return found

@@ -26,7 +26,7 @@ from collections.abc import Callable, Sequence
 from itertools import repeat
 from operator import itemgetter, mul
 
-from nmrcalc.physics.packed import combine, pack
+from nmrcalc.physics.packed import FIELD_BITS, combine, pack
 
 _EPS = sys.float_info.epsilon  # IEEE-754 double: 2.22e-16
 
@@ -134,7 +134,7 @@ class _Basis:
         self.rows.append(q)
         self.packed_rows.append(pack(q))
         if len(self.rows) - self.frozen == self._BATCH:
-            shift = 120 * self.frozen
+            shift = FIELD_BITS * self.frozen
             self.packed_cols = [c + (pack(list(col)) << shift)
                                 for c, col in zip(self.packed_cols, zip(*self.rows[self.frozen:]))]
             self.frozen = len(self.rows)
