@@ -213,7 +213,8 @@ def sample_spectrum(
     if shape == "lorentzian":
         lines = sorted((x0, a * fwhm / (2.0 * math.pi)) for x0, a in lines)  # L = scale / (d² + (w/2)²)
     least = min(count, math.ceil(span / fwhm * MIN_POINTS_PER_FWHM) + 1)
-    if points is None and least < count:
+    # every line on every point bounds the work: below DENSE_EVALUATIONS one plan at the density asked
+    if points is None and least < count and len(lines) * count > DENSE_EVALUATIONS:
         # planned at MIN_POINTS_PER_FWHM first: the requested density takes about density / MIN as many
         # evaluations, and above DENSE_EVALUATIONS it is not used (fewer points per width before refusing)
         work, plan = _evaluations(lines, least, low, span / (least - 1), fwhm, shape)
