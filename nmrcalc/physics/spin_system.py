@@ -792,7 +792,7 @@ def _ladder_columns(entries: list[tuple[int, int, float]], V: Any, row: Callable
         used = {col(e) for e in entries}
         # up to ``most`` columns are summed, so each is packed with that many times its size as scale
         most = max(Counter(map(row, entries)).values())
-        scale = most * max(max(map(abs, columns[c])) for c in used) or 1.0
+        scale = most * max(max(max(columns[c]), -min(columns[c])) for c in used) or 1.0
         packed_columns = {c: pack(list(columns[c]), scale) for c in used}
         sums = [0] * dim
         for e in entries:
@@ -803,7 +803,7 @@ def _ladder_columns(entries: list[tuple[int, int, float]], V: Any, row: Callable
         r = row(e)
         c = e[2]
         G[r] = [g + c * x for g, x in zip(G[r], columns[col(e)])]
-    scale = max(max(map(abs, g)) for g in G) or 1.0
+    scale = max(max(max(g), -min(g)) for g in G) or 1.0
     return [pack(g, scale) for g in G], scale
 
 
