@@ -650,7 +650,8 @@ def _block_hamiltonian(states: list[State], index: dict[State, int], nu: list[fl
 
 def _expectations(states: list[State], V: Any, link_pos: list[tuple[int, int]],
                   n_linked: int) -> list[tuple[float, ...]] | None:
-    """<Σ I_z> of each linked site in every eigenvector of one block (tuples in ``link_pos`` order)."""
+    """<Σ I_z> per slot in every eigenvector of one block: ``link_pos`` = (spin, slot) pairs, ``n_linked``
+    slots (the weakly linked sites, or the observed sites that name a line's spin); None without slots."""
     if not n_linked:
         return None
     if not link_pos:  # every linked group of this composition has total spin 0
@@ -708,7 +709,7 @@ def _composition_lines(units: list[_Unit], spins: list[tuple[int, int]], J_units
         index = {s: i for i, s in enumerate(states)}
         solved[key] = (states, index, solve(_block_hamiltonian(states, index, nu, two_fs, pairs)))
         expect[key] = _expectations(states, solved[key][2][1], link_pos, len(linked or ()))
-        on_site[key] = _expectations(states, solved[key][2][1], obs_pos, len(obs_pos) and len(obs_sites))
+        on_site[key] = _expectations(states, solved[key][2][1], obs_pos, len(obs_sites) if obs_pos else 0)
         zs = expect[key]
         if record is not None and zs is not None:
             for z in zs:
