@@ -108,21 +108,48 @@ def test_sparse_rows_apply_like_a_dense_product():
     assert numpy.allclose(row_applier(rows)(x.tolist()), A @ x, rtol=0, atol=1e-13)
 
 
-@pytest.mark.parametrize("n", [60, 130])
-def test_close_eigenvalue_clusters_stay_orthogonal_on_the_krylov_route(n):
-    # most eigenvalues within 1e-4 of each other (relative to the norm): inverse iteration must
-    # orthogonalize each cluster (tridiagonal.eigenpairs); reference numpy.linalg.eigvalsh
+@pytest.mark.parametrize("n, spread, inverse_iteration", [(60, 1e-2, False), (130, 1e-2, False),
+                                                         (60, 1e-9, True), (130, 1e-9, True)])
+def test_close_eigenvalue_clusters_stay_orthogonal_on_the_krylov_route(n, spread, inverse_iteration, monkeypatch):
+    # most eigenvalues evenly spread over 1000 ± spread: twisted vectors are orthonormalized per cluster, and
+    # clusters closer than tridiagonal._CLOSE (relative to the norm) take inverse iteration
+    # (tridiagonal.eigenpairs); reference numpy.linalg.eigvalsh
+    from nmrcalc.physics import tridiagonal
+    from nmrcalc.physics.eigen import _checked_copy, _krylov_eigh
+
+    calls = []
+    iterate = tridiagonal._inverse_iteration
+    monkeypatch.setattr(tridiagonal, "_inverse_iteration", lambda *args: calls.append(1) or iterate(*args))
     rng = numpy.random.default_rng(n)
     Q, _ = numpy.linalg.qr(rng.normal(size=(n, n)))
-    lam = numpy.concatenate([1000.0 + 1e-2 * rng.normal(size=n - 10), rng.normal(size=10) * 800.0])
+    lam = numpy.concatenate([1000.0 + spread * numpy.linspace(-1.0, 1.0, n - 10), rng.normal(size=10) * 800.0])
     A = Q @ numpy.diag(lam) @ Q.T
     A = 0.5 * (A + A.T)
-    from nmrcalc.physics.eigen import _checked_copy, _krylov_eigh
     found = _krylov_eigh(_checked_copy(A.tolist()))
     assert found is not None  # the checked fast route was accepted, not the fallback
+    assert bool(calls) == inverse_iteration
     values, vectors = found
     assert numpy.allclose(values, numpy.linalg.eigvalsh(A), rtol=0, atol=1e-11 * numpy.abs(A).max() * n)
     _check_decomposition(A, values, vectors)
+
+
+def test_twisted_vectors_of_a_tridiagonal_matrix_match_numpy():
+    # a random unreduced tridiagonal matrix; reference numpy.linalg.eigh
+    import random
+
+    from nmrcalc.physics.tridiagonal import eigenpairs
+
+    rng = numpy.random.default_rng(5)
+    d, e = rng.normal(size=80) * 100.0, rng.uniform(1.0, 30.0, size=79)
+    T = numpy.diag(d) + numpy.diag(e, 1) + numpy.diag(e, -1)
+    found = eigenpairs(d.tolist(), e.tolist() + [0.0], random.Random(1))
+    assert found is not None
+    values, vectors = found
+    ref_values, ref_vectors = numpy.linalg.eigh(T)
+    assert numpy.allclose(values, ref_values, rtol=0, atol=1e-12 * numpy.abs(T).max() * 80)
+    _check_decomposition(T, values, vectors)
+    assert numpy.allclose(numpy.abs(numpy.array(vectors) @ ref_vectors).max(axis=1), 1.0, atol=1e-10)
+    assert all(max(v) >= -min(v) for v in vectors)  # each vector's largest entry is positive
 
 
 @pytest.mark.parametrize("size, terms, scale", [(1, 1, 1.0), (7, 3, 2.5), (252, 252, 1.0), (40, 300, 1e-6)])

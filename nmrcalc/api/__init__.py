@@ -15,6 +15,7 @@ import re
 from collections.abc import Callable, Iterator, Mapping
 from typing import Any
 
+from nmrcalc.api import jsontext
 from nmrcalc.api.fields import PROGRESS
 from nmrcalc.api.params import Op, check
 from nmrcalc.errors import InputError
@@ -105,7 +106,7 @@ def _check_unicode(text: str, request: Any) -> None:
 
 def handle_json(text: str, progress: Callable[[float], None] | None = None) -> str:
     """Text in, text out: the bridge used by the Web Worker and ``python -m nmrcalc api``
-    (compact JSON: no spaces after separators, a few per cent less text to pass to the page)."""
+    (compact JSON: no spaces after separators; long arrays of numbers to 12 significant digits, ``jsontext``)."""
     try:
         if not isinstance(text, str) or len(text) > MAX_REQUEST_CHARS:
             response = _error("too_large", f"The request is longer than {MAX_REQUEST_CHARS} characters.")
@@ -118,6 +119,6 @@ def handle_json(text: str, progress: Callable[[float], None] | None = None) -> s
     except (ValueError, RecursionError):
         response = _error("bad_request", "The request is not valid JSON.")
     try:
-        return json.dumps(response, allow_nan=False, ensure_ascii=False, separators=(",", ":"))
+        return jsontext.dumps(response)
     except (ValueError, TypeError):
         return json.dumps(_error("internal", "The result could not be encoded (a non-finite number)."))
