@@ -14,9 +14,10 @@ or infinity).
 from __future__ import annotations
 
 import json
-import math
 from itertools import chain
 from typing import Any
+
+from nmrcalc.physics.numeric import all_finite
 
 LONG = 64  # lists longer than this are written in one step
 DIGITS = 12  # significant digits of a float in such a list
@@ -48,12 +49,8 @@ def _key(key: Any) -> str:
 
 
 def _finite(values: list[float]) -> None:
-    """ValueError unless every value is finite (their exact sum is; inf and nan propagate through fsum)."""
-    try:
-        total = math.fsum(values)
-    except OverflowError:  # finite values whose sum overflows
-        total = 0.0 if all(map(math.isfinite, values)) else math.inf
-    if not math.isfinite(total):
+    """ValueError unless every value is finite, as json.dumps raises."""
+    if not all_finite(values):
         raise ValueError("Out of range float values are not JSON compliant")
 
 

@@ -250,8 +250,8 @@ def _block(spins, labels, couplings, observe, field_T, proton_MHz, req, warnings
              "clusters": groups, "weak_link_tol_Hz": tol,
              "transitions": [{"Hz": x, "ppm": x / ref, "intensity": y, "spin": k, "label": labels[k]}
                              for x, y, k in found]}
-    first = _first_order_lines(sites, couplings, observe.symbol)
-    if flag(req, "first_order"):
+    first = _first_order_lines(sites, couplings, observe.symbol) if flag(req, "first_order") else None
+    if first is not None:
         block["first_order_lines"] = _line_dicts(first, ref)
     if flag(req, "spectrum"):
         width = quantity(req, "linewidth", "coupling", positive=True, default=0.5)
@@ -259,7 +259,7 @@ def _block(spins, labels, couplings, observe, field_T, proton_MHz, req, warnings
         try:
             exact = lineshape.sample_spectrum(lines, width, shape)
             spectrum = {"x_ppm": [x / ref for x in exact.x_Hz], "y": exact.y, "linewidth_Hz": width}
-            if flag(req, "first_order"):
+            if first is not None:
                 fo = lineshape.sample_spectrum(first, width, shape, window_Hz=(exact.x_Hz[0], exact.x_Hz[-1]),
                                                points=len(exact.x_Hz))
                 spectrum["first_order_y"] = fo.y

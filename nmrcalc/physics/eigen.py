@@ -34,6 +34,7 @@ from operator import mul
 
 from nmrcalc.errors import InputError
 from nmrcalc.physics.lanczos import dot, multiplier, tridiagonalize
+from nmrcalc.physics.numeric import all_finite
 from nmrcalc.physics.packed import MAX_TERMS, combine
 from nmrcalc.physics.tridiagonal import eigenpairs, implicit_ql
 
@@ -106,7 +107,7 @@ def _checked_copy(matrix: list[list[float]]) -> list[list[float]]:
     n = len(rows)
     if any(len(row) != n for row in rows):
         raise InputError("matrix must be square", field="matrix")
-    if not all(_finite(row) for row in rows):
+    if not all(all_finite(row) for row in rows):
         raise InputError("matrix entries must be finite", field="matrix")
     scale = max((max(max(row), -min(row)) for row in rows if row), default=0.0)
     columns = list(zip(*rows))
@@ -117,14 +118,6 @@ def _checked_copy(matrix: list[list[float]]) -> list[list[float]]:
             raise InputError(f"matrix is not symmetric at ({max(i, j)}, {min(i, j)})", field="matrix")
     # the symmetric part, (A + Aᵀ)/2 entry by entry
     return [[(a + b) * 0.5 for a, b in zip(row, column)] for row, column in zip(rows, columns)]
-
-
-def _finite(row: list[float]) -> bool:
-    """Every entry finite: their exact sum is (math.fsum; inf and nan propagate), else entry by entry."""
-    try:
-        return math.isfinite(math.fsum(row))
-    except (OverflowError, ValueError):  # finite entries whose sum overflows, or inf − inf
-        return all(map(math.isfinite, row))
 
 
 def _householder_tridiagonal(a: list[list[float]]) -> tuple[list[float], list[float], list[list[float]]]:

@@ -74,6 +74,7 @@ from fractions import Fraction
 from typing import NamedTuple
 
 from nmrcalc.errors import InputError
+from nmrcalc.physics.numeric import all_finite
 
 DEFAULT_POINTS_PER_FWHM = 10
 MIN_POINTS_PER_FWHM = 5
@@ -128,7 +129,12 @@ def _check_sticks(sticks: Iterable) -> list[tuple[float, float]]:
         raise InputError("sticks must be a list of (offset_Hz, intensity)", field="sticks") from None
     if not items:
         raise InputError("at least one stick is needed", field="sticks")
-    out = []
+    if all([type(item) is tuple and len(item) == 2 for item in items]):  # the usual case, checked in C
+        offsets, heights = zip(*items)
+        if (all([type(v) is float for v in offsets + heights]) and all_finite(offsets + heights)
+                and min(heights) >= 0.0):
+            return items
+    out = []  # entry by entry, for the message that names the first bad one
     for i, item in enumerate(items):
         try:
             x, a = item
