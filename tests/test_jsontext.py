@@ -5,25 +5,9 @@ import math
 import random
 
 import pytest
+from json_equal import assert_same_reply
 
 from nmrcalc.api import handle, handle_json, jsontext
-
-
-def _same(fast, plain, path="$"):
-    """Equal structure, keys, types and non-float values; floats equal to 12 significant digits."""
-    assert type(fast) is type(plain) or (type(plain) is float and type(fast) is int), path
-    if isinstance(plain, dict):
-        assert list(fast) == list(plain), path
-        for k in plain:
-            _same(fast[k], plain[k], f"{path}.{k}")
-    elif isinstance(plain, list):
-        assert len(fast) == len(plain), path
-        for k, (a, b) in enumerate(zip(fast, plain)):
-            _same(a, b, f"{path}[{k}]")
-    elif isinstance(plain, float):
-        assert math.isclose(fast, plain, rel_tol=5.000001e-12, abs_tol=0.0), (path, fast, plain)
-    else:
-        assert fast == plain, path
 
 
 def test_long_lists_read_back_as_the_stdlib_writes_them():
@@ -42,7 +26,7 @@ def test_long_lists_read_back_as_the_stdlib_writes_them():
         "per%cent": [{"x%s": 0.5}] * 80,
     }
     text = jsontext.dumps(value)
-    _same(json.loads(text), json.loads(json.dumps(value)))
+    assert_same_reply(json.loads(text), json.loads(json.dumps(value)))
     assert "  " not in text and ", " not in text  # compact, as json.dumps with separators (",", ":")
 
 
@@ -70,5 +54,5 @@ def test_a_spin_system_reply_carries_its_lines_and_spectrum_to_twelve_digits():
                "couplings": [{"between": [i, j], "J": 1.0 + i + 0.5 * j} for i in range(6) for j in range(i + 1, 6)]}
     reply = json.loads(handle_json(json.dumps(request)))
     assert reply["ok"]
-    _same(reply, json.loads(json.dumps(handle(request))))
+    assert_same_reply(reply, json.loads(json.dumps(handle(request))))
     assert len(reply["result"]["spectrum"]["y"]) > jsontext.LONG and len(reply["result"]["transitions"]) > jsontext.LONG
