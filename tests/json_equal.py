@@ -1,7 +1,8 @@
 """Equality of a reply read back from ``api.handle_json`` with the reply ``api.handle`` gave.
 
 ``api.jsontext`` writes the floats of long lists to ``jsontext.DIGITS`` significant digits (its
-docstring); every other value must come back exactly.
+docstring).  Here every float is compared to that many digits, wherever it is, and every other
+value exactly; that short content is written exactly is checked in tests/test_jsontext.py.
 """
 
 import math
